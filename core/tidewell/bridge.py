@@ -1,0 +1,168 @@
+"""The only module the web shell (and the command line) calls: JSON in, JSON out.
+
+==================  =====================================================================
+``handle``          ``handle(request_json: str) -> str``; never raises
+``handle_obj``      ``handle_obj(request: dict) -> dict``; never raises
+``CALCULATIONS``    the allow-list: calculation name -> ``"module:function"``
+``available``       the calculations this build can answer
+==================  =====================================================================
+
+Shapes are those of CONTRACT.md (project description in docs/bridge.md). Each calculation is a
+function ``f(inputs: Inputs, report: Report) -> None`` imported only when first asked for, so
+``import tidewell.bridge`` stays cheap and imports no numpy.
+"""
+
+from __future__ import annotations
+
+import importlib
+import json
+import math
+
+from . import __version__
+from .errors import InputError, InputErrors
+from .fields import Inputs
+from .report import Report
+
+ENGINE = __version__
+
+#: calculation name -> "module:function" (an allow-list; nothing else is reachable).
+CALCULATIONS: dict[str, str] = {
+    "convert": "tidewell.converter:convert",
+    "blood_gas": "tidewell.interpret:blood_gas",
+    "alveolar_gas": "tidewell.breathing:alveolar_gas",
+    "oxygen_content": "tidewell.breathing:oxygen_content",
+    "oxygen_dissociation_curve": "tidewell.breathing:oxygen_dissociation_curve",
+    "ventilation": "tidewell.breathing:ventilation",
+    "temperature_correction": "tidewell.breathing:temperature_correction",
+    "altitude": "tidewell.flight:altitude",
+    "altitude_profile": "tidewell.flight:altitude_profile",
+    "oxygen_supply": "tidewell.flight:oxygen_supply",
+    "uncertainty": "tidewell.sureness:uncertainty",
+}
+
+PRESSURE_UNITS = ("mmHg", "kPa")
+_REQUEST_KEYS = ("calc", "inputs", "options")
+_OPTION_KEYS = ("pressure_unit",)
+MAX_REQUEST_CHARS = 1_000_000
+
+
+def _resolve(name: str):
+    """The calculation function for ``name``, or None when this build does not have it."""
+    target = CALCULATIONS.get(name)
+    if target is None:
+        return None
+    module_name, func_name = target.split(":")
+    try:
+        module = importlib.import_module(module_name)
+    except ModuleNotFoundError as exc:
+        if exc.name == module_name:
+            return None
+        raise
+    return getattr(module, func_name, None)
+
+
+def available() -> list[str]:
+    """Names of the calculations this build can answer."""
+    return [name for name in CALCULATIONS if _resolve(name) is not None]
+
+
+def _failure(calc, errors: list[dict]) -> dict:
+    return {"ok": False, "calc": calc, "engine": ENGINE, "errors": errors}
+
+
+def _err(field: str, code: str, message: str) -> dict:
+    return {"field": field, "code": code, "message": message}
+
+
+def handle_obj(request: object) -> dict:
+    """Answer one request object (see CONTRACT.md). Never raises."""
+    try:
+        return _handle(request)
+    except Exception:  # a core bug: say so without a traceback
+        calc = request.get("calc") if isinstance(request, dict) and isinstance(request.get("calc"), str) else None
+        return _failure(calc, [_err("request", "internal_error",
+                                    "Tidewell could not complete this calculation (an internal error). "
+                                    "Nothing was computed; please check the inputs and report the problem.")])
+
+
+def _handle(request: object) -> dict:
+    if not isinstance(request, dict):
+        return _failure(None, [_err("request", "bad_request", "a request must be a JSON object")])
+    calc = request.get("calc")
+    errors = []
+    for key in request:
+        if key not in _REQUEST_KEYS:
+            errors.append(_err(f"request.{key}", "bad_request",
+                               f"request.{key}: unknown request key; a request has calc, inputs and options"))
+    if calc is None:
+        errors.append(_err("calc", "missing", "calc: the calculation name is required"))
+    elif not isinstance(calc, str):
+        errors.append(_err("calc", "bad_request", "calc: must be a calculation name (text)"))
+        calc = None
+    inputs_raw = request.get("inputs", {})
+    if not isinstance(inputs_raw, dict):
+        errors.append(_err("inputs", "bad_request", "inputs: must be a JSON object"))
+    options = request.get("options", {})
+    if options is None:
+        options = {}
+    pressure_unit = "mmHg"
+    if not isinstance(options, dict):
+        errors.append(_err("options", "bad_request", "options: must be a JSON object"))
+    else:
+        for key in options:
+            if key not in _OPTION_KEYS:
+                errors.append(_err(f"options.{key}", "bad_request", f"options.{key}: unknown option"))
+        unit = options.get("pressure_unit", "mmHg")
+        if unit not in PRESSURE_UNITS:
+            errors.append(_err("options.pressure_unit", "bad_unit",
+                               f"options.pressure_unit: must be 'mmHg' or 'kPa' (got {unit!r})"))
+        else:
+            pressure_unit = unit
+    func = None
+    if isinstance(calc, str):
+        func = _resolve(calc)
+        if func is None:
+            known = ", ".join(available())
+            errors.append(_err("calc", "unknown_calc", f"calc: {calc[:60]!r} is not a calculation of this "
+                               f"version of Tidewell; available: {known}"))
+    if errors:
+        return _failure(calc, errors)
+    inputs = Inputs(inputs_raw)
+    report = Report(calc, pressure_unit=pressure_unit)
+    try:
+        func(inputs, report)
+    except InputErrors as exc:
+        return _failure(calc, [e.as_entry() for e in exc.errors])
+    except InputError as exc:
+        return _failure(calc, [exc.as_entry()])
+    return report.to_response(ENGINE)
+
+
+def handle(request: str) -> str:
+    """Answer one JSON request text with one JSON response text. Never raises."""
+    try:
+        if not isinstance(request, str):
+            response = _failure(None, [_err("request", "bad_request", "a request must be JSON text")])
+        elif len(request) > MAX_REQUEST_CHARS:
+            response = _failure(None, [_err("request", "bad_request",
+                                            f"request is too large ({len(request)} characters; "
+                                            f"the limit is {MAX_REQUEST_CHARS})")])
+        else:
+            try:
+                obj = json.loads(request, parse_constant=_reject_constant)
+            except (ValueError, RecursionError) as exc:
+                response = _failure(None, [_err("request", "bad_request", f"request is not valid JSON: {exc}"[:300])])
+            else:
+                response = handle_obj(obj)
+        return json.dumps(response, allow_nan=False, ensure_ascii=False)
+    except Exception:
+        return json.dumps(_failure(None, [_err("request", "internal_error",
+                                               "Tidewell could not answer this request (an internal error).")]))
+
+
+def _reject_constant(name: str):
+    raise ValueError(f"{name} is not allowed in a request (numbers must be finite)")
+
+
+def _finite(value) -> bool:  # used by tests
+    return not (isinstance(value, float) and not math.isfinite(value))

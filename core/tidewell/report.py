@@ -1,0 +1,134 @@
+"""Building a calculation's answer: outputs, findings, cautions, steps and a summary.
+
+===================  ============================================================================
+``Report``           collects what a calculation says and turns it into the bridge's success shape
+``Report.put``       an output (number, word, bool, list or mapping)
+``Report.pressure``  a pressure output, given in mmHg and sent in the request's pressure unit
+``Report.quantity``  a ``{"value", "unit"}`` output in a fixed unit
+``Report.step``      how one number was obtained: label, formula, result, source
+``Report.finding``   a coded observation with a severity (``info``, ``notable``, ``urgent``)
+``Report.caution``   a plain-language caution shown wherever care could change
+``Report.say``       one sentence of the plain-language summary
+===================  ============================================================================
+
+Pressures are computed in mmHg everywhere inside the core; only here are they converted to the
+unit the user chose. Display rounding is a clinical choice made in the core: ``decimals`` per
+output travels in the response's ``display`` map (kPa 2 dp, mmHg 1 dp unless said otherwise).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+from . import units
+from .references import REFERENCES
+
+SEVERITIES = ("info", "notable", "urgent")
+_CODE = re.compile(r"^[a-z][a-z0-9_]*$")
+PRESSURE_DECIMALS = {"mmHg": 1, "kPa": 2}
+
+
+class Report:
+    """The answer of one calculation."""
+
+    def __init__(self, calc: str, *, pressure_unit: str = "mmHg"):
+        self.calc = calc
+        self.pressure_unit = pressure_unit
+        self.outputs: dict = {}
+        self.display: dict[str, int] = {}
+        self.findings: list[dict] = []
+        self.cautions: list[str] = []
+        self.steps: list[dict] = []
+        self.summary: list[str] = []
+
+    # -- values ------------------------------------------------------------------------------
+    def pressure_value(self, mmhg: float) -> dict:
+        """A pressure (given in mmHg) as a quantity in the request's pressure unit."""
+        return {"value": units.convert(mmhg, "mmHg", self.pressure_unit), "unit": self.pressure_unit}
+
+    def put(self, name: str, value, *, decimals: int | None = None) -> None:
+        _check_finite(name, value)
+        self.outputs[name] = value
+        if decimals is not None:
+            self.display[name] = decimals
+
+    def pressure(self, name: str, mmhg: float, *, decimals: int | None = None) -> None:
+        self.put(name, self.pressure_value(mmhg))
+        self.display[name] = PRESSURE_DECIMALS[self.pressure_unit] if decimals is None else decimals
+
+    def pressure_range(self, name: str, low_mmhg: float, high_mmhg: float) -> None:
+        self.put(name, {"low": self.pressure_value(low_mmhg), "high": self.pressure_value(high_mmhg)})
+        self.display[name] = PRESSURE_DECIMALS[self.pressure_unit]
+
+    def quantity(self, name: str, value: float, unit: str, *, decimals: int | None = None) -> None:
+        self.put(name, {"value": value, "unit": unit}, decimals=decimals)
+
+    # -- explanation -------------------------------------------------------------------------
+    def step(self, label: str, formula: str, result, source: str | tuple[str, ...], *, output: str | None = None,
+             pressure: bool = False, unit: str | None = None, inputs: dict | None = None) -> None:
+        """Record a step. ``source`` is a reference key (or several); ``pressure=True`` means
+        ``result`` is a pressure in mmHg to be shown in the user's unit; ``unit`` makes it a quantity."""
+        keys = (source,) if isinstance(source, str) else tuple(source)
+        for key in keys:
+            if key not in REFERENCES:
+                raise KeyError(f"step {label!r}: unknown reference key {key!r}")
+        if pressure:
+            result = self.pressure_value(result)
+        elif unit is not None:
+            result = {"value": result, "unit": unit}
+        _check_finite(label, result)
+        entry = {"label": label, "formula": formula, "result": result,
+                 "source": "; ".join(REFERENCES[k].short for k in keys), "source_keys": list(keys)}
+        if output is not None:
+            entry["output"] = output
+        if inputs:
+            _check_finite(label, inputs)
+            entry["inputs"] = inputs
+        self.steps.append(entry)
+
+    def finding(self, code: str, severity: str, text: str) -> None:
+        if not _CODE.match(code):
+            raise ValueError(f"finding code {code!r} is not snake_case")
+        if severity not in SEVERITIES:
+            raise ValueError(f"finding severity {severity!r}")
+        if any(f["code"] == code for f in self.findings):
+            return
+        self.findings.append({"code": code, "severity": severity, "text": text})
+
+    def caution(self, text: str) -> None:
+        if text not in self.cautions:
+            self.cautions.append(text)
+
+    def say(self, sentence: str) -> None:
+        self.summary.append(sentence)
+
+    # -- out ---------------------------------------------------------------------------------
+    def to_response(self, engine: str) -> dict:
+        order = {s: i for i, s in enumerate(("urgent", "notable", "info"))}
+        findings = sorted(self.findings, key=lambda f: order[f["severity"]])
+        return {
+            "ok": True,
+            "calc": self.calc,
+            "engine": engine,
+            "outputs": self.outputs,
+            "findings": findings,
+            "cautions": self.cautions,
+            "steps": self.steps,
+            "summary": self.summary,
+            "display": self.display,
+            "options": {"pressure_unit": self.pressure_unit},
+        }
+
+
+def _check_finite(name: str, value) -> None:
+    """Refuse NaN and infinities anywhere inside ``value`` (a core bug, never a user error)."""
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            raise ArithmeticError(f"{name}: non-finite value")
+    elif isinstance(value, dict):
+        for k, v in value.items():
+            _check_finite(f"{name}.{k}", v)
+    elif isinstance(value, (list, tuple)):
+        for i, v in enumerate(value):
+            _check_finite(f"{name}[{i}]", v)
