@@ -79,10 +79,22 @@ def handle_obj(request: object) -> dict:
     try:
         return _handle(request)
     except Exception:  # a core bug: say so without a traceback
-        calc = request.get("calc") if isinstance(request, dict) and isinstance(request.get("calc"), str) else None
-        return _failure(calc, [_err("request", "internal_error",
-                                    "Tidewell could not complete this calculation (an internal error). "
-                                    "Nothing was computed; please check the inputs and report the problem.")])
+        calc = (
+            request.get("calc")
+            if isinstance(request, dict) and isinstance(request.get("calc"), str)
+            else None
+        )
+        return _failure(
+            calc,
+            [
+                _err(
+                    "request",
+                    "internal_error",
+                    "Tidewell could not complete this calculation (an internal error). "
+                    "Nothing was computed; please check the inputs and report the problem.",
+                )
+            ],
+        )
 
 
 def _handle(request: object) -> dict:
@@ -92,8 +104,13 @@ def _handle(request: object) -> dict:
     errors = []
     for key in request:
         if key not in _REQUEST_KEYS:
-            errors.append(_err(f"request.{key}", "bad_request",
-                               f"request.{key}: unknown request key; a request has calc, inputs and options"))
+            errors.append(
+                _err(
+                    f"request.{key}",
+                    "bad_request",
+                    f"request.{key}: unknown request key; a request has calc, inputs and options",
+                )
+            )
     if calc is None:
         errors.append(_err("calc", "missing", "calc: the calculation name is required"))
     elif not isinstance(calc, str):
@@ -114,8 +131,13 @@ def _handle(request: object) -> dict:
                 errors.append(_err(f"options.{key}", "bad_request", f"options.{key}: unknown option"))
         unit = options.get("pressure_unit", "mmHg")
         if unit not in PRESSURE_UNITS:
-            errors.append(_err("options.pressure_unit", "bad_unit",
-                               f"options.pressure_unit: must be 'mmHg' or 'kPa' (got {unit!r})"))
+            errors.append(
+                _err(
+                    "options.pressure_unit",
+                    "bad_unit",
+                    f"options.pressure_unit: must be 'mmHg' or 'kPa' (got {unit!r})",
+                )
+            )
         else:
             pressure_unit = unit
     func = None
@@ -123,8 +145,14 @@ def _handle(request: object) -> dict:
         func = _resolve(calc)
         if func is None:
             known = ", ".join(available())
-            errors.append(_err("calc", "unknown_calc", f"calc: {calc[:60]!r} is not a calculation of this "
-                               f"version of Tidewell; available: {known}"))
+            errors.append(
+                _err(
+                    "calc",
+                    "unknown_calc",
+                    f"calc: {calc[:60]!r} is not a calculation of this "
+                    f"version of Tidewell; available: {known}",
+                )
+            )
     if errors:
         return _failure(calc, errors)
     inputs = Inputs(inputs_raw)
@@ -144,20 +172,39 @@ def handle(request: str) -> str:
         if not isinstance(request, str):
             response = _failure(None, [_err("request", "bad_request", "a request must be JSON text")])
         elif len(request) > MAX_REQUEST_CHARS:
-            response = _failure(None, [_err("request", "bad_request",
-                                            f"request is too large ({len(request)} characters; "
-                                            f"the limit is {MAX_REQUEST_CHARS})")])
+            response = _failure(
+                None,
+                [
+                    _err(
+                        "request",
+                        "bad_request",
+                        f"request is too large ({len(request)} characters; the limit is {MAX_REQUEST_CHARS})",
+                    )
+                ],
+            )
         else:
             try:
                 obj = json.loads(request, parse_constant=_reject_constant)
             except (ValueError, RecursionError) as exc:
-                response = _failure(None, [_err("request", "bad_request", f"request is not valid JSON: {exc}"[:300])])
+                response = _failure(
+                    None, [_err("request", "bad_request", f"request is not valid JSON: {exc}"[:300])]
+                )
             else:
                 response = handle_obj(obj)
         return json.dumps(response, allow_nan=False, ensure_ascii=False)
     except Exception:
-        return json.dumps(_failure(None, [_err("request", "internal_error",
-                                               "Tidewell could not answer this request (an internal error).")]))
+        return json.dumps(
+            _failure(
+                None,
+                [
+                    _err(
+                        "request",
+                        "internal_error",
+                        "Tidewell could not answer this request (an internal error).",
+                    )
+                ],
+            )
+        )
 
 
 def _reject_constant(name: str):

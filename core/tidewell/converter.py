@@ -47,14 +47,18 @@ def convert(inputs: Inputs, report: Report) -> None:
         field = "inputs.substance" if exc.field == "substance" else "inputs.to"
         raise InputErrors([InputError(field, exc.value, exc.problem, exc.hint, code=exc.code)]) from None
     if abs(result) > 1e300:
-        raise InputErrors([InputError("inputs.quantity.value", value, "is too large to convert",
-                                      code="out_of_range")])
+        raise InputErrors(
+            [InputError("inputs.quantity.value", value, "is too large to convert", code="out_of_range")]
+        )
     report.quantity("result", result, to)
     source = "bipm2019" if units.unit_family(to) == "pressure" else "nist811"
     if substance is not None and units.unit_family(unit) != units.unit_family(to):
         source = "iupac_masses"
-    formula = f"{unit} -> {to}" + (f" (molar mass of {substance}: {units.SUBSTANCES[substance][0]} g/mol)"
-                                   if source == "iupac_masses" else "")
+    formula = f"{unit} -> {to}" + (
+        f" (molar mass of {substance}: {units.SUBSTANCES[substance][0]} g/mol)"
+        if source == "iupac_masses"
+        else ""
+    )
     report.step(f"{value:g} {unit} in {to}", formula, result, source, output="result", unit=to)
 
 

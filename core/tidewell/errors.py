@@ -47,7 +47,9 @@ class InputError(ValueError):
         One of :data:`ERROR_CODES`.
     """
 
-    def __init__(self, field: str, value: object, problem: str, hint: str = "", *, code: str = "out_of_range"):
+    def __init__(
+        self, field: str, value: object, problem: str, hint: str = "", *, code: str = "out_of_range"
+    ):
         if code not in ERROR_CODES:
             raise ValueError(f"unknown error code {code!r}")
         self.field = field
@@ -89,7 +91,9 @@ def is_real(value: object) -> bool:
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
-def require_number(field: str, value: object, *, low: float, high: float, unit: str = "", hint: str = "") -> float:
+def require_number(
+    field: str, value: object, *, low: float, high: float, unit: str = "", hint: str = ""
+) -> float:
     """Return ``value`` as a float if it is a finite real number in ``[low, high]``.
 
     Raises

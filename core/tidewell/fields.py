@@ -75,8 +75,17 @@ class Inputs:
         return number
 
     # -- accessors --------------------------------------------------------------------------
-    def number(self, key: str, *, low: float, high: float, label: str | None = None, required: bool = False,
-               default: float | None = None, what: str = "") -> float | None:
+    def number(
+        self,
+        key: str,
+        *,
+        low: float,
+        high: float,
+        label: str | None = None,
+        required: bool = False,
+        default: float | None = None,
+        what: str = "",
+    ) -> float | None:
         """A bare number in ``[low, high]`` (``default`` when absent)."""
         label = label or key
         value = self._take(key, required, label)
@@ -93,9 +102,19 @@ class Inputs:
             return None
         return number
 
-    def quantity(self, key: str, *, unit: str, low: float, high: float, label: str | None = None,
-                 substance: str | None = None, required: bool = False, default: float | None = None,
-                 plausible_word: str = "is outside the accepted range") -> float | None:
+    def quantity(
+        self,
+        key: str,
+        *,
+        unit: str,
+        low: float,
+        high: float,
+        label: str | None = None,
+        substance: str | None = None,
+        required: bool = False,
+        default: float | None = None,
+        plausible_word: str = "is outside the accepted range",
+    ) -> float | None:
         """A ``{"value", "unit"}`` quantity converted to ``unit`` and checked against ``[low, high]``.
 
         ``low`` and ``high`` are in ``unit``. ``default`` (also in ``unit``) is returned when absent.
@@ -107,12 +126,21 @@ class Inputs:
         accepted = units.units_for(unit, substance=substance)
         if not isinstance(value, dict):
             if is_real(value):
-                self.fail(key, value, f"{label} needs a unit",
-                          f'Send {{"value": {value}, "unit": "{accepted[0]}"}}; accepted units: '
-                          + ", ".join(accepted), code="bad_unit")
+                self.fail(
+                    key,
+                    value,
+                    f"{label} needs a unit",
+                    f'Send {{"value": {value}, "unit": "{accepted[0]}"}}; accepted units: '
+                    + ", ".join(accepted),
+                    code="bad_unit",
+                )
             else:
-                self.fail(key, value, f'{label} must be an object {{"value": number, "unit": text}}',
-                          code="bad_request")
+                self.fail(
+                    key,
+                    value,
+                    f'{label} must be an object {{"value": number, "unit": text}}',
+                    code="bad_request",
+                )
             return None
         extra = sorted(set(value) - {"value", "unit"})
         if extra:
@@ -126,8 +154,9 @@ class Inputs:
             return None
         given_unit = value.get("unit")
         if given_unit is None:
-            self.fail(key, value, f"{label} needs a unit", "Accepted units: " + ", ".join(accepted),
-                      code="bad_unit")
+            self.fail(
+                key, value, f"{label} needs a unit", "Accepted units: " + ", ".join(accepted), code="bad_unit"
+            )
             return None
         if not isinstance(given_unit, str) or given_unit not in accepted:
             hint = "Accepted units: " + ", ".join(accepted)
@@ -148,17 +177,33 @@ class Inputs:
                 continue
             alt = units.convert(number, other, unit, substance=substance)
             if low <= alt <= high:
-                self.fail(key, value,
-                          f"{label} {_fmt(number)} {given_unit} {plausible_word} "
-                          f"({_fmt(low)} to {_fmt(high)} {unit})",
-                          f"Did you mean {_fmt(number)} {other}?", code="implausible")
+                self.fail(
+                    key,
+                    value,
+                    f"{label} {_fmt(number)} {given_unit} {plausible_word} "
+                    f"({_fmt(low)} to {_fmt(high)} {unit})",
+                    f"Did you mean {_fmt(number)} {other}?",
+                    code="implausible",
+                )
                 return None
-        self.fail(key, value, f"{label} {_fmt(number)} {given_unit} {plausible_word} "
-                  f"({_fmt(low)} to {_fmt(high)} {unit})", code="out_of_range")
+        self.fail(
+            key,
+            value,
+            f"{label} {_fmt(number)} {given_unit} {plausible_word} ({_fmt(low)} to {_fmt(high)} {unit})",
+            code="out_of_range",
+        )
         return None
 
-    def fraction(self, key: str, *, low: float = 0.21, high: float = 1.0, label: str | None = None,
-                 required: bool = False, default: float | None = None) -> float | None:
+    def fraction(
+        self,
+        key: str,
+        *,
+        low: float = 0.21,
+        high: float = 1.0,
+        label: str | None = None,
+        required: bool = False,
+        default: float | None = None,
+    ) -> float | None:
         """A fraction given bare (0.4) or as a percentage ``{"value": 40, "unit": "%"}``."""
         label = label or key
         value = self._take(key, required, label)
@@ -167,8 +212,12 @@ class Inputs:
         if isinstance(value, dict):
             extra = sorted(set(value) - {"value", "unit"})
             if extra or value.get("unit") not in ("%", "1"):
-                self.fail(key, value, f'{label} is a fraction (0.4) or {{"value": 40, "unit": "%"}}',
-                          code="bad_unit")
+                self.fail(
+                    key,
+                    value,
+                    f'{label} is a fraction (0.4) or {{"value": 40, "unit": "%"}}',
+                    code="bad_unit",
+                )
                 return None
             number = self._check_number(key, value.get("value"), label)
             if number is None:
@@ -183,14 +232,27 @@ class Inputs:
         if low <= number <= high:
             return number
         if low <= number / 100.0 <= high and not isinstance(value, dict):
-            self.fail(key, value, f"{label} {shown} is not a fraction ({_fmt(low)} to {_fmt(high)})",
-                      f"Did you mean {_fmt(number)} % ({number / 100:.2f})?", code="implausible")
+            self.fail(
+                key,
+                value,
+                f"{label} {shown} is not a fraction ({_fmt(low)} to {_fmt(high)})",
+                f"Did you mean {_fmt(number)} % ({number / 100:.2f})?",
+                code="implausible",
+            )
             return None
         self.fail(key, value, f"{label} {shown} must be {_fmt(low)} to {_fmt(high)}", code="out_of_range")
         return None
 
-    def percent(self, key: str, *, low: float = 0.0, high: float = 100.0, label: str | None = None,
-                required: bool = False, default: float | None = None) -> float | None:
+    def percent(
+        self,
+        key: str,
+        *,
+        low: float = 0.0,
+        high: float = 100.0,
+        label: str | None = None,
+        required: bool = False,
+        default: float | None = None,
+    ) -> float | None:
         """A percentage (saturation) given bare (92) or as ``{"value": 92, "unit": "%"}``."""
         label = label or key
         value = self._take(key, required, label)
@@ -198,8 +260,12 @@ class Inputs:
             return default
         if isinstance(value, dict):
             if sorted(value) != ["unit", "value"] or value.get("unit") != "%":
-                self.fail(key, value, f'{label} is a percentage (92) or {{"value": 92, "unit": "%"}}',
-                          code="bad_unit")
+                self.fail(
+                    key,
+                    value,
+                    f'{label} is a percentage (92) or {{"value": 92, "unit": "%"}}',
+                    code="bad_unit",
+                )
                 return None
             value = value["value"]
         number = self._check_number(key, value, label)
@@ -208,14 +274,26 @@ class Inputs:
         if low <= number <= high:
             return number
         if 0 < number <= 1 and low <= number * 100 <= high:
-            self.fail(key, value, f"{label} {_fmt(number)} is a percentage ({_fmt(low)} to {_fmt(high)} %)",
-                      f"Did you mean {_fmt(number * 100)} %?", code="implausible")
+            self.fail(
+                key,
+                value,
+                f"{label} {_fmt(number)} is a percentage ({_fmt(low)} to {_fmt(high)} %)",
+                f"Did you mean {_fmt(number * 100)} %?",
+                code="implausible",
+            )
             return None
         self.fail(key, value, f"{label} must be {_fmt(low)} to {_fmt(high)} %", code="out_of_range")
         return None
 
-    def choice(self, key: str, choices: tuple[str, ...], *, default: str | None = None, label: str | None = None,
-               required: bool = False) -> str | None:
+    def choice(
+        self,
+        key: str,
+        choices: tuple[str, ...],
+        *,
+        default: str | None = None,
+        label: str | None = None,
+        required: bool = False,
+    ) -> str | None:
         """One word of ``choices``."""
         label = label or key
         value = self._take(key, required, label)
@@ -261,8 +339,15 @@ class Inputs:
             if key not in self.read and key not in known:
                 close = difflib.get_close_matches(str(key), names, n=1, cutoff=0.6)
                 hint = f"Did you mean '{close[0]}'?" if close else "Accepted: " + ", ".join(names)
-                self.errors.append(InputError(self.field(str(key)), _ABSENT_REPR,
-                                              "is not an input of this calculation", hint, code="unknown_input"))
+                self.errors.append(
+                    InputError(
+                        self.field(str(key)),
+                        _ABSENT_REPR,
+                        "is not an input of this calculation",
+                        hint,
+                        code="unknown_input",
+                    )
+                )
         if self.errors:
             raise InputErrors(self.errors)
 

@@ -45,8 +45,14 @@ def inspired_po2(*, fio2_fraction: float, pb_mmhg: float = 760.0, ph2o_mmhg: flo
     return fio2 * (pb - ph2o)
 
 
-def alveolar_po2_simple(*, fio2_fraction: float, paco2_mmhg: float, pb_mmhg: float = 760.0, rq: float = 0.8,
-                        ph2o_mmhg: float = PH2O_37_MMHG) -> float:
+def alveolar_po2_simple(
+    *,
+    fio2_fraction: float,
+    paco2_mmhg: float,
+    pb_mmhg: float = 760.0,
+    rq: float = 0.8,
+    ph2o_mmhg: float = PH2O_37_MMHG,
+) -> float:
     """Alveolar PO2, simplified alveolar gas equation: PAO2 = FiO2 (PB - PH2O) - PaCO2 / R.
 
     Examples
@@ -59,8 +65,14 @@ def alveolar_po2_simple(*, fio2_fraction: float, paco2_mmhg: float, pb_mmhg: flo
     return inspired_po2(fio2_fraction=fio2_fraction, pb_mmhg=pb_mmhg, ph2o_mmhg=ph2o_mmhg) - paco2 / r
 
 
-def alveolar_po2_full(*, fio2_fraction: float, paco2_mmhg: float, pb_mmhg: float = 760.0, rq: float = 0.8,
-                      ph2o_mmhg: float = PH2O_37_MMHG) -> float:
+def alveolar_po2_full(
+    *,
+    fio2_fraction: float,
+    paco2_mmhg: float,
+    pb_mmhg: float = 760.0,
+    rq: float = 0.8,
+    ph2o_mmhg: float = PH2O_37_MMHG,
+) -> float:
     """Alveolar PO2, full alveolar gas equation: PAO2 = PIO2 - PaCO2 x (FiO2 + (1 - FiO2) / R).
 
     Examples

@@ -65,8 +65,18 @@ class Report:
         self.put(name, {"value": value, "unit": unit}, decimals=decimals)
 
     # -- explanation -------------------------------------------------------------------------
-    def step(self, label: str, formula: str, result, source: str | tuple[str, ...], *, output: str | None = None,
-             pressure: bool = False, unit: str | None = None, inputs: dict | None = None) -> None:
+    def step(
+        self,
+        label: str,
+        formula: str,
+        result,
+        source: str | tuple[str, ...],
+        *,
+        output: str | None = None,
+        pressure: bool = False,
+        unit: str | None = None,
+        inputs: dict | None = None,
+    ) -> None:
         """Record a step. ``source`` is a reference key (or several); ``pressure=True`` means
         ``result`` is a pressure in mmHg to be shown in the user's unit; ``unit`` makes it a quantity."""
         keys = (source,) if isinstance(source, str) else tuple(source)
@@ -78,8 +88,13 @@ class Report:
         elif unit is not None:
             result = {"value": result, "unit": unit}
         _check_finite(label, result)
-        entry = {"label": label, "formula": formula, "result": result,
-                 "source": "; ".join(REFERENCES[k].short for k in keys), "source_keys": list(keys)}
+        entry = {
+            "label": label,
+            "formula": formula,
+            "result": result,
+            "source": "; ".join(REFERENCES[k].short for k in keys),
+            "source_keys": list(keys),
+        }
         if output is not None:
             entry["output"] = output
         if inputs:

@@ -144,9 +144,23 @@ def _unit_hint(unit: object) -> str:
 
     close = difflib.get_close_matches(unit, ALL_UNITS, n=1, cutoff=0.5)
     folded = {u.lower(): u for u in ALL_UNITS}
-    aliases = {"torr": "mmHg", "mm hg": "mmHg", "c": "degC", "°c": "degC", "f": "degF", "°f": "degF",
-               "meq/l": "mEq/L", "mmol/l": "mmol/L", "ml": "mL", "l": "L", "lpm": "L/min", "l/min": "L/min"}
-    guess = aliases.get(unit.strip().lower()) or folded.get(unit.strip().lower()) or (close[0] if close else "")
+    aliases = {
+        "torr": "mmHg",
+        "mm hg": "mmHg",
+        "c": "degC",
+        "°c": "degC",
+        "f": "degF",
+        "°f": "degF",
+        "meq/l": "mEq/L",
+        "mmol/l": "mmol/L",
+        "ml": "mL",
+        "l": "L",
+        "lpm": "L/min",
+        "l/min": "L/min",
+    }
+    guess = (
+        aliases.get(unit.strip().lower()) or folded.get(unit.strip().lower()) or (close[0] if close else "")
+    )
     return f"Did you mean '{guess}'?" if guess else "Known units: " + ", ".join(ALL_UNITS)
 
 
@@ -182,8 +196,13 @@ def convert(value: float, from_unit: str, to_unit: str, *, substance: str | None
     """
     fam_from, fam_to = unit_family(from_unit), unit_family(to_unit)
     if substance is not None and substance not in SUBSTANCES:
-        raise InputError("substance", substance, "is not a substance Tidewell can convert",
-                         "Known: " + ", ".join(SUBSTANCES), code="bad_unit")
+        raise InputError(
+            "substance",
+            substance,
+            "is not a substance Tidewell can convert",
+            "Known: " + ", ".join(SUBSTANCES),
+            code="bad_unit",
+        )
     if fam_from == "temperature" or fam_to == "temperature":
         if fam_from != fam_to:
             raise _mismatch(from_unit, to_unit)
@@ -195,8 +214,13 @@ def convert(value: float, from_unit: str, to_unit: str, *, substance: str | None
     pair = {fam_from, fam_to}
     if pair == {"amount_concentration", "mass_concentration"}:
         if substance is None:
-            raise InputError("substance", None, f"is needed to convert {from_unit} to {to_unit}",
-                             "Name the substance, e.g. 'glucose'.", code="missing")
+            raise InputError(
+                "substance",
+                None,
+                f"is needed to convert {from_unit} to {to_unit}",
+                "Name the substance, e.g. 'glucose'.",
+                code="missing",
+            )
         molar_mass = SUBSTANCES[substance][0]
         if fam_from == "mass_concentration":
             g_per_l = value * _LINEAR[from_unit][1]
@@ -209,8 +233,9 @@ def convert(value: float, from_unit: str, to_unit: str, *, substance: str | None
 
 
 def _mismatch(from_unit: str, to_unit: str) -> InputError:
-    return InputError("unit", from_unit, f"cannot be converted to {to_unit} (different kinds of quantity)",
-                      code="bad_unit")
+    return InputError(
+        "unit", from_unit, f"cannot be converted to {to_unit} (different kinds of quantity)", code="bad_unit"
+    )
 
 
 def _to_celsius(value: float, unit: str) -> float:
