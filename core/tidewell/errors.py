@@ -74,7 +74,16 @@ class InputErrors(ValueError):
         super().__init__("; ".join(str(e) for e in self.errors))
 
 
-_MISSING = object()
+class _Nothing:
+    """Placeholder for "no value was sent": messages about it show no "(got ...)"."""
+
+    def __repr__(self) -> str:
+        return ""
+
+
+#: pass as ``value`` when the problem is that nothing was sent
+NOTHING = _Nothing()
+_MISSING = NOTHING
 
 
 def _show(value: object) -> str:

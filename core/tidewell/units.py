@@ -37,7 +37,7 @@ from __future__ import annotations
 
 import math
 
-from .errors import InputError
+from .errors import NOTHING, InputError
 
 #: 1 mmHg in pascals (conventional millimetre of mercury, exact by definition).
 MMHG_PA = 133.322387415
@@ -216,7 +216,7 @@ def convert(value: float, from_unit: str, to_unit: str, *, substance: str | None
         if substance is None:
             raise InputError(
                 "substance",
-                None,
+                NOTHING,
                 f"is needed to convert {from_unit} to {to_unit}",
                 "Name the substance, e.g. 'glucose'.",
                 code="missing",
