@@ -367,8 +367,189 @@ REFERENCES: dict[str, Ref] = {
         "Interpolating between the acute and chronic compensation rules; bands >= 0.8 acute, <= 0.2 chronic.",
         "common practice",
     ),
+    "gabow1980": _r(
+        "Gabow et al. 1980",
+        "Gabow PA, Kaehny WD, Fennessey PV, Goodman SI, Gross PA, Schrier RW. Diagnostic importance of an "
+        "increased serum anion gap. N Engl J Med 1980;303:854-8 (an anion gap above about 20 mmol/L points "
+        "to a metabolic acidosis whatever the HCO3).",
+        "from memory",
+    ),
+    "acid_base_normal_ranges": _r(
+        "Normal arterial acid-base values",
+        "pH 7.35-7.45, PaCO2 35-45 mmHg (4.7-6.0 kPa), HCO3 22-26 mmol/L, SBE -2 to +2 (some texts -3 to "
+        "+3), anion gap about 12 mmol/L, albumin 4.0 g/dL.",
+        "common practice",
+    ),
+    "ph_severity": _r(
+        "Severe acidaemia / alkalaemia",
+        "Severe acidaemia pH below 7.20; severe alkalaemia pH above 7.60 (bedside thresholds).",
+        "common practice",
+    ),
+    "compensation_timing": _r(
+        "Time course and limits of compensation",
+        "Respiratory compensation takes 12-24 h and renal compensation 3-5 days; compensation rarely returns "
+        "the pH to normal in a simple disorder, chronic respiratory alkalosis excepted.",
+        "common practice",
+    ),
+    "posthypercapnic_alkalosis": _r(
+        "Post-hypercapnic metabolic alkalosis",
+        "In chronic hypercapnia the kidneys retain HCO3 over days; lowering the PaCO2 quickly below the "
+        "patient's usual level leaves that HCO3 unopposed and the blood alkalaemic (post-hypercapnic "
+        "metabolic alkalosis), so ventilation aims at the patient's baseline PaCO2, not at 40 mmHg.",
+        "common practice",
+    ),
+    "sample_site_caveats": _r(
+        "Venous and capillary samples",
+        "Venous pH and HCO3 track arterial values closely (venous pH slightly lower, PCO2 higher); a normal "
+        "venous PCO2 makes arterial hypercapnia unlikely but a raised one does not measure it; venous PO2 "
+        "says nothing about oxygenation; arterialised capillary pH and PCO2 approximate arterial values "
+        "while capillary PO2 underestimates arterial PO2.",
+        "common practice",
+    ),
+    "stewart_typical_values": _r(
+        "Typical adult values assumed for missing Stewart terms",
+        "Ionised calcium 1.2 mmol/L, magnesium 0.9 mmol/L, phosphate 1.0 mmol/L (mid reference ranges), "
+        "used only when not measured and always named in the report.",
+        "common practice",
+    ),
+    "tidewell_acid_base_conventions": _r(
+        "Tidewell interpretation conventions",
+        "Conventions of the Tidewell blood_gas interpretation (docs/glossary/acidbase.md): a compensation "
+        "band is widened by max(2 mmol/L, 0.2 x the acute-chronic span) before a second disorder is named; "
+        "the larger log-ratio contribution to [H+] names the primary process; SBE readings use +/- 3 mmol/L.",
+        "common practice",
+    ),
     # -- additions: acid-base and blood gas (keep this line: it is an edit anchor) --
+    "buck1981": _r(
+        "Buck 1981",
+        "Buck AL. New equations for computing vapor pressure and enhancement factor. J Appl Meteorol "
+        "1981;20:1527-32 (eq 3 over liquid water, e = 6.1121 exp(17.502 T / (240.97 + T)) hPa; "
+        "coefficients verified in a public package's documentation citing Buck eq 3).",
+    ),
+    "hill1910": _r(
+        "Hill 1910",
+        "Hill AV. The possible effects of the aggregation of the molecules of haemoglobin on its "
+        "dissociation curves. J Physiol 1910;40:iv-vii (Hill equation; n 2.7, P50 26.8 mmHg as used here).",
+        "from memory",
+    ),
+    "jette1990_met": _r(
+        "Jette, Sidney & Blumchen 1990 (1 MET)",
+        "Jette M, Sidney K, Blumchen G. Metabolic equivalents (METS) in exercise testing, exercise "
+        "prescription, and evaluation of functional capacity. Clin Cardiol 1990;13:555-65 "
+        "(1 MET = 3.5 mL O2/kg/min; x R 0.8 gives a resting VCO2 of 2.8 mL/kg/min).",
+        "from memory",
+    ),
+    "resting_vco2": _r(
+        "Resting adult VCO2 about 200 mL/min",
+        "Resting adult CO2 output about 200 mL/min (VO2 about 250 mL/min, R 0.8); standard "
+        "respiratory-physiology teaching, e.g. West JB, Respiratory Physiology: The Essentials.",
+        "from memory",
+    ),
+    "enghoff1938": _r(
+        "Enghoff 1938",
+        "Enghoff H. Volumen inefficax. Bemerkungen zur Frage des schadlichen Raumes. Upsala "
+        "Lakareforen Forh 1938;44:191-218 (Bohr equation with arterial PCO2).",
+        "from memory",
+    ),
+    "bohr1891": _r(
+        "Bohr 1891",
+        "Bohr C. Ueber die Lungenathmung. Skand Arch Physiol 1891;2:236-68 (dead space from mixed "
+        "expired and alveolar CO2).",
+        "from memory",
+    ),
+    "nunn1960": _r(
+        "Nunn & Hill 1960",
+        "Nunn JF, Hill DW. Respiratory dead space and arterial to end-tidal CO2 tension difference in "
+        "anesthetized man. J Appl Physiol 1960;15:383-9 (physiological VD about 0.3 VT; authorship "
+        "from memory, values verified in the abstract).",
+    ),
+    "normal_ventilation": _r(
+        "Normal resting minute ventilation 5-8 L/min",
+        "Resting adult minute ventilation 5-8 L/min; normal VD/VT 0.2-0.35.",
+        "common practice",
+    ),
+    "pco2_normal_range": _r(
+        "Normal PaCO2 35-45 mmHg",
+        "Normal arterial PCO2 35-45 mmHg (4.7-6.0 kPa); hypercapnia above 45 mmHg (6.0 kPa).",
+    ),
+    "expiratory_time": _r(
+        "Expiratory time from RR and I:E",
+        "Te = (60 / RR) x E / (I + E); complete passive expiration needs about 3 expiratory time "
+        "constants (R x C), so a short Te risks gas trapping (auto-PEEP) in obstructive disease.",
+        "common practice",
+    ),
+    "to_target_pco2": _r(
+        "Ventilator change to a target PaCO2",
+        "With CO2 output constant, alveolar ventilation scales as PaCO2 now / PaCO2 target "
+        "(alveolar ventilation equation); VE scaled the same way assumes VD/VT unchanged.",
+        "common practice",
+    ),
+    "co2_log_shares": _r(
+        "Tidewell log decomposition of the CO2 excess",
+        "Derived here from the alveolar ventilation equation PaCO2 = 0.863 VCO2 / (VE (1 - VD/VT)): "
+        "ln(PaCO2 / PaCO2ref) is the exact sum of ln(VCO2 / VCO2ref), ln(VEref / VE) and "
+        "ln((1 - VD/VTref) / (1 - VD/VT)); not a published method.",
+        "common practice",
+    ),
+    "etco2_gradient": _r(
+        "Constant PaCO2-EtCO2 gradient",
+        "Tracking PaCO2 from EtCO2 assumes the arterial-to-end-tidal gradient stays constant; it "
+        "changes with dead space, cardiac output and position (normal about 2-5 mmHg).",
+        "common practice",
+    ),
+    "alpha_ph_stat": _r(
+        "Alpha-stat and pH-stat",
+        "Alpha-stat management interprets uncorrected 37 degC values; pH-stat aims at pH 7.40 and "
+        "PaCO2 40 mmHg at the patient's temperature (temperature-corrected values).",
+        "common practice",
+    ),
     # -- additions: oxygenation, ventilation, temperature (keep this line: it is an edit anchor) --
+    "aviation_o2_equivalence": _r(
+        "Aviation-medicine chapter (8,000 ft ~ 15.1 % O2)",
+        "Aviation-medicine book chapter (Taylor & Francis): a cabin altitude of 8,000 ft is equivalent "
+        "to breathing about 15.1 % oxygen at sea level, and a healthy PaO2 falls to about 8.7 kPa "
+        "(as summarised in the project's REFERENCE.md 10.2).",
+    ),
+    "bts2011_inflight_threshold": _r(
+        "BTS 2011 in-flight oxygen threshold (from memory)",
+        "Ahmedzai S, et al. BTS recommendations for air travel. Thorax 2011;66 Suppl 1:i1-30: in-flight "
+        "oxygen advised when the hypoxic-challenge PaO2 is below 6.6 kPa (about 50 mmHg) or SpO2 below "
+        "85 % (threshold recalled, not re-read).",
+        "from memory",
+    ),
+    "air_o2_fraction": _r(
+        "O2 fraction of dry air 0.2095",
+        "Dry air contains 20.95 % oxygen by volume (US Standard Atmosphere 1976 sea-level composition "
+        "20.946 %; recalled, not re-read).",
+        "from memory",
+    ),
+    "coolprop2014": _r(
+        "CoolProp (Bell et al. 2014)",
+        "Bell IH, Wronski J, Quoilin S, Lemort V. Pure and pseudo-pure fluid thermophysical property "
+        "evaluation and the open-source thermophysical property library CoolProp. Ind Eng Chem Res "
+        "2014;53:2498-508 (oxygen Z about 0.931 at 137-200 bar and 0.939 at 230 bar, 15 degC, as "
+        "computed for REFERENCE.md 11; citation details from memory).",
+        "from memory",
+    ),
+    "ventilator_o2_estimate": _r(
+        "Ventilator oxygen use (mixing balance + device allowance)",
+        "O2 drawn = VE x (FiO2 - 0.2095) / (1 - 0.2095) + a device allowance (bias/trigger flow, leaks; "
+        "driving gas of pneumatic ventilators from the device manual).",
+        "common practice",
+    ),
+    "trapped_gas_practice": _r(
+        "Trapped gas in flight (cuffs, pneumothorax)",
+        "Air-filled tube cuffs gain pressure on ascent (check cuff pressure after climb and on descent, "
+        "or fill with saline per local practice); an undrained pneumothorax enlarges at altitude.",
+        "common practice",
+    ),
+    "fio2_altitude_rules": _r(
+        "FiO2 at altitude: (PB - 47) ratio and PB ratio",
+        "FiO2_alt = FiO2_ground x (PB_ground - 47) / (PB_alt - 47) keeps the inspired PO2 (follows from "
+        "equal PIO2; water-vapour-corrected PIO2 as in an Arch Dis Child altitude table footnote); the "
+        "simple rule FiO2_ground x PB_ground / PB_alt is the bedside shortcut.",
+        "common practice",
+    ),
     # -- additions: altitude and transport (keep this line: it is an edit anchor) --
     # -- additions: shell, uncertainty, other (keep this line: it is an edit anchor) --
 }

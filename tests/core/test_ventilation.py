@@ -1,0 +1,305 @@
+"""Ventilation domain functions: worked cases VN-01..VN-06, the mechanisms decomposition, error paths.
+
+Provenance words beside each check: "published", "derived" (hand-computed from the cited equation),
+"common practice", "from memory".
+"""
+
+from __future__ import annotations
+
+import itertools
+import json
+import math
+from pathlib import Path
+
+import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
+
+from tidewell import ventilation as vn
+from tidewell.errors import InputError
+
+CASES = {
+    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
+}
+
+
+def close(case_id: str, key: str, value: float) -> None:
+    case = CASES[case_id]
+    assert value == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+
+
+# -- VN-01: alveolar_ventilation (0.863 derived from STPD -> BTPS, REFERENCE.md 8) -----------------------
+def test_vn01_ve_va_and_predicted_paco2():
+    close("VN-01", "ve_L_min", vn.minute_ventilation(vt_ml=500, rr_per_min=12))  # derived
+    va = vn.alveolar_ventilation(vt_ml=500, vd_ml=150, rr_per_min=12)
+    close("VN-01", "va_L_min", va)  # derived
+    close("VN-01", "paco2_predicted_mmHg", vn.paco2_from_alveolar_ventilation(vco2_ml_min=200, va_l_min=va))
+    close("VN-01", "k_constant", vn.K_CO2)  # derived: 760 x 310.15 / 273.15 / 1000
+
+
+def test_k_constant_is_the_textbook_0863():
+    # alveolar_ventilation (common practice): the textbook constant 0.863
+    assert round(vn.K_CO2, 3) == 0.863
+
+
+# -- VN-02: tusman2012 (verified), Enghoff/Bohr; alveolar dead space from EtCO2 (from memory) ----------------
+def test_vn02_dead_space_fractions():
+    close("VN-02", "vd_vt_enghoff", vn.vd_vt_enghoff(paco2_mmhg=50, peco2_mmhg=25))
+    close("VN-02", "vd_vt_bohr", vn.vd_vt_bohr(paco2_alveolar_mmhg=40, peco2_mmhg=25))
+    close(
+        "VN-02", "vdalv_fraction_from_petco2", vn.alveolar_dead_space_fraction(paco2_mmhg=50, etco2_mmhg=35)
+    )
+
+
+def test_vd_vt_from_vco2_matches_forward_equation():
+    # derived: VN-01 forward (VE 6, VD/VT 0.3, VCO2 200 -> PaCO2 41.09) inverted gives VD/VT 0.3 back
+    paco2 = vn.paco2_from_alveolar_ventilation(vco2_ml_min=200, va_l_min=4.2)
+    assert vn.vd_vt_from_vco2(paco2_mmhg=paco2, vco2_ml_min=200, ve_l_min=6.0) == pytest.approx(0.3)
+
+
+def test_vco2_from_expired_co2_closes_the_enghoff_equation():
+    # derived: VCO2 = VE x PECO2 / K and Enghoff VD/VT put back into PaCO2 = K VCO2 / (VE (1 - VD/VT))
+    vco2 = vn.vco2_from_expired_co2(ve_l_min=7.0, peco2_mmhg=22.0)
+    d = vn.vd_vt_enghoff(paco2_mmhg=55.0, peco2_mmhg=22.0)
+    assert vn.K_CO2 * vco2 / (7.0 * (1 - d)) == pytest.approx(55.0)
+
+
+# -- VN-03: to_target_pco2 (common practice; derived from the alveolar ventilation equation) ----------------
+def test_vn03_to_target():
+    r = vn.to_target(vt_ml=500, rr_per_min=16, vd_ml=150, paco2_mmhg=60, target_paco2_mmhg=45)
+    close("VN-03", "ve_new_L_min", r.ve_l_min)
+    close("VN-03", "va_now_L_min", r.va_now_l_min)
+    close("VN-03", "va_new_L_min", r.va_new_l_min)
+    close("VN-03", "rr_new_fixed_vt_min", r.rr_at_same_vt)
+    close("VN-03", "vt_new_fixed_rr_mL", r.vt_at_same_rr_ml)
+
+
+def test_to_target_reaches_the_target():
+    # derived: the new settings put back into PaCO2 = K VCO2 / VA give the target for any VCO2
+    r = vn.to_target(vt_ml=450, rr_per_min=14, vd_ml=180, paco2_mmhg=70, target_paco2_mmhg=50)
+    vco2 = 70 * r.va_now_l_min / vn.K_CO2
+    va_rr = (450 - 180) * r.rr_at_same_vt / 1000
+    va_vt = (r.vt_at_same_rr_ml - 180) * 14 / 1000
+    for va in (va_rr, va_vt, r.va_new_l_min):
+        assert vn.paco2_from_alveolar_ventilation(vco2_ml_min=vco2, va_l_min=va) == pytest.approx(50.0)
+
+
+# -- VN-04: ardsnet2000 PBW (verified formulas), numa1996 2.2 mL/kg (verified) -------------------------------
+def test_vn04_predicted_body_weight_and_tidal_volumes():
+    male = vn.predicted_body_weight_ardsnet(height_cm=175, sex="male")
+    female = vn.predicted_body_weight_ardsnet(height_cm=160, sex="female")
+    close("VN-04", "pbw_male_kg", male)
+    close("VN-04", "pbw_female_kg", female)
+    bm, bf = vn.lung_protective_vt(pbw_kg=male), vn.lung_protective_vt(pbw_kg=female)
+    close("VN-04", "vt6_male_mL", bm.target_ml)
+    close("VN-04", "vt8_male_mL", bm.high_ml)
+    close("VN-04", "vt6_female_mL", bf.target_ml)
+    close("VN-04", "vt8_female_mL", bf.high_ml)
+    close("VN-04", "anatomic_vd_male_mL", vn.anatomical_dead_space(pbw_kg=male))
+
+
+def test_pbw_inch_form_agrees():
+    # ardsnet2000 inch form 50 + 2.3 (in - 60). REFERENCE.md 13 says the forms differ by <= 0.1 kg; derived
+    # here: they differ by (0.91 - 2.3 / 2.54) x (cm - 152.4) = 0.0045 kg per cm, so <= 0.1 kg up to about
+    # 174 cm and 0.21 kg at 200 cm (the cm form, the recommended default, is used).
+    for cm in range(150, 201, 5):
+        inch = cm / 2.54
+        diff = vn.predicted_body_weight_ardsnet(height_cm=cm, sex="male") - (50 + 2.3 * (inch - 60))
+        assert diff == pytest.approx((0.91 - 2.3 / 2.54) * (cm - 152.4), abs=1e-9)
+        if cm <= 174:
+            assert abs(diff) <= 0.1
+
+
+# -- VN-05: expiratory_time (common practice) ----------------------------------------------------------------
+def test_vn05_expiratory_time():
+    t = vn.respiratory_timing(rr_per_min=20, i_part=1, e_part=2)
+    close("VN-05", "te_s", t.te_s)
+    close("VN-05", "ti_s", t.ti_s)
+    close("VN-05", "te2_s", vn.respiratory_timing(rr_per_min=12, i_part=1, e_part=3).te_s)
+
+
+@pytest.mark.parametrize("text", ["1-2", "1:", "a:b", "1:2:3", "0:2", "1:20", ""])
+def test_bad_ie_ratio(text):
+    with pytest.raises(InputError, match="ie_ratio"):
+        vn.parse_ie_ratio(text)
+
+
+# -- VN-06: fever_vco2 (verified 10-13 %/degC), linear -------------------------------------------------------
+def test_vn06_fever():
+    v10 = vn.vco2_with_fever(vco2_ml_min=200, temperature_c=39.5)
+    v13 = vn.vco2_with_fever(vco2_ml_min=200, temperature_c=39.5, rate_per_degc=0.13)
+    close("VN-06", "vco2_10pct_mL_min", v10)
+    close("VN-06", "vco2_13pct_mL_min", v13)
+    close(
+        "VN-06",
+        "paco2_at_fixed_va_10pct_mmHg",
+        vn.paco2_from_alveolar_ventilation(vco2_ml_min=v10, va_l_min=4.2),
+    )
+    close(
+        "VN-06",
+        "paco2_at_fixed_va_13pct_mmHg",
+        vn.paco2_from_alveolar_ventilation(vco2_ml_min=v13, va_l_min=4.2),
+    )
+    close(
+        "VN-06",
+        "va_needed_for_40_10pct_L_min",
+        vn.alveolar_ventilation_for_paco2(vco2_ml_min=v10, paco2_mmhg=40),
+    )
+
+
+def test_fever_rule_leaves_normothermia_and_hypothermia_alone():
+    # decision (module docstring): no change at or below 37 degC
+    assert vn.vco2_with_fever(vco2_ml_min=200, temperature_c=37.0) == 200.0
+    assert vn.vco2_with_fever(vco2_ml_min=200, temperature_c=34.0) == 200.0
+
+
+def test_resting_vco2_estimate():
+    # jette1990_met (from memory): 3.5 mL O2/kg/min x R 0.8 = 2.8 mL/kg/min; resting_vco2 (from memory) 200
+    assert vn.vco2_resting_estimate(weight_kg=70) == pytest.approx(196.0)
+    assert vn.vco2_resting_estimate() == 200.0
+
+
+# -- monotonicity: more VE, lower PaCO2 (alveolar_ventilation, derived) --------------------------------------
+def test_more_ventilation_lowers_paco2():
+    values = [vn.paco2_from_alveolar_ventilation(vco2_ml_min=200, va_l_min=va / 10) for va in range(10, 200)]
+    assert all(b < a for a, b in itertools.pairwise(values))
+
+
+# -- error paths ---------------------------------------------------------------------------------------------
+@pytest.mark.parametrize("vd", [500, 600])
+def test_dead_space_not_below_tidal_volume_is_inconsistent(vd):
+    with pytest.raises(InputError) as info:
+        vn.alveolar_ventilation(vt_ml=500, vd_ml=vd, rr_per_min=12)
+    assert info.value.code == "inconsistent" and info.value.field == "vd_ml"
+
+
+def test_peco2_not_below_paco2_is_inconsistent():
+    with pytest.raises(InputError) as info:
+        vn.vd_vt_enghoff(paco2_mmhg=40, peco2_mmhg=40)
+    assert info.value.code == "inconsistent"
+
+
+def test_vco2_that_cannot_be_cleared_is_inconsistent():
+    # derived: VE 3 L/min at PaCO2 30 clears at most 3 x 30 / 0.863 = 104 mL/min; 200 is impossible
+    with pytest.raises(InputError) as info:
+        vn.vd_vt_from_vco2(paco2_mmhg=30, vco2_ml_min=200, ve_l_min=3.0)
+    assert info.value.code == "inconsistent" and info.value.field == "vco2_ml_min"
+
+
+@pytest.mark.parametrize("bad", [float("nan"), float("inf"), True, "500", None, 10.0, 5000.0])
+def test_tidal_volume_rejects_non_numbers_and_out_of_range(bad):
+    with pytest.raises(InputError, match="vt_ml"):
+        vn.minute_ventilation(vt_ml=bad, rr_per_min=12)
+
+
+# -- mechanisms (co2_log_shares: derived here from the alveolar ventilation equation) ------------------------
+VCO2_REF = 200.0
+VE_REF = vn.K_CO2 * VCO2_REF / (40.0 * 0.7)  # the reference VE that gives 40 mmHg exactly (6.164 L/min)
+
+
+def model_paco2(ve, d, vco2):
+    return vn.K_CO2 * vco2 / (ve * (1 - d))
+
+
+def mech(ve, d, vco2, paco2=None):
+    return vn.co2_mechanisms(
+        paco2_mmhg=model_paco2(ve, d, vco2) if paco2 is None else paco2,
+        ve_l_min=ve,
+        vd_vt=d,
+        vco2_ml_min=vco2,
+        vco2_reference_ml_min=VCO2_REF,
+    )
+
+
+def test_reference_state_reproduces_40():
+    # derived: VE_ref is defined so that the reference values give exactly 40 mmHg (no residual)
+    assert model_paco2(VE_REF, 0.3, VCO2_REF) == pytest.approx(40.0)
+    assert 5.0 <= VE_REF <= 8.0  # normal_ventilation (common practice): 5-8 L/min
+    assert VE_REF == pytest.approx(6.164, abs=0.001)
+
+
+@pytest.mark.parametrize(
+    ("ve", "d", "vco2", "cause"),
+    [
+        (VE_REF / 2, 0.3, VCO2_REF, "ventilation"),  # hand-built: only VE is off reference (PaCO2 80)
+        (VE_REF, 0.65, VCO2_REF, "dead_space"),  # only VD/VT (PaCO2 40 x 0.7 / 0.35 = 80)
+        (VE_REF, 0.3, 1.5 * VCO2_REF, "co2_production"),  # only VCO2 (PaCO2 60)
+    ],
+)
+def test_single_cause_gets_the_whole_share(ve, d, vco2, cause):
+    m = mech(ve, d, vco2)
+    assert m.shares[cause] == pytest.approx(1.0, abs=1e-9)
+    assert sum(m.shares.values()) == pytest.approx(1.0)
+    assert m.residual_log == pytest.approx(0.0, abs=1e-12)
+    assert m.paco2_if_normal_mmhg[cause] == pytest.approx(40.0)
+
+
+def test_two_causes_split_by_their_logs():
+    # hand-built: VE at half (x2) and VCO2 x2: PaCO2 160 = 40 x 2 x 2; equal log terms -> 0.5 / 0.5
+    m = mech(VE_REF / 2, 0.3, 2 * VCO2_REF)
+    assert m.paco2_model_mmhg == pytest.approx(160.0)
+    assert m.shares["ventilation"] == pytest.approx(0.5)
+    assert m.shares["co2_production"] == pytest.approx(0.5)
+    assert m.shares["dead_space"] == 0.0
+
+
+def test_lowering_cause_is_reported_separately_not_as_negative_share():
+    # hand-built: high VD/VT 0.65 (x2) partly offset by VE x1.25: shares only over the raising cause
+    m = mech(VE_REF * 1.25, 0.65, VCO2_REF)
+    assert m.shares == {"ventilation": 0.0, "dead_space": pytest.approx(1.0), "co2_production": 0.0}
+    assert m.lowering == ("ventilation",)
+    assert m.log_terms["ventilation"] == pytest.approx(-math.log(1.25))
+    # if ventilation were at reference the PaCO2 would be higher (80 mmHg): derived
+    assert m.paco2_if_normal_mmhg["ventilation"] == pytest.approx(80.0)
+
+
+def test_log_terms_sum_to_the_log_ratio():
+    m = mech(4.1, 0.47, 260.0)
+    total = sum(m.log_terms.values())
+    assert total == pytest.approx(math.log(m.paco2_model_mmhg / 40.0))
+
+
+def test_residual_when_measured_values_do_not_close():
+    # measured PaCO2 10 % above the model of the three measured values: residual ln(1.1), not shared out
+    paco2 = model_paco2(VE_REF / 2, 0.3, VCO2_REF) * 1.1
+    m = mech(VE_REF / 2, 0.3, VCO2_REF, paco2=paco2)
+    assert m.residual_log == pytest.approx(math.log(1.1))
+    assert m.shares["ventilation"] == pytest.approx(1.0)
+
+
+def test_no_raising_cause_gives_no_shares():
+    m = mech(VE_REF * 1.2, 0.25, VCO2_REF, paco2=50.0)
+    assert m.shares is None and m.raising == ()
+
+
+@settings(max_examples=400, deadline=None)
+@given(
+    ve=st.floats(min_value=1.0, max_value=30.0),
+    d=st.floats(min_value=0.05, max_value=0.9),
+    factor=st.floats(min_value=0.5, max_value=3.0),
+)
+def test_shares_sum_to_one_and_are_fractions(ve, d, factor):
+    vco2 = VCO2_REF * factor
+    paco2 = model_paco2(ve, d, vco2)
+    assume(45.0 < paco2 < 250.0)
+    m = mech(ve, d, vco2)
+    assert sum(m.shares.values()) == pytest.approx(1.0)
+    assert all(0.0 <= s <= 1.0 for s in m.shares.values())
+    assert all(m.shares[c] == 0.0 for c in m.lowering)
+
+
+@settings(max_examples=200, deadline=None)
+@given(
+    ve=st.floats(min_value=1.5, max_value=5.0),
+    d=st.floats(min_value=0.35, max_value=0.8),
+    factor=st.floats(min_value=1.05, max_value=2.0),
+    cut=st.floats(min_value=0.5, max_value=0.95),
+)
+def test_less_ventilation_raises_the_ventilation_share(ve, d, factor, cut):
+    # monotonicity: with dead space and VCO2 fixed (both raising), lowering VE raises its share
+    vco2 = VCO2_REF * factor
+    assume(model_paco2(ve * cut, d, vco2) < 250.0)
+    before = mech(ve, d, vco2).shares
+    after = mech(ve * cut, d, vco2).shares
+    assert after["ventilation"] > before["ventilation"]
+    assert after["dead_space"] < before["dead_space"]
