@@ -74,8 +74,20 @@ def _err(field: str, code: str, message: str) -> dict:
     return {"field": field, "code": code, "message": message}
 
 
+#: callables ``hook(request, response)`` run on every response (the test suite validates each response
+#: against the JSON Schema this way); empty in normal use.
+RESPONSE_HOOKS: list = []
+
+
 def handle_obj(request: object) -> dict:
-    """Answer one request object (see CONTRACT.md). Never raises."""
+    """Answer one request object (see CONTRACT.md). Never raises (response hooks aside)."""
+    response = _handle_safely(request)
+    for hook in RESPONSE_HOOKS:
+        hook(request, response)
+    return response
+
+
+def _handle_safely(request: object) -> dict:
     try:
         return _handle(request)
     except Exception:  # a core bug: say so without a traceback
@@ -167,44 +179,32 @@ def _handle(request: object) -> dict:
 
 
 def handle(request: str) -> str:
-    """Answer one JSON request text with one JSON response text. Never raises."""
-    try:
-        if not isinstance(request, str):
-            response = _failure(None, [_err("request", "bad_request", "a request must be JSON text")])
-        elif len(request) > MAX_REQUEST_CHARS:
-            response = _failure(
-                None,
-                [
-                    _err(
-                        "request",
-                        "bad_request",
-                        f"request is too large ({len(request)} characters; the limit is {MAX_REQUEST_CHARS})",
-                    )
-                ],
-            )
+    """Answer one JSON request text with one JSON response text. Never raises (response hooks aside)."""
+    obj = None
+    if not isinstance(request, str):
+        response = _failure(None, [_err("request", "bad_request", "a request must be JSON text")])
+    elif len(request) > MAX_REQUEST_CHARS:
+        message = f"request is too large ({len(request)} characters; the limit is {MAX_REQUEST_CHARS})"
+        response = _failure(None, [_err("request", "bad_request", message)])
+    else:
+        try:
+            obj = json.loads(request, parse_constant=_reject_constant)
+        except (ValueError, RecursionError) as exc:
+            message = f"request is not valid JSON: {exc}"[:300]
+            response = _failure(None, [_err("request", "bad_request", message)])
         else:
-            try:
-                obj = json.loads(request, parse_constant=_reject_constant)
-            except (ValueError, RecursionError) as exc:
-                response = _failure(
-                    None, [_err("request", "bad_request", f"request is not valid JSON: {exc}"[:300])]
-                )
-            else:
-                response = handle_obj(obj)
-        return json.dumps(response, allow_nan=False, ensure_ascii=False)
-    except Exception:
-        return json.dumps(
-            _failure(
-                None,
-                [
-                    _err(
-                        "request",
-                        "internal_error",
-                        "Tidewell could not answer this request (an internal error).",
-                    )
-                ],
-            )
-        )
+            response = _handle_safely(obj)
+    try:
+        text = json.dumps(response, allow_nan=False, ensure_ascii=False)
+    except (ValueError, TypeError, RecursionError):
+        response = _failure(None, [_err("request", "internal_error", _INTERNAL)])
+        text = json.dumps(response)
+    for hook in RESPONSE_HOOKS:
+        hook(obj, response)
+    return text
+
+
+_INTERNAL = "Tidewell could not answer this request (an internal error)."
 
 
 def _reject_constant(name: str):
