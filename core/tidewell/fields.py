@@ -171,8 +171,8 @@ class Inputs:
         converted = units.convert(number, given_unit, unit, substance=substance)
         if low <= converted <= high:
             return converted
-        # outside: would the same number in another accepted unit be in range?
-        for other in accepted:
+        # outside: would the same number in another accepted unit be in range? (common mix-ups first)
+        for other in sorted(accepted, key=_hint_rank):
             if other == given_unit:
                 continue
             alt = units.convert(number, other, unit, substance=substance)
@@ -350,6 +350,38 @@ class Inputs:
                 )
         if self.errors:
             raise InputErrors(self.errors)
+
+
+#: units tried first when guessing what the user meant (the everyday mix-ups)
+_HINT_ORDER = (
+    "mmHg",
+    "kPa",
+    "hPa",
+    "mmol/L",
+    "mg/dL",
+    "g/dL",
+    "g/L",
+    "degC",
+    "degF",
+    "ft",
+    "m",
+    "cm",
+    "in",
+    "kg",
+    "lb",
+    "mL",
+    "L",
+    "L/min",
+    "mL/min",
+    "min",
+    "h",
+    "bar",
+    "psi",
+)
+
+
+def _hint_rank(unit: str) -> int:
+    return _HINT_ORDER.index(unit) if unit in _HINT_ORDER else len(_HINT_ORDER)
 
 
 class _AbsentRepr:
