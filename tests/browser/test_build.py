@@ -1,0 +1,174 @@
+"""build.py: reproducible bytes, a real wheel, verified runtime wheels, a consistent precache list.
+
+No browser here, but it needs the runtime cache build.py fills (so it sits with the browser tests).
+"""
+
+from __future__ import annotations
+
+import base64
+import csv
+import hashlib
+import io
+import json
+import re
+import subprocess
+import sys
+import zipfile
+from pathlib import Path
+
+import pytest
+from harness import BUILD_PY, ROOT, build
+
+# pyodide@0.27.7's own pyodide-lock.json (the build checks against the copy inside the npm tarball)
+LOCK_SHA256 = {
+    "numpy-2.0.2-cp312-cp312-pyodide_2024_0_wasm32.whl": (
+        "ebb61241d962b98b21597d7ce43b67668a6d5bab3acec4fbe958657320d7cd08"
+    ),
+    "micropip-0.9.0-py3-none-any.whl": "034f22763607744f982d2911170c50b496a38b8ba0535e5a09618475b1d7b051",
+    "packaging-24.2-py3-none-any.whl": "fbf6a5ace596eb8e28fe0089ecfc0bca2eb3930563e9ca06acb98ea5302b99f7",
+}
+
+
+def tree(root: Path) -> dict[str, bytes]:
+    return {p.relative_to(root).as_posix(): p.read_bytes() for p in sorted(root.rglob("*")) if p.is_file()}
+
+
+def test_two_builds_give_identical_bytes(dist, tmp_path):
+    again = tmp_path / "again"
+    build(again)
+    first, second = tree(dist), tree(again)
+    assert sorted(first) == sorted(second)
+    different = [name for name in first if first[name] != second[name]]
+    assert different == []
+    # and the sums file says what is there
+    sums = dict(reversed(line.split("  ", 1)) for line in (dist / "SHA256SUMS").read_text().splitlines())
+    assert set(sums) == set(first) - {"SHA256SUMS"}
+    for name, digest in sums.items():
+        assert hashlib.sha256(first[name]).hexdigest() == digest, name
+
+
+def test_manifest_precache_list_and_lock_agree(dist):
+    manifest = json.loads((dist / "build-manifest.json").read_text())
+    listed = {f["path"]: f for f in manifest["files"]}
+    on_disk = tree(dist)
+    assert set(on_disk) == set(listed) | {"build-manifest.json", "sw.js", "SHA256SUMS"}
+    for path, entry in listed.items():
+        assert (
+            entry["size"] == len(on_disk[path])
+            and entry["sha256"] == hashlib.sha256(on_disk[path]).hexdigest()
+        )
+    canonical = json.dumps(manifest["files"], sort_keys=True, separators=(",", ":")).encode()
+    assert manifest["build_id"] == hashlib.sha256(canonical).hexdigest()[:16]
+
+    sw = (dist / "sw.js").read_text()
+    assert f'const BUILD_ID = "{manifest["build_id"]}";' in sw
+    precache = json.loads(re.search(r"const PRECACHE = (\{.*?\});", sw, re.S).group(1))
+    assert sorted(precache) == sorted(["./" + p for p in listed] + ["./build-manifest.json"])
+    for url, sha256 in precache.items():
+        assert hashlib.sha256(on_disk[url.removeprefix("./")]).hexdigest() == sha256, url
+    assert "__" not in sw.replace("__proto__", "")  # no placeholder left behind
+
+    lock = json.loads((dist / "pyodide" / "pyodide-lock.json").read_text())
+    assert lock["info"]["version"] == "0.27.7"
+    assert sorted(lock["packages"]) == ["micropip", "numpy", "packaging", "tidewell"]
+    for package in lock["packages"].values():
+        data = on_disk[f"pyodide/{package['file_name']}"]
+        assert hashlib.sha256(data).hexdigest() == package["sha256"], package["name"]
+        if package["file_name"] in LOCK_SHA256:
+            assert package["sha256"] == LOCK_SHA256[package["file_name"]]
+    shipped_runtime = sorted(p for p in listed if p.startswith("pyodide/") and not p.endswith(".whl"))
+    assert shipped_runtime == [
+        "pyodide/pyodide-lock.json",
+        "pyodide/pyodide.asm.js",
+        "pyodide/pyodide.asm.wasm",
+        "pyodide/pyodide.mjs",
+        "pyodide/python_stdlib.zip",
+    ]
+    assert not any(p.endswith(".py") for p in listed)  # make_icons.py is not shipped
+
+
+def test_tidewell_wheel_is_a_valid_installable_wheel(dist, tmp_path):
+    wheel = next((dist / "pyodide").glob("tidewell-*-py3-none-any.whl"))
+    with zipfile.ZipFile(wheel) as z:
+        names = z.namelist()
+        assert names[:-1] == sorted(names[:-1]) and names[-1].endswith(".dist-info/RECORD")
+        assert all(i.date_time == (1980, 1, 1, 0, 0, 0) for i in z.infolist())
+        dist_info = next(n.split("/")[0] for n in names if n.endswith(".dist-info/RECORD"))
+        record = list(csv.reader(io.StringIO(z.read(f"{dist_info}/RECORD").decode())))
+        for name, digest, size in record:
+            if name.endswith("RECORD"):
+                assert digest == size == ""
+                continue
+            data = z.read(name)
+            expected = (
+                "sha256=" + base64.urlsafe_b64encode(hashlib.sha256(data).digest()).rstrip(b"=").decode()
+            )
+            assert (digest, int(size)) == (expected, len(data)), name
+        assert {r[0] for r in record} == set(names)
+        modules = {n for n in names if n.endswith(".py")}
+    source = {p.relative_to(ROOT / "core").as_posix() for p in (ROOT / "core" / "tidewell").rglob("*.py")}
+    assert modules == source
+
+    target = tmp_path / "site"
+    subprocess.run(
+        [
+            sys.executable,
+            "-m",
+            "pip",
+            "install",
+            "--quiet",
+            "--no-deps",
+            "--no-index",
+            "--disable-pip-version-check",
+            "--target",
+            str(target),
+            str(wheel),
+        ],
+        check=True,
+        capture_output=True,
+    )
+    code = (
+        "import json, sys, tidewell, tidewell.bridge as b;"
+        "assert tidewell.__file__.startswith(sys.argv[1]), tidewell.__file__;"
+        "print(b.handle(json.dumps({'calc': 'convert', 'inputs': {'quantity': {'value': 1, 'unit': 'kPa'},"
+        " 'to': 'mmHg'}})))"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code, str(target)], capture_output=True, text=True, check=True, cwd=target
+    )
+    assert json.loads(out.stdout)["ok"] is True
+
+
+@pytest.mark.parametrize("damage", ["corrupt", "missing"])
+def test_wheels_that_fail_the_lock_are_refused(tmp_path, damage):
+    # a --wheels directory with one bad copy: the build must stop and name the file
+    wheels = tmp_path / "wheels"
+    wheels.mkdir()
+    cache = Path(
+        subprocess.run(
+            [sys.executable, "-c", "import build; print(build.cache_dir())"],
+            cwd=ROOT,
+            capture_output=True,
+            text=True,
+            check=True,
+        ).stdout.strip()
+    )
+    store = cache / "pyodide-0.27.7-wheels"
+    for name in LOCK_SHA256:
+        (wheels / name).write_bytes((store / name).read_bytes())
+    victim = wheels / "micropip-0.9.0-py3-none-any.whl"
+    if damage == "corrupt":
+        data = bytearray(victim.read_bytes())
+        data[100] ^= 0x01
+        victim.write_bytes(bytes(data))
+    else:
+        victim.unlink()
+    proc = subprocess.run(
+        [sys.executable, str(BUILD_PY), "--out", str(tmp_path / "site"), "--wheels", str(wheels)],
+        capture_output=True,
+        text=True,
+    )
+    assert proc.returncode == 1
+    assert "micropip-0.9.0-py3-none-any.whl" in proc.stderr
+    assert ("sha256" in proc.stderr) if damage == "corrupt" else ("missing" in proc.stderr)
+    assert not (tmp_path / "site").exists()

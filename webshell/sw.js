@@ -1,0 +1,110 @@
+// Tidewell's service worker. build.py fills in BUILD_ID and PRECACHE (every file of the build with its
+// sha256, from build-manifest.json); this file in webshell/ is the template and is not served as is.
+//
+// - install: store every file of the build, awaited, so a failed download fails the install and the
+//   previous version keeps running. Files whose bytes did not change since an older build already on
+//   the device are copied from that build's cache (an update downloads only what changed); the rest
+//   are fetched with cache: "no-cache" (revalidated, so what the page has just downloaded comes back as
+//   a 304 instead of a second copy). Every stored file is then checked against its sha256; a mismatch
+//   (a stale copy from some cache on the way) is fetched again past every cache, then refused.
+// - activate: delete the caches of older builds (every "tidewell-*" cache but ours), take control;
+// - fetch: cache first; navigations get ./index.html; anything not precached goes to the network;
+// - a new version waits until the page posts "tidewell:skip-waiting" (the user tapped "Reload").
+// Every URL is relative to this script, so the site works under any sub-path.
+
+const BUILD_ID = "__BUILD_ID__";
+const CACHE = `tidewell-${BUILD_ID}`;
+const PRECACHE = __PRECACHE__;
+
+const hex = (buffer) => Array.from(new Uint8Array(buffer), (b) => b.toString(16).padStart(2, "0")).join("");
+
+async function matches(cache, url) {
+  const stored = await cache.match(url);
+  if (!stored) return false;
+  return hex(await crypto.subtle.digest("SHA-256", await stored.arrayBuffer())) === PRECACHE[url];
+}
+
+async function reuseOlderBuilds(cache) {
+  const reused = new Set();
+  for (const key of await caches.keys()) {
+    if (!key.startsWith("tidewell-") || key === CACHE) continue;
+    const old = await caches.open(key);
+    let manifest;
+    try {
+      manifest = await (await old.match("./build-manifest.json")).json();
+    } catch {
+      continue; // not a complete older build
+    }
+    const hashes = new Map(manifest.files.map((f) => [`./${f.path}`, f.sha256]));
+    for (const [url, sha256] of Object.entries(PRECACHE)) {
+      if (reused.has(url) || hashes.get(url) !== sha256) continue;
+      const copy = await old.match(url);
+      if (copy) {
+        await cache.put(url, copy);
+        reused.add(url);
+      }
+    }
+  }
+  return reused;
+}
+
+async function precache() {
+  const cache = await caches.open(CACHE);
+  try {
+    const reused = await reuseOlderBuilds(cache);
+    const wanted = Object.keys(PRECACHE).filter((url) => !reused.has(url));
+    await cache.addAll(wanted.map((url) => new Request(url, { cache: "no-cache" })));
+    for (const url of Object.keys(PRECACHE)) {
+      if (await matches(cache, url)) continue;
+      await cache.add(new Request(url, { cache: "reload" }));
+      if (!(await matches(cache, url))) throw new Error(`${url} is not the file of build ${BUILD_ID}`);
+    }
+  } catch (err) {
+    await caches.delete(CACHE); // nothing half-stored; the next visit tries again
+    throw err;
+  }
+}
+
+self.addEventListener("install", (event) => {
+  event.waitUntil(precache());
+});
+
+self.addEventListener("activate", (event) => {
+  event.waitUntil(
+    (async () => {
+      for (const key of await caches.keys()) {
+        if (key.startsWith("tidewell-") && key !== CACHE) {
+          await caches.delete(key);
+        }
+      }
+      await self.clients.claim();
+    })(),
+  );
+});
+
+self.addEventListener("fetch", (event) => {
+  const request = event.request;
+  if (request.method !== "GET" || new URL(request.url).origin !== self.location.origin) {
+    return;
+  }
+  event.respondWith(
+    (async () => {
+      const cache = await caches.open(CACHE);
+      const key = request.mode === "navigate" ? new URL("./index.html", self.location.href).href : request;
+      const hit = await cache.match(key);
+      return hit || fetch(request);
+    })(),
+  );
+});
+
+self.addEventListener("message", (event) => {
+  if (event.data === "tidewell:skip-waiting") {
+    self.skipWaiting();
+  } else if (event.data === "tidewell:build-id" && event.source) {
+    event.source.postMessage(`tidewell:build-id:${BUILD_ID}`);
+  } else if (event.data === "tidewell:resources" && event.source) {
+    // what this worker fetched itself (the tests check that nothing left the site's origin)
+    const names = performance.getEntriesByType("resource").map((e) => e.name);
+    event.source.postMessage(`tidewell:resources:${JSON.stringify(names)}`);
+  }
+});
