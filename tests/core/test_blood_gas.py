@@ -18,6 +18,7 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
+from casebook import AB_PATHS, case_inputs, q, value
 from conftest import assert_finite_everywhere, load_cases
 from tidewell import interpret, units
 from tidewell.bridge import handle, handle_obj
@@ -26,10 +27,6 @@ from tidewell.references import REFERENCES
 
 ROOT = Path(__file__).resolve().parents[2]
 CASES = load_cases()
-
-
-def q(value, unit):
-    return {"value": value, "unit": unit}
 
 
 def check_response(response: dict) -> None:
@@ -76,77 +73,6 @@ def disorders(response: dict) -> list[tuple]:
     return [(d["code"], d["role"], d["chronicity"]) for d in response["outputs"]["disorders"]]
 
 
-def value(outputs: dict, path: tuple):
-    node = outputs
-    for key in path:
-        node = node[key]
-    return node
-
-
-# -- worked cases -> bridge inputs ---------------------------------------------------------------------------
-
-_INPUT_MAP = {
-    "ph": ("ph", None),
-    "paco2_mmHg": ("pco2", "mmHg"),
-    "hco3_mmol_L": ("hco3", "mmol/L"),
-    "na_mmol_L": ("na", "mmol/L"),
-    "cl_mmol_L": ("cl", "mmol/L"),
-    "k_mmol_L": ("k", "mmol/L"),
-    "albumin_g_dL": ("albumin", "g/dL"),
-    "albumin_g_L": ("albumin", "g/L"),
-    "pao2_mmHg": ("po2", "mmHg"),
-    "pao2_37_mmHg": ("po2", "mmHg"),
-    "fio2": ("fio2", None),
-    "pb_mmHg": ("pb", "mmHg"),
-    "age_y": ("age", None),
-    "patient_temp_C": ("temperature", "degC"),
-    "ca_ionized_mmol_L": ("ca_ionised", "mmol/L"),
-    "mg_mmol_L": ("mg", "mmol/L"),
-    "lactate_mmol_L": ("lactate", "mmol/L"),
-    "phosphate_mmol_L": ("phosphate", "mmol/L"),
-}
-
-
-def case_inputs(case: dict) -> dict:
-    out = {}
-    for key, raw in case["inputs"].items():
-        if key == "history":  # narrative only; not an input
-            continue
-        name, unit = _INPUT_MAP[key]
-        out[name] = raw if unit is None else q(raw, unit)
-    return out
-
-
-# expected key of an AB case -> output path (pressures asked for in mmHg)
-AB_PATHS = {
-    "ph_calc": ("ph_computed",),
-    "sbe_clsi_mmol_L": ("standard_base_excess", "value"),
-    "ag_mmol_L": ("anion_gap", "value"),
-    "winters_expected_mmHg": ("expected_pco2_winters", "value"),
-    "winters_high_mmHg": ("expected_pco2", "high", "value"),
-    "delta_ratio": ("delta_ratio",),
-    "delta_gap_mmol_L": ("delta_gap", "value"),
-    "sbe_rule_expected_paco2_mmHg": ("expected_pco2_copenhagen", "value"),
-    "expected_hco3_acute_mmol_L": ("expected_hco3_centre", "acute", "value"),
-    "expected_hco3_chronic_3p5_mmol_L": ("expected_hco3_centre", "chronic", "value"),
-    "ph_acute_rule": ("expected_ph", "acute"),
-    "ph_chronic_rule": ("expected_ph", "chronic"),
-    "fraction_acute_ph_rule": ("fraction_acute_ph",),
-    "fraction_acute_hco3_rule": ("fraction_acute_hco3",),
-    "expected_sbe_schlichtig_mmol_L": ("expected_sbe", "chronic", "value"),
-    "expected_paco2_mmHg": ("expected_pco2_centre", "value"),
-    "expected_low_mmHg": ("expected_pco2", "low", "value"),
-    "expected_high_mmHg": ("expected_pco2", "high", "value"),
-    "ph_difference": ("ph_difference",),
-    "h_kb_nmol_L": ("h_nmol_l_kassirer", "value"),
-    "h_measured_nmol_L": ("h_nmol_l_measured", "value"),
-    "pao2_alv_mmHg": ("pao2_alveolar", "value"),
-    "aa_gradient_mmHg": ("a_a_gradient", "value"),
-    "aa_expected_age_mmHg": ("a_a_expected_upper", "value"),
-    "ph_T": ("ph_at_temperature",),
-    "paco2_T_mmHg": ("pco2_at_temperature", "value"),
-    "pao2_T_mmHg": ("po2_at_temperature", "value"),
-}
 AB_WORDS = {"aa_category", "niv_bts_ics", "o2_target_pct", "interpretation"}
 AB_IDS = [f"AB-{n:02d}" for n in range(1, 12)]
 

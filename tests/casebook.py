@@ -1,0 +1,95 @@
+"""Worked cases turned into bridge requests, shared by the core tests and the browser tests.
+
+The AB-xx cases of tests/cases/reference_cases.json name their inputs with units in the key
+(``paco2_mmHg``); ``case_inputs`` turns them into a blood_gas ``inputs`` object and ``AB_PATHS`` says
+where each expected number sits in the response's outputs (pressures asked for in mmHg).
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
+
+
+def load_cases() -> dict[str, dict]:
+    """The worked cases (a copy of the shared reference cases), by id."""
+    return {case["id"]: case for case in json.loads(CASES_PATH.read_text(encoding="utf-8"))}
+
+
+def q(value, unit):
+    return {"value": value, "unit": unit}
+
+
+def value(outputs: dict, path: tuple):
+    node = outputs
+    for key in path:
+        node = node[key]
+    return node
+
+
+# -- worked cases -> bridge inputs ---------------------------------------------------------------------------
+
+INPUT_MAP = {
+    "ph": ("ph", None),
+    "paco2_mmHg": ("pco2", "mmHg"),
+    "hco3_mmol_L": ("hco3", "mmol/L"),
+    "na_mmol_L": ("na", "mmol/L"),
+    "cl_mmol_L": ("cl", "mmol/L"),
+    "k_mmol_L": ("k", "mmol/L"),
+    "albumin_g_dL": ("albumin", "g/dL"),
+    "albumin_g_L": ("albumin", "g/L"),
+    "pao2_mmHg": ("po2", "mmHg"),
+    "pao2_37_mmHg": ("po2", "mmHg"),
+    "fio2": ("fio2", None),
+    "pb_mmHg": ("pb", "mmHg"),
+    "age_y": ("age", None),
+    "patient_temp_C": ("temperature", "degC"),
+    "ca_ionized_mmol_L": ("ca_ionised", "mmol/L"),
+    "mg_mmol_L": ("mg", "mmol/L"),
+    "lactate_mmol_L": ("lactate", "mmol/L"),
+    "phosphate_mmol_L": ("phosphate", "mmol/L"),
+}
+
+
+def case_inputs(case: dict) -> dict:
+    out = {}
+    for key, raw in case["inputs"].items():
+        if key == "history":  # narrative only; not an input
+            continue
+        name, unit = INPUT_MAP[key]
+        out[name] = raw if unit is None else q(raw, unit)
+    return out
+
+
+# expected key of an AB case -> output path (pressures asked for in mmHg)
+AB_PATHS = {
+    "ph_calc": ("ph_computed",),
+    "sbe_clsi_mmol_L": ("standard_base_excess", "value"),
+    "ag_mmol_L": ("anion_gap", "value"),
+    "winters_expected_mmHg": ("expected_pco2_winters", "value"),
+    "winters_high_mmHg": ("expected_pco2", "high", "value"),
+    "delta_ratio": ("delta_ratio",),
+    "delta_gap_mmol_L": ("delta_gap", "value"),
+    "sbe_rule_expected_paco2_mmHg": ("expected_pco2_copenhagen", "value"),
+    "expected_hco3_acute_mmol_L": ("expected_hco3_centre", "acute", "value"),
+    "expected_hco3_chronic_3p5_mmol_L": ("expected_hco3_centre", "chronic", "value"),
+    "ph_acute_rule": ("expected_ph", "acute"),
+    "ph_chronic_rule": ("expected_ph", "chronic"),
+    "fraction_acute_ph_rule": ("fraction_acute_ph",),
+    "fraction_acute_hco3_rule": ("fraction_acute_hco3",),
+    "expected_sbe_schlichtig_mmol_L": ("expected_sbe", "chronic", "value"),
+    "expected_paco2_mmHg": ("expected_pco2_centre", "value"),
+    "expected_low_mmHg": ("expected_pco2", "low", "value"),
+    "expected_high_mmHg": ("expected_pco2", "high", "value"),
+    "ph_difference": ("ph_difference",),
+    "h_kb_nmol_L": ("h_nmol_l_kassirer", "value"),
+    "h_measured_nmol_L": ("h_nmol_l_measured", "value"),
+    "pao2_alv_mmHg": ("pao2_alveolar", "value"),
+    "aa_gradient_mmHg": ("a_a_gradient", "value"),
+    "aa_expected_age_mmHg": ("a_a_expected_upper", "value"),
+    "ph_T": ("ph_at_temperature",),
+    "paco2_T_mmHg": ("pco2_at_temperature", "value"),
+    "pao2_T_mmHg": ("po2_at_temperature", "value"),
+}
