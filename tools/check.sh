@@ -8,9 +8,9 @@ cd "$(dirname "$0")/.."
 export SE_AVOID_STATS=true PIP_DISABLE_PIP_VERSION_CHECK=1
 
 echo "== system packages"
-tidewell_apt_install chromium chromium-driver npm
+tidewell_apt_install chromium:chromium chromium-driver:chromedriver npm:npm
 py=$(tidewell_python)
-command -v pip3 >/dev/null || "$py" -m pip --version >/dev/null || tidewell_apt_install python3-pip
+"$py" -m pip --version >/dev/null 2>&1 || tidewell_apt_install python3-pip:pip3
 
 echo "== python packages"
 "$py" -m pip install -q -e '.[test,dev]'

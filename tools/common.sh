@@ -2,10 +2,13 @@
 # Sourced, not run.
 
 tidewell_apt_install() {
-    # Install the Debian packages named in "$@" that are not installed yet.
-    local missing=() pkg
-    for pkg in "$@"; do
-        dpkg-query -W -f='${Status}' "$pkg" 2>/dev/null | grep -q "install ok installed" || missing+=("$pkg")
+    # Install the Debian packages named in "$@" ("package:command") whose command is not on the PATH yet
+    # (a command already there, from Debian or elsewhere, is left alone: e.g. a Node.js with its own npm).
+    local missing=() item pkg cmd
+    for item in "$@"; do
+        pkg=${item%%:*}
+        cmd=${item#*:}
+        command -v "$cmd" >/dev/null 2>&1 || missing+=("$pkg")
     done
     ((${#missing[@]})) || return 0
     local sudo=""

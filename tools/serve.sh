@@ -4,6 +4,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 . tools/common.sh
-command -v npm >/dev/null && command -v pip3 >/dev/null || tidewell_apt_install npm python3-pip
+tidewell_apt_install npm:npm
 py=$(tidewell_python)
+"$py" -m pip --version >/dev/null 2>&1 || tidewell_apt_install python3-pip:pip3
 exec "$py" build.py serve "$@"
