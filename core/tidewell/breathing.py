@@ -1475,7 +1475,7 @@ def _mechanisms(
         "VE_ref = 0.863 x VCO2_ref / (40 x (1 - 0.30))",
         m.ve_reference_l_min,
         ("co2_log_shares", "normal_ventilation"),
-        output="mechanisms",
+        output="mechanisms_detail",
         unit="L/min",
         inputs={"vco2_ref_ml_min": vco2_reference, "vco2_ref_rule": reference_formula},
     )
@@ -1490,7 +1490,7 @@ def _mechanisms(
             formula,
             m.log_terms[cause],
             "co2_log_shares",
-            output="mechanisms",
+            output="mechanisms_detail",
         )
     sources = {
         "minute_ventilation": "measured",
@@ -1518,7 +1518,7 @@ def _mechanisms(
             "ln(PaCO2 / (0.863 VCO2 / (VE (1 - VD/VT))))",
             m.residual_log,
             "co2_log_shares",
-            output="mechanisms",
+            output="mechanisms_detail",
         )
         if abs(m.residual_log) > math.log(1.1):
             report.finding(

@@ -17,6 +17,7 @@ from __future__ import annotations
 import importlib
 import json
 import math
+import sys
 
 from . import __version__
 from .errors import InputError, InputErrors
@@ -140,7 +141,13 @@ def _handle(request: object) -> dict:
     else:
         for key in options:
             if key not in _OPTION_KEYS:
-                errors.append(_err(f"options.{key}", "bad_request", f"options.{key}: unknown option"))
+                errors.append(
+                    _err(
+                        f"options.{key}",
+                        "bad_request",
+                        f"options.{key}: unknown option",
+                    )
+                )
         unit = options.get("pressure_unit", "mmHg")
         if unit not in PRESSURE_UNITS:
             errors.append(
@@ -167,7 +174,7 @@ def _handle(request: object) -> dict:
             )
     if errors:
         return _failure(calc, errors)
-    inputs = Inputs(inputs_raw)
+    inputs = Inputs(_huge_integers_as_infinity(inputs_raw))
     report = Report(calc, pressure_unit=pressure_unit)
     try:
         func(inputs, report)
@@ -176,6 +183,59 @@ def _handle(request: object) -> dict:
     except InputError as exc:
         return _failure(calc, [exc.as_entry()])
     return report.to_response(ENGINE)
+
+
+def _is_huge(item) -> bool:
+    return isinstance(item, int) and not isinstance(item, bool) and abs(item) > _FLOAT_MAX
+
+
+def _has_huge_integer(value) -> bool:
+    """True when an integer too large for a float is anywhere inside ``value`` (no recursion; cycles safe)."""
+    stack, seen = [value], set()
+    while stack:
+        item = stack.pop()
+        if _is_huge(item):
+            return True
+        if isinstance(item, (dict, list)) and id(item) not in seen:
+            seen.add(id(item))
+            stack.extend(item.values() if isinstance(item, dict) else item)
+    return False
+
+
+def _huge_integers_as_infinity(value):
+    """``value`` with every integer beyond the float range replaced by an infinity of its sign.
+
+    JSON allows integers of any length and Python parses them exactly, but the core computes in floats:
+    ``float(10**400)`` raises OverflowError (and ``repr`` of an integer of 4,300 digits or more raises
+    ValueError). Such a number is refused like ``1e999``, which JSON parsing already turns into infinity:
+    ``not_a_number`` from the field's own reader, with its field. The request itself is not changed: the
+    containers on the way are copied, without recursion, so any depth and any cycle is safe.
+    """
+    if not _has_huge_integer(value):
+        return value
+    copies: dict[int, object] = {}
+
+    def copy(item):
+        if _is_huge(item):
+            return math.inf if item > 0 else -math.inf
+        if not isinstance(item, (dict, list)):
+            return item
+        if id(item) not in copies:
+            copies[id(item)] = dict(item) if isinstance(item, dict) else list(item)
+            stack.append(copies[id(item)])
+        return copies[id(item)]
+
+    stack: list = []
+    root = copy(value)
+    while stack:
+        container = stack.pop()
+        keys = container.keys() if isinstance(container, dict) else range(len(container))
+        for key in list(keys):
+            container[key] = copy(container[key])
+    return root
+
+
+_FLOAT_MAX = int(sys.float_info.max)
 
 
 def handle(request: str) -> str:
