@@ -42,7 +42,7 @@ def six_significant(value: float) -> str:
 
 
 def test_engine_ready_marks_and_compute(browser, server):
-    browser.get(server.url)
+    browser.get(server.url + "#convert")
     info = browser.wait_engine()
     assert info["engine"] == VERSION
     assert info["pyodide"] == "0.27.7"
@@ -65,7 +65,7 @@ def test_engine_ready_marks_and_compute(browser, server):
 
 
 def test_form_keeps_early_values_and_shows_the_core_answer(browser, server):
-    browser.get(server.url)
+    browser.get(server.url + "#convert")
     # the form works before Python does: type while the engine is still loading
     state_when_typed = browser.js("return document.documentElement.dataset.engine")
     value = browser.driver.find_element(By.ID, "convert-value")
@@ -131,7 +131,7 @@ def test_form_keeps_early_values_and_shows_the_core_answer(browser, server):
 
 
 def test_bad_requests_answer_with_errors_not_hangs(browser, server):
-    browser.get(server.url)
+    browser.get(server.url + "#convert")
     browser.wait_engine()
     bad_requests = [
         {"calc": "no_such_calculation", "inputs": {}},
@@ -207,7 +207,7 @@ def test_numpy_is_loaded_only_when_a_calculation_needs_it(browser, server):
         import pytest
 
         pytest.skip(f"none of {sorted(NUMPY_CALCS)} exists in the core yet")
-    browser.get(server.url)
+    browser.get(server.url + "#convert")
     browser.wait_engine()
     before = browser.wait_js("return (await window.tidewell.engine.diagnostics()).packages;")
     assert "numpy" not in before

@@ -28,7 +28,7 @@ def test_watchdog_reports_a_stalled_start_and_retry_recovers(make_browser, make_
     server = make_server(dist, stall="pyodide.asm.wasm")  # the runtime download never completes
     browser = make_browser()
     # 8 s for the wedged first attempt; the Retry then allows twice that for a real cold start
-    browser.get(server.url + "?engine-timeout=8000")
+    browser.get(server.url + "?engine-timeout=8000#convert")
     browser.js(PENDING, REQUEST)
     browser.driver.find_element(By.ID, "convert-value").send_keys("7.9")
     browser.driver.find_element(By.ID, "convert-go").click()
@@ -66,7 +66,7 @@ def test_csp_without_wasm_eval_fails_clearly(make_browser, make_server, dist):
     server = make_server(dist, csp=NO_WASM_CSP)
     browser = make_browser()
     browser.allow_console(r"WebAssembly|wasm-unsafe-eval|Content Security Policy")
-    browser.get(server.url + "?engine-timeout=6000")
+    browser.get(server.url + "?engine-timeout=6000#convert")
     browser.js(PENDING, REQUEST)
     text = browser.wait_engine_state("failed", timeout=40)
     assert text.startswith("Engine: failed.")
@@ -87,13 +87,13 @@ def test_a_corrupted_tidewell_wheel_is_refused(make_browser, make_server, dist, 
     server = make_server(site)
     browser = make_browser()
 
-    browser.get(server.url)  # the default route checks the sha256 itself
+    browser.get(server.url + "#convert")  # the default route checks the sha256 itself
     text = browser.wait_engine_state("failed", timeout=60)
     assert "failed its integrity check" in text
 
     # Pyodide's loader fetches with Subresource Integrity: the browser blocks the file and logs it,
     # loadPackage itself only calls errorCallback; the worker checks what was really loaded
     browser.allow_console(r"integrity")
-    browser.get(server.url + "?install=loadPackage")
+    browser.get(server.url + "?install=loadPackage#convert")
     text = browser.wait_engine_state("failed", timeout=60)
     assert "could not load tidewell" in text

@@ -46,7 +46,7 @@ def form_convert(browser, value: str, source: str, target: str) -> list:
 def test_offline_after_the_server_is_stopped(make_browser, make_server, dist):
     server = make_server(dist, prefix=SUB_PATH)
     browser = make_browser()
-    browser.get(server.url)
+    browser.get(server.url + "#convert")
     browser.wait_engine()
     scope_script = browser.wait_controlled()
     assert scope_script == server.url + "sw.js"  # registered under the sub-path, relative URLs only
@@ -92,7 +92,7 @@ def test_update_waits_for_consent(make_browser, make_server, dist, dist_next):
 
     server = make_server(dist)
     browser = make_browser()
-    browser.get(server.url)
+    browser.get(server.url + "#convert")
     browser.wait_engine()
     browser.wait_controlled()
     assert browser.js("return document.documentElement.dataset.buildId") == old_id

@@ -7,19 +7,219 @@ import * as convertScreen from "./forms/convert.js";
 
 const $ = (selector) => document.querySelector(selector);
 
-// -- screens (one for now; clinical screens join the nav later) --
-const screens = { convert: convertScreen };
-for (const [name, screen] of Object.entries(screens)) screen.mount($(`#${name}`), engine);
+import { PANELS, EXAMPLES } from "./forms/specs.js";
+import { Panel } from "./forms/panel.js";
+import { settings } from "./settings.js";
+import * as caselog from "./caselog.js";
+
+// -- screens --
+// The screen shown when the address names none: the blood gas, the one most people open Tidewell for.
+const DEFAULT_SCREEN = "gas";
+const screens = { gas: null, breathing: null, flight: null, log: null, convert: convertScreen };
+convertScreen.mount($("#convert"), engine);
+
+// sources and cautions seen in this session, for the About part of Settings
+const sources = new Map();
+const cautions = new Set();
+function seen(response) {
+  for (const step of response.steps || []) if (step.source) sources.set(step.source, step.source_keys || []);
+  for (const c of response.cautions || []) cautions.add(c);
+  const list = $("#about-sources");
+  list.replaceChildren(...[...sources.keys()].sort().map((s) => Object.assign(document.createElement("li"), { textContent: s })));
+  $("#about-cautions").replaceChildren(...[...cautions].map((c) => Object.assign(document.createElement("li"), { textContent: c })));
+}
+
+// the curve and the profile are separate calculations: ask the core for them with the same inputs
+function extraRequests(name, request) {
+  const pick = (keys) => Object.fromEntries(keys.filter((k) => k in request.inputs).map((k) => [k, request.inputs[k]]));
+  if (name === "blood_gas") {
+    return [{ calc: "oxygen_dissociation_curve", inputs: pick(["ph", "pco2", "po2", "temperature", "base_excess"]),
+      options: request.options }];
+  }
+  if (name === "altitude") return [{ ...request, calc: "altitude_profile" }];
+  return [];
+}
+
+const panels = {};
+const hooks = { seen, extraRequests, save: saveCase };
+for (const host of document.querySelectorAll(".panel-host")) {
+  const screen = host.closest(".screen").id;
+  const examples = EXAMPLES.filter((e) => e.screen === screen);
+  if (examples.length) {
+    const box = document.createElement("div");
+    box.className = "examples";
+    const p = document.createElement("p");
+    p.className = "muted";
+    p.textContent = "Invented teaching examples (not real patients): one tap fills the form.";
+    box.append(p);
+    for (const ex of examples) {
+      const b = document.createElement("button");
+      b.type = "button";
+      b.className = "example";
+      b.dataset.example = ex.id;
+      b.textContent = ex.title;
+      b.title = ex.text;
+      b.addEventListener("click", () => {
+        panels[ex.panel].fill(ex.fields);
+        $("#example-note-" + screen).textContent = ex.text;
+      });
+      box.append(b);
+    }
+    const note = document.createElement("p");
+    note.id = "example-note-" + screen;
+    note.className = "example-note";
+    note.setAttribute("aria-live", "polite");
+    box.append(note);
+    host.before(box);
+  }
+  for (const name of host.dataset.panels.split(" ")) {
+    panels[name] = new Panel(host, name, PANELS[name], engine, hooks);
+    panels[name].screen = screen;
+  }
+}
 
 function showScreen() {
-  const name = location.hash.slice(1) in screens ? location.hash.slice(1) : "convert";
+  const wanted = location.hash.slice(1);
+  const name = wanted in screens ? wanted : DEFAULT_SCREEN;
   for (const section of document.querySelectorAll("#screens > .screen")) section.hidden = section.id !== name;
   for (const link of document.querySelectorAll(".screens-nav a")) {
     if (link.dataset.screen === name) link.setAttribute("aria-current", "page");
     else link.removeAttribute("aria-current");
   }
+  document.documentElement.dataset.screen = name;
+  if (name === "log") renderLog();
 }
 window.addEventListener("hashchange", showScreen);
+
+// -- settings --
+for (const radio of document.querySelectorAll('input[name="pressure-unit"]')) {
+  radio.checked = radio.value === settings.pressureUnit;
+  radio.addEventListener("change", () => settings.setPressureUnit(radio.value));
+}
+for (const radio of document.querySelectorAll('input[name="theme"]')) {
+  radio.checked = radio.value === settings.theme;
+  radio.addEventListener("change", () => settings.setTheme(radio.value));
+}
+
+// -- case log --
+function say(text) {
+  $("#log-message").textContent = text;
+}
+
+async function saveCase(panel, label, status) {
+  if (!panel.last) return;
+  const record = {
+    id: caselog.newId(), time: Date.now(), label: label.slice(0, 200), screen: panel.screen, calc: panel.name,
+    fields: panel.values(), pressure_unit: panel.last.request.options.pressure_unit,
+    outputs: panel.last.response.outputs, summary: panel.last.response.summary || [],
+    engine: panel.last.response.engine,
+  };
+  try {
+    await caselog.put(record);
+    status.textContent = "Saved to the case log on this device.";
+    if (navigator.storage && navigator.storage.persist) navigator.storage.persist().then(showPersist, () => {});
+  } catch (err) {
+    status.textContent = `Not saved: ${err.message}`;
+  }
+}
+
+function showPersist(granted) {
+  $("#log-persist").textContent = granted
+    ? "This browser has agreed to keep the case log unless you delete it."
+    : "This browser may clear the case log when space runs low; export it to keep a copy.";
+}
+
+let logRender = 0;
+async function renderLog() {
+  const mine = ++logRender;
+  const cases = await caselog.list();
+  if (mine !== logRender) return; // a newer render is on its way
+  const list = $("#log-list");
+  list.replaceChildren();
+  $("#log-empty").hidden = cases.length > 0;
+  document.documentElement.dataset.logCount = String(cases.length);
+  for (const c of cases) {
+    const item = document.createElement("li");
+    item.className = "log-item";
+    item.dataset.id = c.id;
+    const title = document.createElement("p");
+    title.className = "log-label";
+    title.textContent = c.label || "(no label)"; // text only: a label is never markup
+    const meta = document.createElement("p");
+    meta.className = "muted";
+    meta.textContent = `${new Date(c.time).toLocaleString()} · ${PANELS[c.calc] ? PANELS[c.calc].title : c.calc}`;
+    const summary = document.createElement("p");
+    summary.className = "log-summary";
+    summary.textContent = (c.summary || []).slice(0, 2).join(" ");
+    const reopen = document.createElement("button");
+    reopen.type = "button";
+    reopen.className = "log-open";
+    reopen.textContent = "Reopen";
+    reopen.setAttribute("aria-label", `Reopen case ${c.label || "(no label)"}`);
+    reopen.addEventListener("click", () => {
+      if (c.pressure_unit) {
+        settings.setPressureUnit(c.pressure_unit);
+        for (const r of document.querySelectorAll('input[name="pressure-unit"]')) r.checked = r.value === c.pressure_unit;
+      }
+      location.hash = c.screen;
+      panels[c.calc].fill(c.fields);
+    });
+    const del = document.createElement("button");
+    del.type = "button";
+    del.className = "log-delete danger";
+    del.textContent = "Delete";
+    del.setAttribute("aria-label", `Delete case ${c.label || "(no label)"}`);
+    del.addEventListener("click", async () => {
+      await caselog.remove(c.id);
+      say("Case deleted.");
+      renderLog();
+    });
+    const row = document.createElement("div");
+    row.className = "row-buttons";
+    row.append(reopen, del);
+    item.append(title, meta, summary, row);
+    list.append(item);
+  }
+}
+
+function offerDownload(text, type, name) {
+  const url = URL.createObjectURL(new Blob([text], { type }));
+  const a = document.createElement("a");
+  a.href = url;
+  a.download = name;
+  a.textContent = `Download ${name}`;
+  a.className = "download";
+  $("#log-download").replaceChildren(a);
+  a.click();
+}
+const stamp = () => new Date().toISOString().slice(0, 10);
+$("#log-export-json").addEventListener("click", async () => {
+  offerDownload(await caselog.exportJson(), "application/json", `tidewell-cases-${stamp()}.json`);
+});
+$("#log-export-csv").addEventListener("click", async () => {
+  offerDownload(await caselog.exportCsv(), "text/csv", `tidewell-cases-${stamp()}.csv`);
+});
+$("#log-delete-all").addEventListener("click", async () => {
+  if (!confirm("Delete every saved case on this device? This cannot be undone.")) return;
+  await caselog.clear();
+  say("All cases deleted.");
+  renderLog();
+});
+$("#log-import").addEventListener("change", async (event) => {
+  const file = event.target.files[0];
+  event.target.value = "";
+  if (!file) return;
+  try {
+    const n = await caselog.importJson(await file.text());
+    say(`Imported ${n} case(s).`);
+    document.documentElement.dataset.importState = "done";
+  } catch (err) {
+    say(`${err.message} The case log is unchanged.`);
+    document.documentElement.dataset.importState = "refused";
+  }
+  renderLog();
+});
+
 showScreen();
 
 // -- engine status line --

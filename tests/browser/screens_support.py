@@ -1,0 +1,125 @@
+"""Helpers for the screen tests: fill a panel through its form, read what the report shows, and format
+the core's own answer the way the shell does (to the core's ``display`` decimals)."""
+
+from __future__ import annotations
+
+import json
+from decimal import ROUND_HALF_UP, Decimal
+
+from selenium.webdriver.common.by import By
+from selenium.webdriver.support.ui import Select
+
+from tidewell import bridge
+
+PHONE = (360, 640)
+
+
+def core(request: dict) -> dict:
+    return json.loads(bridge.handle(json.dumps(request)))
+
+
+def shell_format(value: float, decimals) -> str:
+    """JavaScript's value.toFixed(d) (exact binary value, ties away from zero), or six significant digits."""
+    if isinstance(decimals, int):
+        return str(Decimal(value).quantize(Decimal(1).scaleb(-decimals), rounding=ROUND_HALF_UP))
+    return f"{value:.6g}"
+
+
+def phone(browser) -> None:
+    """A 360 x 640 viewport (the window is sized so that the page itself is 360 x 640)."""
+    browser.driver.set_window_size(*PHONE)
+    inner = browser.js("return [innerWidth, innerHeight]")
+    browser.driver.set_window_size(PHONE[0] * 2 - inner[0], PHONE[1] * 2 - inner[1])
+
+
+def open_screen(browser, url: str, screen: str) -> None:
+    browser.get(f"{url}#{screen}")
+    browser.wait_js(
+        "while (!document.querySelector('.panel, #log-list')) await new Promise((r) => setTimeout(r, 20));"
+    )
+
+
+def fill(browser, calc: str, fields: dict) -> None:
+    """Type ``fields`` into panel ``calc``: name -> text, (text, unit), True (tick) or a word."""
+    d = browser.driver
+    for name, value in fields.items():
+        box = d.find_element(By.CSS_SELECTOR, f'#p-{calc} [data-input="{name}"]')
+        details = box.find_elements(By.XPATH, "ancestor::details")
+        if details and not details[0].get_attribute("open"):
+            details[0].find_element(By.TAG_NAME, "summary").click()
+        fid = f"p-{calc}-{name}"
+        if value is True:
+            box_input = d.find_element(By.ID, fid)
+            if not box_input.is_selected():
+                box_input.click()
+            continue
+        if isinstance(value, tuple):
+            text, unit = value
+            Select(d.find_element(By.ID, f"{fid}-unit")).select_by_value(unit)
+        else:
+            text = value
+        element = d.find_element(By.ID, fid)
+        if element.tag_name == "select":
+            Select(element).select_by_value(text)
+        else:
+            element.clear()
+            element.send_keys(text)
+
+
+def wait_report(browser, calc: str, timeout: float = 90) -> str:
+    """Wait until panel ``calc`` shows a reading or errors (and no newer calculation is pending)."""
+    return browser.wait_js(
+        "const r = document.querySelector('#p-' + arguments[0] + '-report');"
+        "for (;;) { await new Promise((ok) => setTimeout(ok, 50));"
+        "  if (['done', 'error'].includes(r.dataset.state) && !r.dataset.busy) return r.dataset.state; }",
+        calc,
+        timeout=timeout,
+    )
+
+
+def shown_numbers(browser, calc: str) -> dict:
+    """data-out path -> [text shown, raw value] for every number button of the panel's report."""
+    return dict(
+        browser.js(
+            "return [...document.querySelectorAll('#p-' + arguments[0] + '-report button.num')]"
+            ".map((b) => [b.dataset.out, [b.textContent, b.dataset.raw]]);",
+            calc,
+        )
+    )
+
+
+def resolve(outputs: dict, path: str):
+    value = outputs
+    for part in path.split("."):
+        value = value[part]
+    return value
+
+
+def check_numbers(browser, calc: str, response: dict, must: set[str]) -> int:
+    """Every number the panel shows equals the core's answer, formatted to display; returns how many."""
+    shown = shown_numbers(browser, calc)
+    assert must <= set(shown), sorted(must - set(shown))
+    checked = 0
+    for path, (text, raw) in shown.items():
+        value = resolve(response["outputs"], path)
+        decimals = response["display"].get(path.split(".")[0])
+        if isinstance(value, dict) and isinstance(value.get("value"), (int, float)):
+            assert text == f"{shell_format(value['value'], decimals)} {value['unit']}", path
+            assert float(raw) == value["value"], path
+            checked += 1
+        elif isinstance(value, (int, float)) and not isinstance(value, bool):
+            assert text == shell_format(value, decimals), path
+            assert float(raw) == value, path
+            checked += 1
+    return checked
+
+
+def no_horizontal_overflow(browser) -> tuple[int, int]:
+    return tuple(browser.js("return [document.documentElement.scrollWidth, window.innerWidth]"))
+
+
+def tap(browser, by: str, selector: str) -> None:
+    """Scroll the element to the middle of the screen (clear of the bottom navigation) and click it."""
+    element = browser.driver.find_element(by, selector)
+    browser.js("arguments[0].scrollIntoView({block: 'center'})", element)
+    element.click()

@@ -1,0 +1,410 @@
+// One calculation panel: the entry form, the request it sends, and the report of the core's answer.
+// DOM only: every number shown is the core's, formatted to the core's `display` decimals.
+
+import { formatValue, parseNumber } from "../format.js";
+import { settings } from "../settings.js";
+import { drawPictures } from "./pictures.js";
+
+const el = (tag, props = {}, ...children) => {
+  const node = document.createElement(tag);
+  for (const [key, value] of Object.entries(props)) {
+    if (key === "class") node.className = value;
+    else if (key.startsWith("data-") || key.startsWith("aria-") || key === "for" || key === "role") {
+      node.setAttribute(key, value);
+    } else node[key] = value;
+  }
+  for (const child of children) if (child !== null && child !== undefined) node.append(child);
+  return node;
+};
+
+const SEVERITY = {
+  urgent: ["Act now", "sev-urgent"],
+  notable: ["Worth a look", "sev-notable"],
+  info: ["For the record", "sev-info"],
+};
+
+const words = (text) => String(text).replaceAll("_", " ");
+const LABELS = {
+  ph_status: "pH reading", hco3: "HCO3", hco3_computed: "HCO3 from pH and PCO2", standard_base_excess: "Standard base excess",
+  expected_hco3: "Expected HCO3", expected_pco2: "Expected PCO2", pco2_target: "PaCO2 to aim for",
+  pao2_alveolar: "Alveolar PO2", a_a_gradient: "A-a gradient", a_a_expected_upper: "A-a upper limit for age",
+  a_over_A: "a/A ratio", pf_ratio: "P/F ratio", spo2_target: "SpO2 target (%)", pio2: "Inspired PO2",
+  pb: "Barometric pressure", minute_ventilation: "Minute ventilation", alveolar_ventilation: "Alveolar ventilation",
+  vd_vt: "Dead-space fraction (VD/VT)", vco2: "CO2 production", to_target: "To reach the target",
+  predicted_body_weight: "Predicted body weight", vt_per_kg_pbw: "Tidal volume per kg", fio2_equivalent:
+  "FiO2 that keeps today's alveolar PO2", po2_predicted: "Predicted PaO2 at altitude", max_altitude: "Highest safe altitude",
+  available_litres: "Oxygen available", required_litres: "Oxygen needed", minutes_available: "Time the oxygen lasts",
+  sufficient: "Enough oxygen?", anion_gap: "Anion gap", anion_gap_corrected: "Anion gap (albumin-corrected)",
+};
+const label = (path) => {
+  const parts = path.split(".");
+  return [LABELS[parts[0]] || words(parts[0]), ...parts.slice(1).map(words)].join(" › ");
+};
+
+function quantityText(value, decimals) {
+  if (value && typeof value === "object" && "value" in value && "unit" in value && typeof value.value === "number") {
+    return `${formatValue(value.value, decimals)} ${value.unit}`;
+  }
+  if (typeof value === "number") return formatValue(value, decimals);
+  if (typeof value === "boolean") return value ? "yes" : "no";
+  return words(value);
+}
+
+// outputs -> [path, shown text, raw value] rows; lists of numbers (curves) are drawn, not listed
+export function flatten(name, value, decimals) {
+  if (value === null || value === undefined) return [];
+  if (Array.isArray(value)) {
+    if (value.every((v) => v && typeof v === "object" && "code" in v)) {
+      const text = value.length === 0 ? "none" : value.map((d) =>
+        [words(d.code), d.role && `(${words(d.role)}${d.chronicity ? `, ${words(d.chronicity)}` : ""})`]
+          .filter(Boolean).join(" ")).join("; ");
+      return [[name, text, text]];
+    }
+    return [];
+  }
+  if (typeof value === "object" && "value" in value && "unit" in value) {
+    return Array.isArray(value.value) ? [] : [[name, quantityText(value, decimals), value.value]];
+  }
+  if (typeof value === "object") {
+    if ("low" in value && "high" in value && Object.keys(value).length === 2) {
+      const low = value.low, high = value.high;
+      const unit = typeof low === "object" ? ` ${low.unit}` : "";
+      const num = (v) => formatValue(typeof v === "object" ? v.value : v, decimals);
+      return [[name, `${num(low)} to ${num(high)}${unit}`, `${num(low)}..${num(high)}`]];
+    }
+    return Object.entries(value).flatMap(([k, v]) => flatten(`${name}.${k}`, v, decimals));
+  }
+  return [[name, quantityText(value, decimals), value]];
+}
+
+let panelCount = 0;
+
+export class Panel {
+  constructor(host, name, spec, engine, hooks) {
+    this.name = name;
+    this.spec = spec;
+    this.engine = engine;
+    this.hooks = hooks;
+    this.sequence = 0;
+    this.last = null;
+    this.inputs = {};
+    const id = `p-${name}`;
+    this.id = id;
+    panelCount += 1;
+
+    this.root = el("article", { class: "panel", id, "data-calc": name, "aria-labelledby": `${id}-title` });
+    this.root.append(el("h3", { id: `${id}-title` }, spec.title));
+    this.form = el("form", { class: "calc-form", autocomplete: "off", noValidate: true });
+    const main = el("div", { class: "fields" });
+    const more = el("details", { class: "more" }, el("summary", {}, "More inputs (optional)"));
+    const moreFields = el("div", { class: "fields" });
+    more.append(moreFields);
+    for (const field of spec.fields) (field[3] ? moreFields : main).append(this.makeField(...field));
+    this.form.append(main, more);
+    this.form.addEventListener("submit", (e) => e.preventDefault());
+    this.form.addEventListener("input", () => this.soon());
+    // text fields recompute on input; "change" only for selectors and tick boxes (a blur is no edit)
+    this.form.addEventListener("change", (e) => { if (e.target.type !== "text") this.soon(); });
+
+    this.report = el("div", { class: "report", id: `${id}-report`, "data-state": "idle", "aria-live": "polite" });
+    this.status = el("span", { class: "muted", role: "status" });
+    this.root.append(this.form, this.report);
+    if (spec.save) {
+      const lid = `${id}-label`;
+      const labelInput = el("input", { type: "text", id: lid, class: "case-label", maxLength: 200,
+        placeholder: "e.g. bay 3, second gas", "aria-describedby": `${lid}-hint` });
+      const save = el("button", { type: "button", class: "save", id: `${id}-save` }, "Save to case log");
+      save.addEventListener("click", () => this.hooks.save(this, labelInput.value, this.status));
+      this.saveRow = el("div", { class: "save-row", hidden: true },
+        el("label", { for: lid }, "Case label"),
+        el("p", { class: "hint", id: `${lid}-hint` }, "No names, dates of birth or record numbers."),
+        el("div", { class: "entry" }, labelInput, save));
+      this.root.append(this.saveRow);
+    }
+    host.append(this.root);
+    this.renderIdle();
+    engine.addEventListener("state", (event) => {
+      if (event.detail.state === "ready" && this.report.dataset.state === "waiting") this.calculate();
+    });
+    settings.addEventListener("pressure", () => {
+      for (const [key, input] of Object.entries(this.inputs)) {
+        if (input.kind === "P" && input.text.value.trim() === "") input.unit.value = settings.pressureUnit;
+        void key;
+      }
+      if (this.hasRequired()) this.calculate();
+    });
+  }
+
+  makeField(name, text, kind) {
+    const fid = `${this.id}-${name}`;
+    const box = el("div", { class: "field", "data-input": name });
+    const entry = { kind, name };
+    if (kind === "yes") {
+      const check = el("input", { type: "checkbox", id: fid, name });
+      box.classList.add("field-check");
+      box.append(el("label", { for: fid }, check, " ", text));
+      entry.check = check;
+    } else if (typeof kind === "string" && kind.startsWith("w:")) {
+      const select = el("select", { id: fid, name });
+      select.append(new Option("not given", ""));
+      for (const word of kind.slice(2).split(",")) select.append(new Option(word, word));
+      box.append(el("label", { for: fid }, text), select);
+      entry.select = select;
+    } else {
+      const row = el("div", { class: "entry" });
+      const input = el("input", { id: fid, name, type: "text", inputMode: "decimal", spellcheck: false,
+        "aria-describedby": `${fid}-error` });
+      row.append(input);
+      entry.text = input;
+      let units = null;
+      if (kind === "P") units = ["kPa", "mmHg"];
+      else if (kind === "fio2") units = ["fraction", "%"];
+      else if (Array.isArray(kind)) units = kind;
+      if (units) {
+        const select = el("select", { id: `${fid}-unit`, "aria-label": `${text} unit`, class: "unit" });
+        for (const u of units) select.append(new Option(u, u));
+        if (kind === "P") select.value = settings.pressureUnit;
+        if (units.length === 1) select.disabled = true;
+        row.append(select);
+        entry.unit = select;
+      }
+      box.append(el("label", { for: fid }, text), row);
+    }
+    box.append(el("p", { class: "field-error", id: `${fid}-error`, role: "alert" }));
+    this.inputs[name] = entry;
+    return box;
+  }
+
+  // what the user typed, kept as text (the case log stores this, and reopens it)
+  values() {
+    const out = {};
+    for (const [name, entry] of Object.entries(this.inputs)) {
+      if (entry.check) { if (entry.check.checked) out[name] = true; }
+      else if (entry.select) { if (entry.select.value) out[name] = entry.select.value; }
+      else if (entry.text.value.trim() !== "") {
+        out[name] = entry.unit ? [entry.text.value, entry.unit.value] : entry.text.value;
+      }
+    }
+    return out;
+  }
+
+  fill(values) {
+    for (const [name, entry] of Object.entries(this.inputs)) {
+      const v = values[name];
+      if (entry.check) entry.check.checked = v === true;
+      else if (entry.select) entry.select.value = typeof v === "string" ? v : "";
+      else if (Array.isArray(v)) { entry.text.value = v[0]; if (entry.unit) entry.unit.value = v[1]; }
+      else {
+        entry.text.value = typeof v === "string" ? v : "";
+        if (entry.kind === "P") entry.unit.value = settings.pressureUnit;
+      }
+    }
+    const optional = this.spec.fields.some((f) => f[3] && values[f[0]] !== undefined);
+    this.form.querySelector("details.more").open = optional;
+    this.calculate();
+  }
+
+  request() {
+    const inputs = {};
+    for (const [name, v] of Object.entries(this.values())) {
+      const entry = this.inputs[name];
+      if (v === true || entry.select) inputs[name] = v;
+      else if (Array.isArray(v)) {
+        const number = parseNumber(v[0]);
+        inputs[name] = v[1] === "fraction" ? number : { value: number, unit: v[1] };
+      } else inputs[name] = parseNumber(v);
+    }
+    return { calc: this.name, inputs, options: { pressure_unit: settings.pressureUnit } };
+  }
+
+  hasRequired() {
+    const v = this.values();
+    return this.spec.required.every((name) => v[name] !== undefined);
+  }
+
+  soon() {
+    this.report.dataset.busy = "1";
+    clearTimeout(this.timer);
+    this.timer = setTimeout(() => this.calculate(), 250);
+  }
+
+  renderIdle() {
+    const names = this.spec.required.map((n) => this.spec.fields.find((f) => f[0] === n)[1]);
+    this.report.dataset.state = "idle";
+    this.report.replaceChildren(el("p", { class: "muted" }, `Enter ${names.join(", ")} to see the reading.`));
+  }
+
+  clearErrors() {
+    for (const p of this.form.querySelectorAll(".field-error")) p.textContent = "";
+    for (const i of this.form.querySelectorAll("[aria-invalid]")) i.removeAttribute("aria-invalid");
+  }
+
+  async calculate() {
+    clearTimeout(this.timer);
+    const mine = ++this.sequence;
+    this.report.dataset.busy = "1";
+
+    if (!this.hasRequired()) {
+      this.clearErrors();
+      this.last = null;
+      this.renderIdle();
+      delete this.report.dataset.busy;
+      return;
+    }
+    const request = this.request();
+    if (this.engine.state !== "ready") {
+      this.report.dataset.state = "waiting";
+      this.report.replaceChildren(el("p", { class: "muted" }, this.engine.state === "failed"
+        ? "The engine is not running; your values are kept. Press Retry above."
+        : "Your values are kept; the reading appears as soon as the engine is ready."));
+      if (this.engine.state === "failed") return;
+    }
+    try {
+      const extra = this.hooks.extraRequests ? this.hooks.extraRequests(this.name, request) : [];
+      const [response, ...more] = await Promise.all([request, ...extra].map((r) => this.engine.compute(r)));
+      if (mine !== this.sequence) return;
+      this.render(request, response, more);
+      delete this.report.dataset.busy;
+      if (this.saveRow) this.saveRow.hidden = !response.ok;
+    } catch (err) {
+      if (mine !== this.sequence) return;
+      this.report.dataset.state = "waiting";
+      delete this.report.dataset.busy;
+      this.report.replaceChildren(el("p", { class: "muted" }, `${err.message} Your values are kept.`));
+    }
+  }
+
+  render(request, response, more) {
+    this.clearErrors();
+    const out = [];
+    if (!response.ok) {
+      this.last = null;
+      const loose = el("ul", { class: "errors" });
+      for (const error of response.errors) {
+        const name = (error.field || "").startsWith("inputs.") ? error.field.slice(7).split(".")[0] : "";
+        const box = name && this.form.querySelector(`[data-input="${CSS.escape(name)}"]`);
+        if (box) {
+          const p = box.querySelector(".field-error");
+          p.textContent = p.textContent ? `${p.textContent} ${error.message}` : error.message;
+          p.dataset.code = error.code;
+          const input = box.querySelector("input, select");
+          input.setAttribute("aria-invalid", "true");
+          const details = box.closest("details");
+          if (details) details.open = true;
+        } else {
+          loose.append(el("li", { "data-code": error.code }, error.message));
+        }
+      }
+      out.push(el("p", { class: "report-none" }, "No reading yet: see the notes at the fields."));
+      if (loose.childElementCount) out.push(loose);
+      this.report.dataset.state = "error";
+      this.report.replaceChildren(...out);
+      return;
+    }
+    this.last = { request, response };
+    this.hooks.seen(response);
+    const display = response.display || {};
+
+    // 1. the summary, to copy into the notes
+    const summaryText = (response.summary || []).join(" ");
+    const summary = el("section", { class: "summary", "aria-label": "Summary" });
+    for (const sentence of response.summary || []) summary.append(el("p", {}, sentence));
+    const tools = el("div", { class: "row-buttons" });
+    const copy = el("button", { type: "button", class: "copy" }, "Copy summary");
+    const status = this.status;
+    copy.addEventListener("click", async () => {
+      const text = `${summaryText}\n(Tidewell ${window.tidewell.version}, engine ${response.engine}, build ${document.documentElement.dataset.buildId || "unknown"})`;
+      try {
+        await navigator.clipboard.writeText(text);
+        status.textContent = "Copied.";
+      } catch {
+        status.textContent = "Copy was refused by the browser; select the text above instead.";
+      }
+    });
+    tools.append(copy);
+    if (navigator.share) {
+      const share = el("button", { type: "button" }, "Share");
+      share.addEventListener("click", () => navigator.share({ title: "Tidewell summary", text: summaryText }).catch(() => {}));
+      tools.append(share);
+    }
+    tools.append(status);
+    summary.append(tools);
+    out.push(summary);
+
+    // 2. findings by severity: a word and a shape, never colour alone
+    if (response.findings.length) {
+      const list = el("ul", { class: "findings", "aria-label": "Findings" });
+      for (const f of response.findings) {
+        const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
+        list.append(el("li", { class: `finding ${cls}`, "data-code": f.code, "data-severity": f.severity },
+          el("span", { class: "sev-mark", "aria-hidden": "true" }),
+          el("strong", { class: "sev-word" }, `${word}: `), f.text));
+      }
+      out.push(list);
+    }
+
+    // 3. cautions, always visible
+    if (response.cautions.length) {
+      const cautions = el("section", { class: "cautions", "aria-label": "Cautions" }, el("h4", {}, "Take care"));
+      const ul = el("ul");
+      for (const c of response.cautions) ul.append(el("li", {}, c));
+      cautions.append(ul);
+      out.push(cautions);
+    }
+
+    // 4. pictures drawn from the core's arrays
+    const pics = drawPictures(this.spec.pictures || [], response, more, request);
+    if (pics) out.push(pics);
+
+    // 5. the numbers, in sections; a tap shows the step behind each
+    const used = new Set();
+    const sections = [...(this.spec.sections || [])];
+    const rest = Object.keys(response.outputs).filter((k) => !sections.some(([, keys]) => keys.includes(k)));
+    sections.push(["More numbers", rest]);
+    for (const [title, keys] of sections) {
+      const rows = keys.filter((k) => k in response.outputs && !used.has(k))
+        .flatMap((k) => { used.add(k); return flatten(k, response.outputs[k], display[k]); });
+      if (!rows.length) continue;
+      const box = title === "More numbers"
+        ? el("details", { class: "numbers" }, el("summary", {}, "More numbers"))
+        : el("section", { class: "numbers" }, el("h4", {}, title));
+      const dl = el("dl");
+      for (const [path, text, raw] of rows) {
+        const top = path.split(".")[0];
+        const steps = response.steps.filter((s) => s.output === top);
+        const dd = el("dd");
+        const button = el("button", { type: "button", class: "num", "data-out": path, "data-raw": String(raw),
+          "aria-expanded": "false", "aria-label": `${label(path)}: ${text}. Show how it was worked out` }, text);
+        if (!steps.length) button.disabled = true;
+        const how = el("div", { class: "how", hidden: true });
+        button.addEventListener("click", () => {
+          if (!how.childElementCount) {
+            for (const s of steps) how.append(stepView(s, display[top]));
+          }
+          how.hidden = !how.hidden;
+          button.setAttribute("aria-expanded", String(!how.hidden));
+        });
+        dd.append(button, how);
+        dl.append(el("dt", {}, label(path)), dd);
+      }
+      box.append(dl);
+      out.push(box);
+    }
+    this.report.dataset.state = "done";
+    this.report.replaceChildren(...out);
+  }
+}
+
+function stepView(s, decimals) {
+  const result = typeof s.result === "object" && s.result !== null
+    ? quantityText(s.result, decimals) : quantityText(s.result, decimals);
+  const box = el("div", { class: "step" },
+    el("p", { class: "step-label" }, s.label),
+    el("p", { class: "step-formula" }, el("code", {}, s.formula), ` = ${result}`));
+  if (s.inputs && typeof s.inputs === "object") {
+    const parts = Object.entries(s.inputs).map(([k, v]) => `${words(k)} ${quantityText(v)}`);
+    box.append(el("p", { class: "step-inputs" }, `Using: ${parts.join(", ")}`));
+  }
+  box.append(el("p", { class: "step-source" }, `Source: ${s.source}`));
+  return box;
+}
