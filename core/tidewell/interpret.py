@@ -886,12 +886,15 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             "berend2014",
             output="expected_ph",
         )
+        # a pH that cannot be computed (expected HCO3 beyond the Henderson-Hasselbalch domain at an extreme
+        # PaCO2) is left out, as the contract says
         ph_hh = {
-            "acute": ab.ph_henderson_hasselbalch(hco3_mmol_l=e.acute.value, pco2_mmhg=p),
-            "chronic": ab.ph_henderson_hasselbalch(hco3_mmol_l=e.chronic.value, pco2_mmhg=p),
+            label: ab.ph_henderson_hasselbalch(hco3_mmol_l=expected.value, pco2_mmhg=p)
+            for label, expected in (("acute", e.acute), ("chronic", e.chronic))
+            if ab._HCO3[0] <= expected.value <= ab._HCO3[1]
         }
         r.put("expected_ph_hh", ph_hh, decimals=3)
-        for label in ("acute", "chronic"):
+        for label in ph_hh:
             r.step(
                 f"pH from the expected {label} HCO3 (Henderson-Hasselbalch)",
                 "pH = 6.1 + log10(HCO3_expected / (0.0307 x PaCO2))",
