@@ -89,6 +89,7 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
+from .arrays import NAN, div, log10, maximum, minimum, where
 from .errors import InputError, require_number
 
 #: apparent pK of the CO2/HCO3 system in plasma at 37 degC (REFERENCE.md section 13 default)
@@ -207,7 +208,7 @@ def ph_henderson_hasselbalch(*, hco3_mmol_l: float, pco2_mmhg: float) -> float:
     """
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
     pco2 = require_number("pco2_mmhg", pco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    return PK_PRIME + math.log10(hco3 / (CO2_SOLUBILITY * pco2))
+    return _ph_hh(hco3, pco2)
 
 
 def hco3_henderson_hasselbalch(*, ph: float, pco2_mmhg: float) -> float:
@@ -238,7 +239,7 @@ def hco3_henderson_hasselbalch(*, ph: float, pco2_mmhg: float) -> float:
     """
     ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
     pco2 = require_number("pco2_mmhg", pco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    return CO2_SOLUBILITY * pco2 * 10.0 ** (ph_ - PK_PRIME)
+    return _hco3_hh(ph_, pco2)
 
 
 def hydrogen_ion_from_ph(*, ph: float) -> float:
@@ -259,7 +260,7 @@ def hydrogen_ion_from_ph(*, ph: float) -> float:
     39.8107
     """
     ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
-    return 10.0 ** (9.0 - ph_)
+    return _h_from_ph(ph_)
 
 
 def ph_from_hydrogen_ion(*, h_nmol_l: float) -> float:
@@ -306,7 +307,7 @@ def hydrogen_ion_kassirer_bleich(*, pco2_mmhg: float, hco3_mmol_l: float) -> flo
     """
     pco2 = require_number("pco2_mmhg", pco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
-    return KASSIRER_BLEICH_K * pco2 / hco3
+    return _h_kassirer(pco2, hco3)
 
 
 def check_consistency(
@@ -349,15 +350,9 @@ def check_consistency(
     """
     ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
     band = require_number("band_ph", band_ph, low=0.005, high=0.2)
-    computed = ph_henderson_hasselbalch(hco3_mmol_l=hco3_mmol_l, pco2_mmhg=pco2_mmhg)
-    difference = computed - ph_
-    return Consistency(
-        ph_computed=computed,
-        ph_difference=difference,
-        h_measured_nmol_l=hydrogen_ion_from_ph(ph=ph_),
-        h_kassirer_nmol_l=hydrogen_ion_kassirer_bleich(pco2_mmhg=pco2_mmhg, hco3_mmol_l=hco3_mmol_l),
-        consistent=abs(difference) <= band + 1e-12,
-    )
+    hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
+    pco2 = require_number("pco2_mmhg", pco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
+    return _consistency(ph_, pco2, hco3, band)
 
 
 # -- base excess --------------------------------------------------------------------------------------------
@@ -397,7 +392,7 @@ def standard_base_excess_clsi2009(*, ph: float, hco3_mmol_l: float) -> float:
     -14.23
     """
     ph_, hco3 = _ph_hco3(ph, hco3_mmol_l)
-    return hco3 - 24.8 + 16.2 * (ph_ - NORMAL_PH)
+    return _sbe_clsi(ph_, hco3)
 
 
 def standard_base_excess_siggaard_andersen1977(*, ph: float, hco3_mmol_l: float) -> float:
@@ -427,7 +422,7 @@ def standard_base_excess_siggaard_andersen1977(*, ph: float, hco3_mmol_l: float)
     -12.6531
     """
     ph_, hco3 = _ph_hco3(ph, hco3_mmol_l)
-    return 0.9287 * (hco3 - 24.4 + 14.83 * (ph_ - NORMAL_PH))
+    return _sbe_siggaard(ph_, hco3)
 
 
 def base_excess_blood_van_slyke(*, ph: float, hco3_mmol_l: float, hb_g_dl: float) -> float:
@@ -464,7 +459,7 @@ def base_excess_blood_van_slyke(*, ph: float, hco3_mmol_l: float, hb_g_dl: float
     """
     ph_, hco3 = _ph_hco3(ph, hco3_mmol_l)
     hb = require_number("hb_g_dl", hb_g_dl, low=1.0, high=25.0, unit="g/dL")
-    return (1.0 - 0.014 * hb) * ((hco3 - 24.8) + (1.43 * hb + 7.7) * (ph_ - NORMAL_PH))
+    return _be_van_slyke(ph_, hco3, hb)
 
 
 def standard_base_excess_van_slyke_hb5(*, ph: float, hco3_mmol_l: float) -> float:
@@ -528,8 +523,7 @@ def base_excess_lang_zander2002(
     pco2 = require_number("pco2_mmhg", pco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
     hb = require_number("hb_g_dl", hb_g_dl, low=1.0, high=25.0, unit="g/dL")
     so2 = require_number("so2_fraction", so2_fraction, low=0.0, high=1.0)
-    bracket = (0.0304 * pco2 * 10.0 ** (ph_ - PK_PRIME) - 24.26) + (9.5 + 1.63 * hb) * (ph_ - NORMAL_PH)
-    return (1.0 - 0.0143 * hb) * bracket - 0.2 * hb * (1.0 - so2)
+    return _be_zander(ph_, pco2, hb, so2)
 
 
 def sbe_variants(
@@ -611,8 +605,7 @@ def expected_pco2_winters(*, hco3_mmol_l: float) -> Expected:
     Expected(value=26.0, low=24.0, high=28.0)
     """
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
-    centre = 1.5 * hco3 + 8.0
-    return Expected(centre, centre - 2.0, centre + 2.0)
+    return _winters(hco3)
 
 
 def expected_pco2_metabolic_alkalosis(
@@ -651,8 +644,7 @@ def expected_pco2_metabolic_alkalosis(
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
     k = require_number("slope", slope, low=0.4, high=1.0, unit="mmHg per mmol/L")
     half = require_number("half_width_mmhg", half_width_mmhg, low=0.0, high=10.0, unit="mmHg")
-    centre = NORMAL_PCO2_MMHG + k * (hco3 - NORMAL_HCO3_MMOL_L)
-    return Expected(centre, centre - half, centre + half)
+    return _metabolic_alkalosis_pco2(hco3, k, half)
 
 
 def expected_hco3_linear(*, paco2_mmhg: float, mmol_per_10_mmhg: float) -> float:
@@ -682,14 +674,7 @@ def expected_hco3_linear(*, paco2_mmhg: float, mmol_per_10_mmhg: float) -> float
     slope = require_number(
         "mmol_per_10_mmhg", mmol_per_10_mmhg, low=0.0, high=10.0, unit="mmol/L per 10 mmHg"
     )
-    return NORMAL_HCO3_MMOL_L + slope * (paco2 - NORMAL_PCO2_MMHG) / 10.0
-
-
-def _band(paco2: float, default: float, alt_low: float, alt_high: float) -> Expected:
-    values = [
-        expected_hco3_linear(paco2_mmhg=paco2, mmol_per_10_mmhg=s) for s in (default, alt_low, alt_high)
-    ]
-    return Expected(values[0], min(values), max(values))
+    return _hco3_linear(paco2, slope)
 
 
 #: respiratory acidosis slopes [mmol/L per 10 mmHg]: (default, band low, band high)
@@ -735,9 +720,7 @@ def expected_hco3_respiratory_acidosis(*, paco2_mmhg: float) -> RespiratoryExpec
     Expected(value=31.0, low=30.0, high=34.0)
     """
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    return RespiratoryExpectation(
-        acute=_band(paco2, *RESP_ACIDOSIS_ACUTE), chronic=_band(paco2, *RESP_ACIDOSIS_CHRONIC)
-    )
+    return _respiratory_acidosis_hco3(paco2)
 
 
 def expected_hco3_respiratory_alkalosis(*, paco2_mmhg: float) -> RespiratoryExpectation:
@@ -770,9 +753,7 @@ def expected_hco3_respiratory_alkalosis(*, paco2_mmhg: float) -> RespiratoryExpe
     (21.0, 18.0, 16.5)
     """
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    return RespiratoryExpectation(
-        acute=_band(paco2, *RESP_ALKALOSIS_ACUTE), chronic=_band(paco2, *RESP_ALKALOSIS_CHRONIC)
-    )
+    return _respiratory_alkalosis_hco3(paco2)
 
 
 def expected_ph_respiratory_acidosis(*, paco2_mmhg: float) -> PhRules:
@@ -801,8 +782,7 @@ def expected_ph_respiratory_acidosis(*, paco2_mmhg: float) -> PhRules:
     (7.24, 7.34)
     """
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    delta = paco2 - NORMAL_PCO2_MMHG
-    return PhRules(acute=NORMAL_PH - 0.008 * delta, chronic=NORMAL_PH - 0.003 * delta)
+    return _respiratory_acidosis_ph(paco2)
 
 
 def fraction_acute_hco3(*, paco2_mmhg: float, hco3_mmol_l: float) -> float:
@@ -837,11 +817,7 @@ def fraction_acute_hco3(*, paco2_mmhg: float, hco3_mmol_l: float) -> float:
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
     if abs(paco2 - NORMAL_PCO2_MMHG) < 1.0:
         raise InputError("paco2_mmhg", paco2_mmhg, "must differ from 40 mmHg by at least 1 mmHg")
-    if paco2 > NORMAL_PCO2_MMHG:
-        e = expected_hco3_respiratory_acidosis(paco2_mmhg=paco2)
-    else:
-        e = expected_hco3_respiratory_alkalosis(paco2_mmhg=paco2)
-    return (e.chronic.value - hco3) / (e.chronic.value - e.acute.value)
+    return _fraction_acute_hco3(paco2, hco3)
 
 
 def fraction_acute_ph(*, ph: float, paco2_mmhg: float) -> float:
@@ -871,8 +847,7 @@ def fraction_acute_ph(*, ph: float, paco2_mmhg: float) -> float:
     """
     ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=41.0, high=_PCO2[1], unit="mmHg")
-    delta = paco2 - NORMAL_PCO2_MMHG
-    return ((NORMAL_PH - ph_) - 0.003 * delta) / (0.005 * delta)
+    return _fraction_acute_ph(ph_, paco2)
 
 
 #: fraction-acute bands (common practice)
@@ -898,11 +873,7 @@ def chronicity_from_fraction(*, fraction_acute: float) -> str:
     ['acute', 'acute_on_chronic', 'chronic']
     """
     f = require_number("fraction_acute", fraction_acute, low=-1e6, high=1e6)
-    if f >= ACUTE_AT_LEAST:
-        return "acute"
-    if f <= CHRONIC_AT_MOST:
-        return "chronic"
-    return "acute_on_chronic"
+    return _chronicity(f)
 
 
 def baseline_pco2_from_hco3(
@@ -946,11 +917,7 @@ def baseline_pco2_from_hco3(
     c = require_number(
         "chronic_mmol_per_10_mmhg", chronic_mmol_per_10_mmhg, low=2.0, high=6.0, unit="mmol/L per 10 mmHg"
     )
-    acute = RESP_ACIDOSIS_ACUTE[0]
-    raw = NORMAL_PCO2_MMHG + (hco3 - NORMAL_HCO3_MMOL_L - acute * (paco2 - NORMAL_PCO2_MMHG) / 10.0) / (
-        (c - acute) / 10.0
-    )
-    return min(max(raw, NORMAL_PCO2_MMHG), paco2)
+    return _baseline_pco2(paco2, hco3, c)
 
 
 def expected_hco3_with_baseline(*, paco2_mmhg: float, baseline_pco2_mmhg: float) -> float:
@@ -977,11 +944,7 @@ def expected_hco3_with_baseline(*, paco2_mmhg: float, baseline_pco2_mmhg: float)
     """
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
     base = require_number("baseline_pco2_mmhg", baseline_pco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    base = max(base, NORMAL_PCO2_MMHG)
-    chronic = NORMAL_HCO3_MMOL_L + RESP_ACIDOSIS_CHRONIC[0] * (base - NORMAL_PCO2_MMHG) / 10.0
-    if paco2 >= base:
-        return chronic + RESP_ACIDOSIS_ACUTE[0] * (paco2 - base) / 10.0
-    return chronic - RESP_ALKALOSIS_ACUTE[0] * (base - paco2) / 10.0
+    return _hco3_on_baseline(paco2, base)
 
 
 def pco2_for_ph_acute(*, ph_target: float, paco2_mmhg: float, hco3_mmol_l: float) -> float | None:
@@ -1023,11 +986,8 @@ def pco2_for_ph_acute(*, ph_target: float, paco2_mmhg: float, hco3_mmol_l: float
     target = require_number("ph_target", ph_target, low=7.0, high=7.8)
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
-    numerator = hco3 - 0.1 * paco2
-    denominator = CO2_SOLUBILITY * 10.0 ** (target - PK_PRIME) - 0.1
-    if numerator <= 0.0:
-        return None
-    return numerator / denominator
+    value = _pco2_for_ph_acute(target, paco2, hco3)
+    return None if value != value else value
 
 
 # -- Copenhagen rules ----------------------------------------------------------------------------------------
@@ -1051,7 +1011,7 @@ def expected_pco2_sbe_metabolic_acidosis(*, sbe_mmol_l: float) -> float:
     28.0
     """
     sbe = require_number("sbe_mmol_l", sbe_mmol_l, low=-40.0, high=40.0, unit="mmol/L")
-    return NORMAL_PCO2_MMHG + sbe
+    return _pco2_sbe_acidosis(sbe)
 
 
 def expected_pco2_sbe_metabolic_alkalosis(*, sbe_mmol_l: float) -> float:
@@ -1072,7 +1032,7 @@ def expected_pco2_sbe_metabolic_alkalosis(*, sbe_mmol_l: float) -> float:
     46.0
     """
     sbe = require_number("sbe_mmol_l", sbe_mmol_l, low=-40.0, high=40.0, unit="mmol/L")
-    return NORMAL_PCO2_MMHG + 0.6 * sbe
+    return _pco2_sbe_alkalosis(sbe)
 
 
 def expected_sbe_respiratory(*, paco2_mmhg: float) -> tuple[float, float]:
@@ -1102,7 +1062,7 @@ def expected_sbe_respiratory(*, paco2_mmhg: float) -> tuple[float, float]:
     (0.0, 8.0)
     """
     paco2 = require_number("paco2_mmhg", paco2_mmhg, low=_PCO2[0], high=_PCO2[1], unit="mmHg")
-    return 0.0, 0.4 * (paco2 - NORMAL_PCO2_MMHG)
+    return _sbe_respiratory(paco2)
 
 
 # -- gaps ----------------------------------------------------------------------------------------------------
@@ -1140,7 +1100,7 @@ def anion_gap(*, na_mmol_l: float, cl_mmol_l: float, hco3_mmol_l: float) -> floa
     na = _ion("na_mmol_l", na_mmol_l, 100.0, 190.0)
     cl = _ion("cl_mmol_l", cl_mmol_l, 60.0, 150.0)
     hco3 = _ion("hco3_mmol_l", hco3_mmol_l, *_HCO3)
-    return na - (cl + hco3)
+    return _anion_gap(na, cl, hco3)
 
 
 def anion_gap_with_potassium(
@@ -1202,7 +1162,7 @@ def anion_gap_albumin_corrected_figge1998(
     ag = require_number("anion_gap_mmol_l", anion_gap_mmol_l, low=-150.0, high=200.0, unit="mmol/L")
     alb = require_number("albumin_g_dl", albumin_g_dl, low=0.5, high=6.0, unit="g/dL")
     normal = require_number("normal_albumin_g_dl", normal_albumin_g_dl, low=3.0, high=5.5, unit="g/dL")
-    return ag + 2.5 * (normal - alb)
+    return _anion_gap_corrected(ag, alb, normal)
 
 
 def delta_ratio(*, anion_gap_mmol_l: float, hco3_mmol_l: float) -> float:
@@ -1231,7 +1191,7 @@ def delta_ratio(*, anion_gap_mmol_l: float, hco3_mmol_l: float) -> float:
     """
     ag = require_number("anion_gap_mmol_l", anion_gap_mmol_l, low=-150.0, high=200.0, unit="mmol/L")
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=23.5, unit="mmol/L")
-    return (ag - NORMAL_ANION_GAP_MMOL_L) / (NORMAL_HCO3_MMOL_L - hco3)
+    return _delta_ratio(ag, hco3)
 
 
 def delta_gap(*, anion_gap_mmol_l: float, hco3_mmol_l: float) -> float:
@@ -1255,7 +1215,7 @@ def delta_gap(*, anion_gap_mmol_l: float, hco3_mmol_l: float) -> float:
     """
     ag = require_number("anion_gap_mmol_l", anion_gap_mmol_l, low=-150.0, high=200.0, unit="mmol/L")
     hco3 = require_number("hco3_mmol_l", hco3_mmol_l, low=_HCO3[0], high=_HCO3[1], unit="mmol/L")
-    return (ag - NORMAL_ANION_GAP_MMOL_L) - (NORMAL_HCO3_MMOL_L - hco3)
+    return _delta_gap(ag, hco3)
 
 
 #: Brandis delta-ratio bands -> reading (words used in the ``delta_ratio_band`` output)
@@ -1290,12 +1250,7 @@ def delta_ratio_band_brandis(*, delta_ratio_value: float) -> str:
 'high_anion_gap_acidosis_with_raised_hco3']
     """
     r = require_number("delta_ratio_value", delta_ratio_value, low=-1e6, high=1e6)
-    for upper, word in DELTA_RATIO_BANDS[:2]:
-        if r < upper:
-            return word
-    if r <= DELTA_RATIO_BANDS[2][0]:
-        return DELTA_RATIO_BANDS[2][1]
-    return "high_anion_gap_acidosis_with_raised_hco3"
+    return _delta_ratio_band(r)
 
 
 def delta_gap_reading(*, delta_gap_mmol_l: float) -> str:
@@ -1317,11 +1272,7 @@ def delta_gap_reading(*, delta_gap_mmol_l: float) -> str:
     ['added_normal_anion_gap_acidosis', 'pure_high_anion_gap', 'added_metabolic_alkalosis']
     """
     g = require_number("delta_gap_mmol_l", delta_gap_mmol_l, low=-1e6, high=1e6)
-    if g < -6.0:
-        return "added_normal_anion_gap_acidosis"
-    if g > 6.0:
-        return "added_metabolic_alkalosis"
-    return "pure_high_anion_gap"
+    return _delta_gap_reading(g)
 
 
 def osmolality_calculated_si(*, na_mmol_l: float, glucose_mmol_l: float, urea_mmol_l: float) -> float:
@@ -1353,7 +1304,7 @@ def osmolality_calculated_si(*, na_mmol_l: float, glucose_mmol_l: float, urea_mm
     na = _ion("na_mmol_l", na_mmol_l, 100.0, 190.0)
     glucose = _ion("glucose_mmol_l", glucose_mmol_l, 0.0, 150.0)
     urea = _ion("urea_mmol_l", urea_mmol_l, 0.0, 150.0)
-    return 2.0 * na + glucose + urea
+    return _osmolality_calculated(na, glucose, urea)
 
 
 def osmolar_gap(*, measured_mosm_kg: float, calculated_mosm_kg: float) -> float:
@@ -1377,7 +1328,7 @@ def osmolar_gap(*, measured_mosm_kg: float, calculated_mosm_kg: float) -> float:
     """
     measured = require_number("measured_mosm_kg", measured_mosm_kg, low=100.0, high=1000.0, unit="mOsm/kg")
     calc = require_number("calculated_mosm_kg", calculated_mosm_kg, low=100.0, high=1000.0, unit="mOsm/kg")
-    return measured - calc
+    return _osmolar_gap(measured, calc)
 
 
 # -- Stewart -------------------------------------------------------------------------------------------------
@@ -1427,7 +1378,7 @@ def strong_ion_difference_apparent(
     mg = _ion("mg_mmol_l", mg_mmol_l, 0.1, 5.0)
     cl = _ion("cl_mmol_l", cl_mmol_l, 60.0, 150.0)
     lactate = _ion("lactate_mmol_l", lactate_mmol_l, 0.0, 50.0)
-    return na + k + 2.0 * ca + 2.0 * mg - cl - lactate
+    return _sid_apparent(na, k, ca, mg, cl, lactate)
 
 
 def albumin_charge_figge(*, albumin_g_l: float, ph: float) -> float:
@@ -1451,7 +1402,7 @@ def albumin_charge_figge(*, albumin_g_l: float, ph: float) -> float:
     """
     alb = require_number("albumin_g_l", albumin_g_l, low=5.0, high=60.0, unit="g/L")
     ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
-    return alb * (0.123 * ph_ - 0.631)
+    return _albumin_charge(alb, ph_)
 
 
 def phosphate_charge_figge(*, phosphate_mmol_l: float, ph: float) -> float:
@@ -1475,7 +1426,7 @@ def phosphate_charge_figge(*, phosphate_mmol_l: float, ph: float) -> float:
     """
     phos = require_number("phosphate_mmol_l", phosphate_mmol_l, low=0.1, high=5.0, unit="mmol/L")
     ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
-    return phos * (0.309 * ph_ - 0.469)
+    return _phosphate_charge(phos, ph_)
 
 
 def strong_ion_difference_effective(
@@ -1505,11 +1456,10 @@ def strong_ion_difference_effective(
     28.151
     """
     hco3 = _ion("hco3_mmol_l", hco3_mmol_l, *_HCO3)
-    return (
-        hco3
-        + albumin_charge_figge(albumin_g_l=albumin_g_l, ph=ph)
-        + phosphate_charge_figge(phosphate_mmol_l=phosphate_mmol_l, ph=ph)
-    )
+    alb = require_number("albumin_g_l", albumin_g_l, low=5.0, high=60.0, unit="g/L")
+    ph_ = require_number("ph", ph, low=_PH[0], high=_PH[1])
+    phos = require_number("phosphate_mmol_l", phosphate_mmol_l, low=0.1, high=5.0, unit="mmol/L")
+    return _sid_effective(hco3, alb, phos, ph_)
 
 
 def strong_ion_gap(*, sid_apparent_meq_l: float, sid_effective_meq_l: float) -> float:
@@ -1533,15 +1483,15 @@ def strong_ion_gap(*, sid_apparent_meq_l: float, sid_effective_meq_l: float) -> 
     """
     a = require_number("sid_apparent_meq_l", sid_apparent_meq_l, low=-300.0, high=300.0, unit="mEq/L")
     e = require_number("sid_effective_meq_l", sid_effective_meq_l, low=-300.0, high=300.0, unit="mEq/L")
-    return a - e
+    return _strong_ion_gap(a, e)
 
 
-def _story_effects(sbe, na, cl, albumin_g_l, constant):
+def _story_inputs(sbe, na, cl, albumin_g_l):
     s = require_number("sbe_mmol_l", sbe, low=-40.0, high=40.0, unit="mmol/L")
     na_ = _ion("na_mmol_l", na, 100.0, 190.0)
     cl_ = _ion("cl_mmol_l", cl, 60.0, 150.0)
     alb = require_number("albumin_g_l", albumin_g_l, low=5.0, high=60.0, unit="g/L")
-    return s, na_ - cl_ - constant, 0.25 * (42.0 - alb)
+    return s, na_, cl_, alb
 
 
 def base_excess_partition_story2016(
@@ -1574,9 +1524,9 @@ def base_excess_partition_story2016(
     >>> p.na_cl, p.albumin, p.lactate, round(p.unmeasured, 2)
     (-12.0, 5.0, -5.0, -1.04)
     """
-    s, na_cl, albumin = _story_effects(sbe_mmol_l, na_mmol_l, cl_mmol_l, albumin_g_l, 35.0)
-    lactate = -_ion("lactate_mmol_l", lactate_mmol_l, 0.0, 50.0)
-    return StoryPartition2016(na_cl, albumin, lactate, s - (na_cl + albumin + lactate))
+    s, na, cl, alb = _story_inputs(sbe_mmol_l, na_mmol_l, cl_mmol_l, albumin_g_l)
+    lactate = _ion("lactate_mmol_l", lactate_mmol_l, 0.0, 50.0)
+    return _story2016(s, na, cl, alb, lactate)
 
 
 def base_excess_partition_story2004(
@@ -1606,5 +1556,227 @@ def base_excess_partition_story2004(
     >>> p.na_cl, p.albumin, round(p.unmeasured_including_lactate, 2)
     (-15.0, 5.0, -3.04)
     """
-    s, na_cl, albumin = _story_effects(sbe_mmol_l, na_mmol_l, cl_mmol_l, albumin_g_l, 38.0)
-    return StoryPartition2004(na_cl, albumin, s - (na_cl + albumin))
+    s, na, cl, alb = _story_inputs(sbe_mmol_l, na_mmol_l, cl_mmol_l, albumin_g_l)
+    return _story2004(s, na, cl, alb)
+
+
+# -- the rules themselves: array-polymorphic cores -----------------------------------------------------------
+#
+# Each validated function above checks its arguments and calls one of these. They are the only implementation
+# of each formula: the scalar bridge reaches them through the functions above (and through interpret.decide),
+# the batch and Monte Carlo paths call them with numpy arrays. Written with operators and the helpers of
+# tidewell.arrays only, they never import numpy, never raise and never validate: "not given" is NaN, and a
+# result that cannot be computed is NaN (callers keep such values out of every response).
+
+
+def _ph_hh(hco3, pco2):
+    return PK_PRIME + log10(hco3 / (CO2_SOLUBILITY * pco2))
+
+
+def _hco3_hh(ph, pco2):
+    return CO2_SOLUBILITY * pco2 * 10.0 ** (ph - PK_PRIME)
+
+
+def _h_from_ph(ph):
+    return 10.0 ** (9.0 - ph)
+
+
+def _h_kassirer(pco2, hco3):
+    return KASSIRER_BLEICH_K * pco2 / hco3
+
+
+def _consistency(ph, pco2, hco3, band=CONSISTENCY_BAND_PH) -> Consistency:
+    computed = _ph_hh(hco3, pco2)
+    difference = computed - ph
+    return Consistency(
+        ph_computed=computed,
+        ph_difference=difference,
+        h_measured_nmol_l=_h_from_ph(ph),
+        h_kassirer_nmol_l=_h_kassirer(pco2, hco3),
+        consistent=abs(difference) <= band + 1e-12,
+    )
+
+
+def _sbe_clsi(ph, hco3):
+    return hco3 - 24.8 + 16.2 * (ph - NORMAL_PH)
+
+
+def _sbe_siggaard(ph, hco3):
+    return 0.9287 * (hco3 - 24.4 + 14.83 * (ph - NORMAL_PH))
+
+
+def _be_van_slyke(ph, hco3, hb):
+    return (1.0 - 0.014 * hb) * ((hco3 - 24.8) + (1.43 * hb + 7.7) * (ph - NORMAL_PH))
+
+
+def _be_zander(ph, pco2, hb, so2):
+    bracket = (0.0304 * pco2 * 10.0 ** (ph - PK_PRIME) - 24.26) + (9.5 + 1.63 * hb) * (ph - NORMAL_PH)
+    return (1.0 - 0.0143 * hb) * bracket - 0.2 * hb * (1.0 - so2)
+
+
+def _winters(hco3) -> Expected:
+    centre = 1.5 * hco3 + 8.0
+    return Expected(centre, centre - 2.0, centre + 2.0)
+
+
+def _metabolic_alkalosis_pco2(hco3, slope=0.7, half_width=5.0) -> Expected:
+    centre = NORMAL_PCO2_MMHG + slope * (hco3 - NORMAL_HCO3_MMOL_L)
+    return Expected(centre, centre - half_width, centre + half_width)
+
+
+def _hco3_linear(paco2, slope):
+    return NORMAL_HCO3_MMOL_L + slope * (paco2 - NORMAL_PCO2_MMHG) / 10.0
+
+
+def _band(paco2, default, alt_low, alt_high) -> Expected:
+    a, b, c = (_hco3_linear(paco2, s) for s in (default, alt_low, alt_high))
+    return Expected(a, minimum(minimum(a, b), c), maximum(maximum(a, b), c))
+
+
+def _respiratory_acidosis_hco3(paco2) -> RespiratoryExpectation:
+    return RespiratoryExpectation(
+        acute=_band(paco2, *RESP_ACIDOSIS_ACUTE), chronic=_band(paco2, *RESP_ACIDOSIS_CHRONIC)
+    )
+
+
+def _respiratory_alkalosis_hco3(paco2) -> RespiratoryExpectation:
+    return RespiratoryExpectation(
+        acute=_band(paco2, *RESP_ALKALOSIS_ACUTE), chronic=_band(paco2, *RESP_ALKALOSIS_CHRONIC)
+    )
+
+
+def _respiratory_acidosis_ph(paco2) -> PhRules:
+    delta = paco2 - NORMAL_PCO2_MMHG
+    return PhRules(acute=NORMAL_PH - 0.008 * delta, chronic=NORMAL_PH - 0.003 * delta)
+
+
+def _fraction_acute_hco3(paco2, hco3):
+    up = paco2 > NORMAL_PCO2_MMHG
+    acid, alk = _respiratory_acidosis_hco3(paco2), _respiratory_alkalosis_hco3(paco2)
+    chronic = where(up, acid.chronic.value, alk.chronic.value)
+    acute = where(up, acid.acute.value, alk.acute.value)
+    return div(chronic - hco3, chronic - acute)
+
+
+def _fraction_acute_ph(ph, paco2):
+    delta = paco2 - NORMAL_PCO2_MMHG
+    return div((NORMAL_PH - ph) - 0.003 * delta, 0.005 * delta)
+
+
+def _chronicity(fraction):
+    """The chronicity word of a fraction acute (NaN reads as acute-on-chronic: callers test for NaN first)."""
+    return where(
+        fraction >= ACUTE_AT_LEAST, "acute", where(fraction <= CHRONIC_AT_MOST, "chronic", "acute_on_chronic")
+    )
+
+
+def _baseline_pco2(paco2, hco3, chronic_slope=RESP_ACIDOSIS_CHRONIC[0]):
+    acute = RESP_ACIDOSIS_ACUTE[0]
+    raw = NORMAL_PCO2_MMHG + (hco3 - NORMAL_HCO3_MMOL_L - acute * (paco2 - NORMAL_PCO2_MMHG) / 10.0) / (
+        (chronic_slope - acute) / 10.0
+    )
+    return minimum(maximum(raw, NORMAL_PCO2_MMHG), paco2)
+
+
+def _hco3_on_baseline(paco2, baseline):
+    base = maximum(baseline, NORMAL_PCO2_MMHG)
+    chronic = NORMAL_HCO3_MMOL_L + RESP_ACIDOSIS_CHRONIC[0] * (base - NORMAL_PCO2_MMHG) / 10.0
+    return where(
+        paco2 >= base,
+        chronic + RESP_ACIDOSIS_ACUTE[0] * (paco2 - base) / 10.0,
+        chronic - RESP_ALKALOSIS_ACUTE[0] * (base - paco2) / 10.0,
+    )
+
+
+def _pco2_for_ph_acute(ph_target, paco2, hco3):
+    numerator = hco3 - 0.1 * paco2
+    denominator = CO2_SOLUBILITY * 10.0 ** (ph_target - PK_PRIME) - 0.1
+    return where(numerator <= 0.0, NAN, numerator / denominator)
+
+
+def _pco2_sbe_acidosis(sbe):
+    return NORMAL_PCO2_MMHG + sbe
+
+
+def _pco2_sbe_alkalosis(sbe):
+    return NORMAL_PCO2_MMHG + 0.6 * sbe
+
+
+def _sbe_respiratory(paco2):
+    return 0.0, 0.4 * (paco2 - NORMAL_PCO2_MMHG)
+
+
+def _anion_gap(na, cl, hco3):
+    return na - (cl + hco3)
+
+
+def _anion_gap_corrected(anion_gap, albumin_g_dl, normal_albumin_g_dl=NORMAL_ALBUMIN_G_DL):
+    return anion_gap + 2.5 * (normal_albumin_g_dl - albumin_g_dl)
+
+
+def _delta_ratio(anion_gap, hco3):
+    return div(anion_gap - NORMAL_ANION_GAP_MMOL_L, NORMAL_HCO3_MMOL_L - hco3)
+
+
+def _delta_gap(anion_gap, hco3):
+    return (anion_gap - NORMAL_ANION_GAP_MMOL_L) - (NORMAL_HCO3_MMOL_L - hco3)
+
+
+def _delta_ratio_band(ratio):
+    (first, first_word), (second, second_word), (third, third_word) = DELTA_RATIO_BANDS
+    return where(
+        ratio < first,
+        first_word,
+        where(
+            ratio < second,
+            second_word,
+            where(ratio <= third, third_word, "high_anion_gap_acidosis_with_raised_hco3"),
+        ),
+    )
+
+
+def _delta_gap_reading(gap):
+    return where(
+        gap < -6.0,
+        "added_normal_anion_gap_acidosis",
+        where(gap > 6.0, "added_metabolic_alkalosis", "pure_high_anion_gap"),
+    )
+
+
+def _osmolality_calculated(na, glucose, urea):
+    return 2.0 * na + glucose + urea
+
+
+def _osmolar_gap(measured, calculated):
+    return measured - calculated
+
+
+def _sid_apparent(na, k, ca_ionised, mg, cl, lactate):
+    return na + k + 2.0 * ca_ionised + 2.0 * mg - cl - lactate
+
+
+def _albumin_charge(albumin_g_l, ph):
+    return albumin_g_l * (0.123 * ph - 0.631)
+
+
+def _phosphate_charge(phosphate, ph):
+    return phosphate * (0.309 * ph - 0.469)
+
+
+def _sid_effective(hco3, albumin_g_l, phosphate, ph):
+    return hco3 + _albumin_charge(albumin_g_l, ph) + _phosphate_charge(phosphate, ph)
+
+
+def _strong_ion_gap(sid_apparent, sid_effective):
+    return sid_apparent - sid_effective
+
+
+def _story2016(sbe, na, cl, albumin_g_l, lactate) -> StoryPartition2016:
+    na_cl, albumin = na - cl - 35.0, 0.25 * (42.0 - albumin_g_l)
+    lactate_effect = -lactate
+    return StoryPartition2016(na_cl, albumin, lactate_effect, sbe - (na_cl + albumin + lactate_effect))
+
+
+def _story2004(sbe, na, cl, albumin_g_l) -> StoryPartition2004:
+    na_cl, albumin = na - cl - 38.0, 0.25 * (42.0 - albumin_g_l)
+    return StoryPartition2004(na_cl, albumin, sbe - (na_cl + albumin))

@@ -3,7 +3,22 @@
 ==================  =====================================================================================
 ``blood_gas``       bridge calculation (CONTRACT.md ``blood_gas``): inputs -> outputs, findings, cautions,
                     steps and a plain-language summary
+``decide``          every decision of the interpretation (disorders, chronicity, consistency, findings, key
+                    numbers) for one sample or for numpy arrays of samples: the one implementation the
+                    report, the batch audit and the uncertainty calculation share
+``FIELDS``          how each input is read (kind, unit, range, default): the scalar reader and the batch's
+                    array reader use this one table
+``disorders``       the ``disorders`` output of a scalar Decision
+``findings``        the finding codes of a scalar Decision, in the response's order
+``primary_process`` the primary-process rule on its own (pH, PCO2, HCO3 -> code, tentative)
 ==================  =====================================================================================
+
+Structure: ``_Sample`` reads the inputs (``FIELDS`` and the cross-field checks, written once for floats and
+arrays); :func:`decide` takes every decision with the array-polymorphic rules of :mod:`tidewell.acidbase` and
+the helpers of :mod:`tidewell.arrays` (no numpy is imported here; with floats everything runs on ``math``);
+the private narrative functions then write the report (outputs, steps, findings, cautions, summary) from the
+scalar Decision. They decide nothing that the batch or the uncertainty calculation reports (only wording: for
+example whether the pH-stat view reads "near normal").
 
 What it does, in order (REFERENCE.md 4.3, extended):
 
@@ -55,9 +70,16 @@ What it does, in order (REFERENCE.md 4.3, extended):
     view); SpO2 target (BTS 2017: 88-92 % when at risk of hypercapnic failure or hypercapnic on this arterial
     or capillary sample, else 94-98 %).
 
-The P/F ratio and a/A ratio are computed by small private helpers here (``_pf_ratio``, ``_a_over_A``) so that
-this module calls only the oxygenation functions that are settled (``alveolar_po2_simple``,
-``alveolar_po2_full``, ``aa_gradient_upper_by_age``).
+The P/F ratio (PaO2 / FiO2) and a/A ratio (PaO2 / PAO2, left out when PAO2 is not positive) are computed in
+:func:`decide`, so that this module calls only the oxygenation functions that are settled
+(``alveolar_po2_simple``, ``alveolar_po2_full``, ``aa_gradient_upper_by_age``). Those are scalar, validated
+functions of tidewell.oxygenation: on arrays :func:`tidewell.arrays.each` calls them once per distinct set of
+arguments.
+
+The consciousness threshold (clinical change with the batch work): without a known baseline, chronic retention
+is read from the PaCO2 and HCO3 alone (PaCO2 above 45 mmHg, the HCO3 rules reading chronic or
+acute-on-chronic, no metabolic acidosis named), no longer only when respiratory acidosis is the primary call,
+which flips at pH 7.40: at a fixed HCO3 the threshold now never rises as the PaCO2 rises.
 
 Optional inputs beyond the contract: ``ca_ionised``, ``mg`` (Stewart), ``normal_albumin`` (g/dL, default 4.0),
 ``rq`` (default 0.8). Every output name is listed in docs/glossary/acidbase.md.
@@ -66,9 +88,12 @@ Optional inputs beyond the contract: ``ca_ionised``, ``mg`` (Stewart), ``normal_
 from __future__ import annotations
 
 import math
+from types import SimpleNamespace
+from typing import NamedTuple
 
 from . import acidbase as ab
 from . import altitude, oxygenation, temperature, units
+from .arrays import NAN, clamp, div, each, given, log10, maximum, minimum, none_if_nan, not_, where
 from .fields import Inputs
 from .report import Report
 
@@ -114,13 +139,183 @@ FLOOR_PH = 7.45
 _CONVENTION = "tidewell_acid_base_conventions"
 
 
-def _clamp(x: float, low: float, high: float) -> float:
-    return min(max(x, low), high)
-
-
 def _r9(x: float | None) -> float | None:
     """Guard against float noise from unit conversion (1e-9 mmHg), so kPa and mmHg input classify alike."""
     return None if x is None else round(x, 9)
+
+
+class Field(NamedTuple):
+    """How one blood_gas input is read: the one table behind the scalar reader and the batch fast path."""
+
+    key: str  #: the input key of the request
+    attr: str  #: the attribute of the read sample (and of the values :func:`decide` reads)
+    kind: str  #: "ph", "quantity", "concentration", "fraction", "choice", "percent", "number" or "flag"
+    options: dict  #: the keyword arguments of the Inputs accessor (ranges in the target unit)
+    r9: bool = False  #: rounded to 1e-9 after conversion (pressures: kPa and mmHg classify alike)
+
+
+def _q(unit: str, low: float, high: float, label: str, **more) -> dict:
+    return {"unit": unit, "low": low, "high": high, "label": label, **more}
+
+
+#: every input of blood_gas, in the order it is read (the order of the error messages)
+FIELDS: tuple[Field, ...] = (
+    Field("ph", "ph", "ph", {"low": 6.5, "high": 8.0}),
+    Field(
+        "pco2",
+        "pco2",
+        "quantity",
+        _q("mmHg", 8.0, 250.0, "PCO2", required=True, plausible_word="is not survivable"),
+        r9=True,
+    ),
+    Field("hco3", "hco3", "quantity", _q("mmol/L", 1.0, 70.0, "HCO3", plausible_word="is not survivable")),
+    Field(
+        "po2",
+        "po2",
+        "quantity",
+        _q("mmHg", 15.0, 800.0, "PO2", plausible_word="is not plausible in blood"),
+        r9=True,
+    ),
+    Field("fio2", "fio2", "fraction", {"low": 0.21, "high": 1.0, "default": 0.21, "label": "FiO2"}),
+    Field("sample", "site", "choice", {"choices": SITES, "default": "arterial", "label": "sample"}),
+    Field("base_excess", "base_excess", "quantity", _q("mmol/L", -40.0, 40.0, "base excess")),
+    Field("na", "na", "quantity", _q("mmol/L", 100.0, 190.0, "sodium", substance="sodium")),
+    Field("k", "k", "quantity", _q("mmol/L", 1.0, 10.0, "potassium", substance="potassium")),
+    Field("cl", "cl", "quantity", _q("mmol/L", 60.0, 150.0, "chloride", substance="chloride")),
+    Field("albumin", "albumin", "quantity", _q("g/dL", 0.5, 6.0, "albumin")),
+    Field("lactate", "lactate", "concentration", {"low": 0.0, "high": 50.0, "label": "lactate"}),
+    Field("glucose", "glucose", "concentration", {"low": 0.0, "high": 150.0, "label": "glucose"}),
+    Field("urea", "urea_given", "concentration", {"low": 0.0, "high": 100.0, "label": "urea"}),
+    Field("bun", "bun", "concentration", {"low": 0.0, "high": 100.0, "label": "BUN (as urea)"}),
+    Field("phosphate", "phosphate", "concentration", {"low": 0.1, "high": 5.0, "label": "phosphate"}),
+    Field("measured_osmolality", "osm", "quantity", _q("mOsm/kg", 200.0, 450.0, "measured osmolality")),
+    Field("hb", "hb", "quantity", _q("g/dL", 3.0, 25.0, "haemoglobin", substance="hb")),
+    Field("spo2", "spo2", "percent", {"low": 30.0, "high": 100.0, "label": "SpO2"}),
+    Field("age", "age", "number", {"low": 0.0, "high": 120.0, "label": "age", "what": " years"}),
+    Field(
+        "temperature",
+        "temperature",
+        "quantity",
+        _q(
+            "degC",
+            15.0,
+            43.0,
+            "temperature",
+            plausible_word="is outside the range the temperature corrections cover",
+        ),
+    ),
+    Field("altitude", "altitude", "quantity", _q("m", -500.0, 9000.0, "altitude")),
+    Field(
+        "pb",
+        "pb",
+        "quantity",
+        _q(
+            "mmHg",
+            150.0,
+            1100.0,
+            "barometric pressure",
+            plausible_word="is outside the pressures people breathe at",
+        ),
+        r9=True,
+    ),
+    Field(
+        "baseline_pco2",
+        "baseline_pco2",
+        "quantity",
+        _q("mmHg", 20.0, 150.0, "baseline PCO2", plausible_word="is not a plausible usual PaCO2"),
+        r9=True,
+    ),
+    Field("hypercapnia_risk", "hypercapnia_risk", "flag", {"label": "hypercapnia_risk"}),
+    Field(
+        "ca_ionised",
+        "ca_ionised",
+        "quantity",
+        _q("mmol/L", 0.3, 3.0, "ionised calcium", substance="calcium"),
+    ),
+    Field("mg", "mg", "quantity", _q("mmol/L", 0.1, 5.0, "magnesium", substance="magnesium")),
+    Field(
+        "normal_albumin",
+        "normal_albumin",
+        "quantity",
+        _q("g/dL", 3.0, 5.5, "normal albumin", default=ab.NORMAL_ALBUMIN_G_DL),
+    ),
+    Field("rq", "rq", "number", {"low": 0.6, "high": 1.2, "label": "respiratory quotient", "default": 0.8}),
+)
+INPUT_KEYS = tuple(f.key for f in FIELDS)
+
+
+def _read(i: Inputs, f: Field):
+    """One input through its Inputs accessor (as the scalar bridge reads it)."""
+    o = f.options
+    if f.kind == "ph":
+        return _read_ph(i)
+    if f.kind == "quantity":
+        value = i.quantity(f.key, **o)
+    elif f.kind == "concentration":
+        value = _concentration(i, f.key, o["low"], o["high"], o["label"])
+    elif f.kind == "fraction":
+        value = i.fraction(f.key, **o)
+    elif f.kind == "choice":
+        value = i.choice(f.key, o["choices"], default=o["default"], label=o["label"])
+    elif f.kind == "percent":
+        value = i.percent(f.key, **o)
+    elif f.kind == "number":
+        value = i.number(f.key, **o)
+    else:
+        value = i.flag(f.key, **o)
+    return _r9(value) if f.r9 else value
+
+
+# -- cross-field checks, written once for one sample and for arrays of samples ----------------------------
+
+
+def urea_bun_disagree(urea, bun):
+    """True where urea and BUN (both as mmol/L of urea) differ by more than 5 % (of the larger, >= 1)."""
+    return abs(urea - bun) > 0.05 * maximum(maximum(urea, bun), 1.0)
+
+
+def implied_hco3(ph, pco2):
+    """The HCO3 a pH and PCO2 imply (Henderson-Hasselbalch); outside 1 to 70 mmol/L the pair is refused."""
+    return ab._hco3_hh(ph, pco2)
+
+
+def implied_hco3_survivable(value):
+    return (1.0 <= value) & (value <= 70.0)
+
+
+def inspired_po2(fio2, pb_mmhg):
+    """PIO2 = FiO2 x (PB - 47), as the PO2 plausibility checks use it [mmHg]."""
+    return fio2 * (pb_mmhg - oxygenation.PH2O_37_MMHG)
+
+
+def po2_above_inspired(po2, pio2):
+    """A PO2 more than 5 mmHg above the inspired PO2 is impossible."""
+    return po2 > pio2 + 5.0
+
+
+def no_alveolar_oxygen(pio2, pco2, rq):
+    """True where PIO2 - PaCO2 / R is below 0: no alveolar oxygen at this FiO2 although a PO2 was measured."""
+    return pio2 - pco2 / rq < 0.0
+
+
+def mix_up_flags(*, pco2, pco2_unit, baseline, baseline_unit, po2, po2_unit, site, pb, pb_unit):
+    """Values that are possible but look like a unit slip (kept, and named in ``possible_unit_mix_up``).
+
+    A dict of flags, arrays for arrays of samples; each unit is the unit the value was sent in.
+    """
+    return {
+        "pco2_low": (pco2_unit == "mmHg") & (pco2 < 15.0),
+        "pco2_high": (pco2_unit == "kPa") & (pco2 > 150.0),
+        "baseline_low": (baseline_unit == "mmHg") & (baseline < 15.0),
+        "baseline_high": (baseline_unit == "kPa") & (baseline > 150.0),
+        "po2_low": (po2_unit == "mmHg") & (po2 < 25.0) & (site != "venous"),
+        "pb_high": (pb_unit == "mmHg") & (pb > 800.0),
+    }
+
+
+def unusual_flags(*, glucose, urea, lactate):
+    """Which concentrations are possible but unusual enough to check (dict of flags)."""
+    return {"glucose": glucose > 100.0, "urea": urea > 80.0, "lactate": lactate > 30.0}
 
 
 class _Sample:
@@ -130,100 +325,15 @@ class _Sample:
         self.mix_ups: list[str] = []
         self.unusual: list[str] = []
         i = inputs
-        self.ph = _read_ph(i)
-        self.pco2 = _r9(
-            i.quantity(
-                "pco2",
-                unit="mmHg",
-                low=8.0,
-                high=250.0,
-                label="PCO2",
-                required=True,
-                plausible_word="is not survivable",
-            )
-        )
-        self.hco3 = i.quantity(
-            "hco3", unit="mmol/L", low=1.0, high=70.0, label="HCO3", plausible_word="is not survivable"
-        )
-        self.po2 = _r9(
-            i.quantity(
-                "po2",
-                unit="mmHg",
-                low=15.0,
-                high=800.0,
-                label="PO2",
-                plausible_word="is not plausible in blood",
-            )
-        )
-        self.fio2 = i.fraction("fio2", default=0.21, label="FiO2")
-        self.site = i.choice("sample", SITES, default="arterial", label="sample")
-        self.base_excess = i.quantity("base_excess", unit="mmol/L", low=-40.0, high=40.0, label="base excess")
-        self.na = i.quantity("na", unit="mmol/L", low=100.0, high=190.0, label="sodium", substance="sodium")
-        self.k = i.quantity("k", unit="mmol/L", low=1.0, high=10.0, label="potassium", substance="potassium")
-        self.cl = i.quantity(
-            "cl", unit="mmol/L", low=60.0, high=150.0, label="chloride", substance="chloride"
-        )
-        self.albumin = i.quantity("albumin", unit="g/dL", low=0.5, high=6.0, label="albumin")
-        self.lactate = _concentration(i, "lactate", 0.0, 50.0, "lactate")
-        self.glucose = _concentration(i, "glucose", 0.0, 150.0, "glucose")
-        urea = _concentration(i, "urea", 0.0, 100.0, "urea")
-        bun = _concentration(i, "bun", 0.0, 100.0, "BUN (as urea)")
-        self.phosphate = _concentration(i, "phosphate", 0.1, 5.0, "phosphate")
-        self.osm = i.quantity(
-            "measured_osmolality", unit="mOsm/kg", low=200.0, high=450.0, label="measured osmolality"
-        )
-        self.hb = i.quantity("hb", unit="g/dL", low=3.0, high=25.0, label="haemoglobin", substance="hb")
-        self.spo2 = i.percent("spo2", low=30.0, high=100.0, label="SpO2")
-        self.age = i.number("age", low=0.0, high=120.0, label="age", what=" years")
-        self.temperature = i.quantity(
-            "temperature",
-            unit="degC",
-            low=15.0,
-            high=43.0,
-            label="temperature",
-            plausible_word="is outside the range the temperature corrections cover",
-        )
-        self.altitude = i.quantity("altitude", unit="m", low=-500.0, high=9000.0, label="altitude")
-        self.pb = _r9(
-            i.quantity(
-                "pb",
-                unit="mmHg",
-                low=150.0,
-                high=1100.0,
-                label="barometric pressure",
-                plausible_word="is outside the pressures people breathe at",
-            )
-        )
-        self.baseline_pco2 = _r9(
-            i.quantity(
-                "baseline_pco2",
-                unit="mmHg",
-                low=20.0,
-                high=150.0,
-                label="baseline PCO2",
-                plausible_word="is not a plausible usual PaCO2",
-            )
-        )
-        self.hypercapnia_risk = i.flag("hypercapnia_risk", label="hypercapnia_risk")
-        self.ca_ionised = i.quantity(
-            "ca_ionised", unit="mmol/L", low=0.3, high=3.0, label="ionised calcium", substance="calcium"
-        )
-        self.mg = i.quantity("mg", unit="mmol/L", low=0.1, high=5.0, label="magnesium", substance="magnesium")
-        self.normal_albumin = i.quantity(
-            "normal_albumin",
-            unit="g/dL",
-            low=3.0,
-            high=5.5,
-            label="normal albumin",
-            default=ab.NORMAL_ALBUMIN_G_DL,
-        )
-        self.rq = i.number("rq", low=0.6, high=1.2, label="respiratory quotient", default=0.8)
+        for f in FIELDS:
+            setattr(self, f.attr, _read(i, f))
 
         # -- cross-field checks ---------------------------------------------------------------------------
+        urea, bun = self.urea_given, self.bun
         self.urea = urea
         self.urea_from = "urea" if urea is not None else ("bun" if bun is not None else None)
         if urea is not None and bun is not None:
-            if abs(urea - bun) > 0.05 * max(urea, bun, 1.0):
+            if urea_bun_disagree(urea, bun):
                 i.fail(
                     "bun",
                     i.raw.get("bun"),
@@ -235,8 +345,8 @@ class _Sample:
             self.urea = bun
         self.pb_and_altitude = self.pb is not None and self.altitude is not None
         if self.ph is not None and self.pco2 is not None:
-            implied = ab.CO2_SOLUBILITY * self.pco2 * 10.0 ** (self.ph - ab.PK_PRIME)
-            if not 1.0 <= implied <= 70.0:
+            implied = implied_hco3(self.ph, self.pco2)
+            if not implied_hco3_survivable(implied):
                 message = (
                     f"pH {self.ph:g} with PCO2 {self.pco2:.1f} mmHg implies HCO3 {implied:.3g} mmol/L, "
                     "which is not survivable (1 to 70)"
@@ -246,8 +356,8 @@ class _Sample:
                 i.fail("pco2", i.raw.get("pco2"), message, hint, code="inconsistent")
         if self.po2 is not None and self.fio2 is not None and self.site != "venous":
             pb = self.pb_value()
-            pio2 = self.fio2 * (pb - oxygenation.PH2O_37_MMHG) if pb is not None else None
-            if pio2 is not None and self.po2 > pio2 + 5.0:
+            pio2 = inspired_po2(self.fio2, pb) if pb is not None else None
+            if pio2 is not None and po2_above_inspired(self.po2, pio2):
                 i.fail(
                     "po2",
                     i.raw.get("po2"),
@@ -257,8 +367,9 @@ class _Sample:
                     code="inconsistent",
                 )
             elif pio2 is not None and self.pco2 is not None:
-                alveolar = pio2 - self.pco2 / (self.rq if self.rq is not None else 0.8)
-                if alveolar < 0.0:
+                rq = self.rq if self.rq is not None else 0.8
+                if no_alveolar_oxygen(pio2, self.pco2, rq):
+                    alveolar = pio2 - self.pco2 / rq
                     i.fail(
                         "fio2",
                         i.raw.get("fio2", self.fio2),
@@ -270,12 +381,16 @@ class _Sample:
         self._grey_zone(i)
         i.finish()
 
+    def values(self) -> SimpleNamespace:
+        """The sample in the terms of :func:`decide`: NaN for what was not given."""
+        v = SimpleNamespace(**{name: _nan(getattr(self, name, None)) for name in NUMERIC_FIELDS})
+        v.pb_value = self.pb_value()
+        v.site, v.hypercapnia_risk = self.site, self.hypercapnia_risk
+        v.mix_up, v.unusual, v.pb_and_altitude = bool(self.mix_ups), bool(self.unusual), self.pb_and_altitude
+        return v
+
     def pb_value(self) -> float | None:
-        if self.pb is not None:
-            return self.pb
-        if self.altitude is not None:
-            return altitude.pressure_at_altitude_isa(altitude_m=self.altitude)
-        return 760.0
+        return pb_value(self.pb, self.altitude)
 
     def _grey_zone(self, i: Inputs) -> None:
         """Values that are possible but look like a unit slip: kept, and named in a finding."""
@@ -284,44 +399,67 @@ class _Sample:
             raw = i.raw.get(key)
             return raw.get("unit") if isinstance(raw, dict) else None
 
+        flags = mix_up_flags(
+            pco2=_nan(self.pco2),
+            pco2_unit=unit_of("pco2"),
+            baseline=_nan(self.baseline_pco2),
+            baseline_unit=unit_of("baseline_pco2"),
+            po2=_nan(self.po2),
+            po2_unit=unit_of("po2"),
+            site=self.site,
+            pb=_nan(self.pb),
+            pb_unit=unit_of("pb"),
+        )
         for key, label, value in (
             ("pco2", "PCO2", self.pco2),
-            ("baseline_pco2", "baseline PCO2", self.baseline_pco2),
+            ("baseline", "baseline PCO2", self.baseline_pco2),
         ):
-            if value is None:
-                continue
-            if unit_of(key) == "mmHg" and value < 15.0:
+            if flags[f"{key}_low"]:
                 self.mix_ups.append(
                     f"{label} {value:g} mmHg is extremely low; if it was {value:g} kPa "
                     f"({units.convert(value, 'kPa', 'mmHg'):.0f} mmHg), re-enter it in kPa."
                 )
-            if unit_of(key) == "kPa" and value > 150.0:
-                given = units.convert(value, "mmHg", "kPa")
+            if flags[f"{key}_high"]:
+                given_kpa = units.convert(value, "mmHg", "kPa")
                 self.mix_ups.append(
-                    f"{label} {given:.3g} kPa ({value:.0f} mmHg) is extremely high; if it was {given:.3g} "
-                    "mmHg, re-enter it in mmHg."
+                    f"{label} {given_kpa:.3g} kPa ({value:.0f} mmHg) is extremely high; if it was "
+                    f"{given_kpa:.3g} mmHg, re-enter it in mmHg."
                 )
-        if self.po2 is not None and unit_of("po2") == "mmHg" and self.po2 < 25.0 and self.site != "venous":
+        if flags["po2_low"]:
             self.mix_ups.append(
                 f"PO2 {self.po2:g} mmHg is extremely low for a {self.site} sample; if it was {self.po2:g} "
                 f"kPa ({units.convert(self.po2, 'kPa', 'mmHg'):.0f} mmHg), re-enter it in kPa."
             )
-        if self.pb is not None and unit_of("pb") == "mmHg" and self.pb > 800.0:
+        if flags["pb_high"]:
             as_hpa = units.convert(self.pb, "hPa", "mmHg")
             self.mix_ups.append(
                 f"Barometric pressure {self.pb:g} mmHg is above sea-level pressure; if it was {self.pb:g} "
                 f"hPa ({as_hpa:.0f} mmHg), re-enter it in hPa."
             )
-        if self.glucose is not None and self.glucose > 100.0:
+        odd = unusual_flags(glucose=_nan(self.glucose), urea=_nan(self.urea), lactate=_nan(self.lactate))
+        if odd["glucose"]:
             self.unusual.append(
                 f"glucose {self.glucose:.0f} mmol/L is above 100 mmol/L: check the value and unit"
             )
-        if self.urea is not None and self.urea > 80.0:
+        if odd["urea"]:
             self.unusual.append(f"urea {self.urea:.0f} mmol/L is above 80 mmol/L: check the value and unit")
-        if self.lactate is not None and self.lactate > 30.0:
+        if odd["lactate"]:
             self.unusual.append(
                 f"lactate {self.lactate:.0f} mmol/L is above 30 mmol/L: check the value and unit"
             )
+
+
+def pb_value(pb, altitude_m):
+    """Barometric pressure used [mmHg]: the measured one, else the ISA pressure at the altitude, else 760."""
+    if pb is not None:
+        return pb
+    if altitude_m is not None:
+        return altitude.pressure_at_altitude_isa(altitude_m=altitude_m)
+    return 760.0
+
+
+def _nan(value: float | None) -> float:
+    return NAN if value is None else value
 
 
 def _concentration(i: Inputs, key: str, low: float, high: float, label: str) -> float | None:
@@ -368,26 +506,681 @@ def _read_ph(i: Inputs) -> float | None:
     return None
 
 
-class _Work:
-    """Everything derived while interpreting one sample."""
+# -- the decisions: one implementation for the scalar report, the batch audit and the Monte Carlo ------------
 
-    def __init__(self, s: _Sample, report: Report):
+#: the numeric inputs ``decide`` reads (NaN when not given), besides ``site``, ``hypercapnia_risk`` and the
+#: three reading flags
+NUMERIC_FIELDS = (
+    "ph",
+    "pco2",
+    "hco3",
+    "po2",
+    "fio2",
+    "base_excess",
+    "na",
+    "k",
+    "cl",
+    "albumin",
+    "lactate",
+    "glucose",
+    "urea",
+    "phosphate",
+    "osm",
+    "hb",
+    "spo2",
+    "age",
+    "temperature",
+    "pb_value",
+    "baseline_pco2",
+    "ca_ionised",
+    "mg",
+    "normal_albumin",
+    "rq",
+)
+
+#: every finding code of the blood_gas report, in the order the report emits them (the response then sorts
+#: them by severity, keeping this order within a severity)
+FINDING_ORDER = (
+    "possible_unit_mix_up",
+    "value_unusual",
+    "pb_used_not_altitude",
+    "inconsistent_triple",
+    "provisional_interpretation",
+    "hco3_calculated",
+    "base_excess_differs",
+    "borderline_values",
+    "concurrent_respiratory_acidosis",
+    "concurrent_respiratory_alkalosis",
+    "compensation_as_expected",
+    "ph_rule_drift",
+    "chronicity_not_judged",
+    "concurrent_metabolic_acidosis",
+    "concurrent_metabolic_alkalosis",
+    "chronic_slope_uncertain",
+    "chronicity_rules_disagree",
+    "baseline_and_hco3_disagree",
+    "anion_gap_low",
+    "osmolar_gap_raised",
+    "lactate_raised",
+    "anion_gap_needs_electrolytes",
+    "high_anion_gap_acidosis_found",
+    "anion_gap_raised",
+    "metabolic_alkalosis_from_gap",
+    "anion_gap_reading",
+    "chronicity_indeterminate",
+    "respiratory_chronicity_assumed",
+    "stewart_assumed_values",
+    "strong_ion_gap_raised",
+    "approaches_agree",
+    "approaches_disagree",
+    "boston_copenhagen_chronicity",
+    "baseline_estimate_unreliable",
+    "pco2_target",
+    "target_below_alkalaemia_floor",
+    "pco2_below_baseline",
+    "niv_criteria_need_arterial_sample",
+    "niv_criteria_met",
+    "pco2_above_consciousness_threshold",
+    "venous_po2_not_interpreted",
+    "po2_above_alveolar",
+    "a_a_on_oxygen",
+    "hypoxaemia_masked_by_oxygen",
+    "respiratory_failure_type_1",
+    "respiratory_failure_type_2",
+    "pure_hypoventilation",
+    "gas_exchange_impaired",
+    "low_inspired_oxygen",
+    "a_a_needs_age",
+    "capillary_po2",
+    "temperature_ph_stat_view",
+    "spo2_target",
+    "hypercapnic_without_risk_flag",
+    "risk_flag_with_normal_pco2",
+    "spo2_below_target",
+    "spo2_above_target",
+    "severe_acidaemia",
+    "severe_alkalaemia",
+    "normal_ph_single_disorder",
+    "venous_sample",
+    "capillary_sample",
+)
+
+#: severities of the findings whose severity never changes (the others are in ``Decision.severity``)
+SEVERITY = {
+    "possible_unit_mix_up": "notable",
+    "value_unusual": "notable",
+    "pb_used_not_altitude": "info",
+    "inconsistent_triple": "urgent",
+    "provisional_interpretation": "notable",
+    "hco3_calculated": "info",
+    "base_excess_differs": "notable",
+    "borderline_values": "info",
+    "concurrent_respiratory_acidosis": "notable",
+    "concurrent_respiratory_alkalosis": "notable",
+    "compensation_as_expected": "info",
+    "ph_rule_drift": "info",
+    "chronicity_not_judged": "info",
+    "concurrent_metabolic_acidosis": "notable",
+    "concurrent_metabolic_alkalosis": "notable",
+    "chronic_slope_uncertain": "info",
+    "chronicity_rules_disagree": "info",
+    "baseline_and_hco3_disagree": "info",
+    "anion_gap_low": "notable",
+    "osmolar_gap_raised": "notable",
+    "lactate_raised": "notable",
+    "anion_gap_needs_electrolytes": "info",
+    "high_anion_gap_acidosis_found": "notable",
+    "anion_gap_raised": "info",
+    "metabolic_alkalosis_from_gap": "notable",
+    "anion_gap_reading": "info",
+    "chronicity_indeterminate": "info",
+    "respiratory_chronicity_assumed": "info",
+    "stewart_assumed_values": "info",
+    "strong_ion_gap_raised": "info",
+    "approaches_agree": "info",
+    "boston_copenhagen_chronicity": "info",
+    "baseline_estimate_unreliable": "notable",
+    "pco2_target": "notable",
+    "target_below_alkalaemia_floor": "notable",
+    "pco2_below_baseline": "notable",
+    "niv_criteria_need_arterial_sample": "notable",
+    "pco2_above_consciousness_threshold": "urgent",
+    "venous_po2_not_interpreted": "notable",
+    "po2_above_alveolar": "notable",
+    "a_a_on_oxygen": "info",
+    "hypoxaemia_masked_by_oxygen": "notable",
+    "respiratory_failure_type_1": "notable",
+    "respiratory_failure_type_2": "notable",
+    "pure_hypoventilation": "notable",
+    "gas_exchange_impaired": "notable",
+    "low_inspired_oxygen": "notable",
+    "a_a_needs_age": "info",
+    "capillary_po2": "notable",
+    "temperature_ph_stat_view": "info",
+    "spo2_target": "info",
+    "hypercapnic_without_risk_flag": "notable",
+    "risk_flag_with_normal_pco2": "info",
+    "spo2_below_target": "notable",
+    "severe_acidaemia": "urgent",
+    "severe_alkalaemia": "urgent",
+    "normal_ph_single_disorder": "info",
+    "venous_sample": "notable",
+    "capillary_sample": "info",
+}
+
+#: the four disorder codes, in the contract's order
+DISORDER_CODES = (MET_ACID, MET_ALK, RESP_ACID, RESP_ALK)
+#: "no code" in the array-polymorphic decisions (None in the report)
+NONE = ""
+
+
+class Decision(SimpleNamespace):
+    """Everything :func:`decide` works out about one sample (scalars) or many (arrays of the same length).
+
+    Numbers that do not apply are NaN; words that do not apply are ``""``. The main attributes:
+
+    - ``primary`` (final primary disorder code, or ``""``), ``has`` (code -> bool), ``stage`` (code -> the
+      step that named it: 0 primary, 1 compensation rules, 2 anion gap, 3 gap-based alkalosis; the order of
+      the ``disorders`` list), ``chronicity`` and ``fraction_acute`` of the respiratory disorder;
+    - ``consistency``, ``doubtful``, the numbers every rule used (``hco3``, ``sbe``, gaps, oxygenation ...);
+    - ``finding`` (code -> bool, every code of :data:`FINDING_ORDER`) and ``severity`` (code -> severity, for
+      the codes whose severity depends on the sample);
+    - ``niv``, ``respiratory_failure``, ``a_a_category``, ``spo2_low``/``spo2_high``, ``pco2_target``,
+      ``consciousness_threshold`` and the other key outputs.
+    """
+
+
+def _ones(flag):
+    """1 where ``flag`` holds, else 0 (so flags can be counted: numpy adds boolean arrays as a logical or)."""
+    return where(flag, 1, 0)
+
+
+def _primary_process(ph, pco2, hco3):
+    """(primary code or ``""``, tentative) for the pH, PCO2 and HCO3 the rules use (see primary_process)."""
+    resp_w = abs(log10(pco2 / ab.NORMAL_PCO2_MMHG))
+    met_w = abs(log10(ab.NORMAL_HCO3_MMOL_L / hco3))
+    resp_larger = resp_w >= met_w  # a tie names the respiratory process
+
+    def side(resp_ok, met_ok, resp_code, met_code, resp_lean, met_lean):
+        larger = where(resp_larger, resp_code, met_code)
+        one = where(resp_ok, resp_code, met_code)
+        nothing = not_(resp_ok | met_ok)
+        # no value outside its range: the larger contribution among those on this side of 40 / 24 (tentative)
+        lean = where(
+            resp_lean & met_lean, larger, where(resp_lean, resp_code, where(met_lean, met_code, NONE))
+        )
+        return where(resp_ok & met_ok, larger, where(nothing, lean, one)), nothing
+
+    ma, ra = hco3 < HCO3_LOW, pco2 > PCO2_HIGH
+    mk, rk = hco3 > HCO3_HIGH, pco2 < PCO2_LOW
+    acid_code, acid_tentative = side(
+        ra, ma, RESP_ACID, MET_ACID, pco2 > ab.NORMAL_PCO2_MMHG, hco3 < ab.NORMAL_HCO3_MMOL_L
+    )
+    alk_code, alk_tentative = side(
+        rk, mk, RESP_ALK, MET_ALK, pco2 < ab.NORMAL_PCO2_MMHG, hco3 > ab.NORMAL_HCO3_MMOL_L
+    )
+    any_acid, any_alk = ra | ma, rk | mk
+    acid_side = where(
+        ph < PH_LOW, True, where(ph > PH_HIGH, False, where(ph < ab.NORMAL_PH, any_acid, not_(any_alk)))
+    )
+    quiet = (ph >= PH_LOW) & (ph <= PH_HIGH) & not_(any_acid | any_alk)
+    code = where(quiet, NONE, where(acid_side, acid_code, alk_code))
+    tentative = where(quiet, False, where(acid_side, acid_tentative, alk_tentative))
+    return code, tentative
+
+
+def decide(x) -> Decision:
+    """Every decision of the blood_gas interpretation, for one sample or for arrays of samples.
+
+    ``x`` has the attributes of :data:`NUMERIC_FIELDS` (pressures in mmHg, concentrations in mmol/L, albumin
+    and normal albumin in g/dL, temperature in degC; NaN when not given), ``site`` (word),
+    ``hypercapnia_risk`` (bool) and the reading flags ``mix_up``, ``unusual`` and ``pb_and_altitude``
+    (bool). Floats give a :class:`Decision` of floats, words and bools; numpy arrays (numpy loaded by the
+    caller) give arrays.
+    :func:`blood_gas` builds its report on the scalar answer; the batch audit and the uncertainty calculation
+    use the array answer, so all three apply the same rules by construction.
+    """
+    d = Decision()
+    ph, p, site, risk = x.ph, x.pco2, x.site, x.hypercapnia_risk
+    venous, capillary = site == "venous", site == "capillary"
+    f = {}
+    sev = {}
+    f["possible_unit_mix_up"] = x.mix_up
+    f["value_unusual"] = x.unusual
+    f["pb_used_not_altitude"] = x.pb_and_altitude
+
+    # -- HCO3, consistency, base excess (REFERENCE.md 2-3) ---------------------------------------------------
+    hco3_given = given(x.hco3)
+    d.hco3_given = hco3_given
+    d.hco3_computed = ab._hco3_hh(ph, p)
+    d.h_measured = ab._h_from_ph(ph)
+    c = ab._consistency(ph, p, x.hco3)
+    d.ph_computed, d.ph_difference, d.h_kassirer = c.ph_computed, c.ph_difference, c.h_kassirer_nmol_l
+    d.doubtful = doubtful = hco3_given & not_(c.consistent)
+    sound = not_(doubtful)
+    d.consistency = where(doubtful, "inconsistent", "consistent")
+    d.hco3_out = where(hco3_given, x.hco3, d.hco3_computed)
+    d.hco3 = h = where(hco3_given & c.consistent, x.hco3, d.hco3_computed)
+    f["inconsistent_triple"] = f["provisional_interpretation"] = doubtful
+    f["hco3_calculated"] = not_(hco3_given)
+    d.sbe = sbe = ab._sbe_clsi(ph, d.hco3_out)
+    so2 = where(given(x.spo2), x.spo2 / 100.0, 1.0)
+    d.sbe_siggaard = ab._sbe_siggaard(ph, d.hco3_out)
+    d.sbe_van_slyke_hb5 = ab._be_van_slyke(ph, d.hco3_out, 5.0)
+    d.be_blood = ab._be_van_slyke(ph, d.hco3_out, x.hb)
+    d.be_zander = ab._be_zander(ph, p, x.hb, so2)
+    low = minimum(minimum(sbe, d.sbe_siggaard), d.sbe_van_slyke_hb5)
+    high = maximum(maximum(sbe, d.sbe_siggaard), d.sbe_van_slyke_hb5)
+    with_hb = given(x.hb)
+    d.be_low = where(with_hb, minimum(minimum(low, d.be_blood), d.be_zander), low)
+    d.be_high = where(with_hb, maximum(maximum(high, d.be_blood), d.be_zander), high)
+    be = x.base_excess
+    d.be_difference = be - sbe
+    f["base_excess_differs"] = given(be) & not_((d.be_low - 2.0 <= be) & (be <= d.be_high + 2.0))
+    d.ph_status = where(ph < PH_LOW, "acidaemia", where(ph > PH_HIGH, "alkalaemia", "normal"))
+    d.pco2_status = where(p > PCO2_HIGH, "hypercapnia", where(p < PCO2_LOW, "hypocapnia", "normal"))
+
+    # -- primary process and compensation (REFERENCE.md 4.1, 4.3) --------------------------------------------
+    primary0, tentative = _primary_process(ph, p, h)
+    d.primary_classified, d.tentative = primary0, tentative
+    f["borderline_values"] = tentative & (primary0 != NONE)
+    met0 = (primary0 == MET_ACID) | (primary0 == MET_ALK)
+    resp0 = (primary0 == RESP_ACID) | (primary0 == RESP_ALK)
+    d.respiratory_primary = resp0
+    winters, alkalosis = ab._winters(h), ab._metabolic_alkalosis_pco2(h)
+    d.winters = winters
+    # a metabolic primary: is the PaCO2 inside the band compensation explains?
+    e_high = where(primary0 == MET_ACID, winters.high, alkalosis.high)
+    e_low = where(primary0 == MET_ACID, winters.low, alkalosis.low)
+    above, below = met0 & (p > e_high), met0 & (p < e_low)
+    d.response = where(above, RESP_ACID, where(below, RESP_ALK, NONE))
+    f["concurrent_respiratory_acidosis"] = above
+    f["concurrent_respiratory_alkalosis"] = met0 & not_(above) & below
+    f["compensation_as_expected"] = met0 & not_(above | below)
+    below = f["concurrent_respiratory_alkalosis"]
+
+    # a respiratory primary: acute and chronic expectations, fraction acute, a concurrent metabolic process
+    acid = primary0 == RESP_ACID
+    d.acid = acid
+    e_acid, e_alk = ab._respiratory_acidosis_hco3(p), ab._respiratory_alkalosis_hco3(p)
+    d.e_acid = e_acid
+    d.e_acute = ab.Expected(*(where(acid, a, b) for a, b in zip(e_acid.acute, e_alk.acute, strict=True)))
+    d.e_chronic = ab.Expected(
+        *(where(acid, a, b) for a, b in zip(e_acid.chronic, e_alk.chronic, strict=True))
+    )
+    ea, ec = d.e_acute.value, d.e_chronic.value
+    delta = p - ab.NORMAL_PCO2_MMHG
+    d.margin = margin = maximum(HCO3_MARGIN_MIN, 0.2 * abs(ec - ea))
+    d.judge = judge = abs(delta) >= 5.0
+    d.f_h = f_h = where(abs(delta) >= 1.0, ab._fraction_acute_hco3(p, h), NAN)
+    d.ph_rules = ab._respiratory_acidosis_ph(p)
+    d.ph_hh_acute = ab._ph_hh(e_acid.acute.value, p)
+    d.ph_hh_chronic = ab._ph_hh(e_acid.chronic.value, p)
+    d.f_ph = f_ph = where(acid & (p >= 41.0), ab._fraction_acute_ph(ph, p), NAN)
+    f["ph_rule_drift"] = acid & (delta > 30.0)
+    b = x.baseline_pco2
+    has_b = given(b)
+    on_baseline = acid & has_b
+    d.hco3_on_baseline = ab._hco3_on_baseline(p, b)
+    base = maximum(b, ab.NORMAL_PCO2_MMHG)
+    d.f_b = f_b = where(
+        on_baseline, where((p > base) & (delta > 0), clamp(div(p - base, delta), 0.0, 1.0), 0.0), NAN
+    )
+    d.low_ref = low_ref = where(on_baseline, d.hco3_on_baseline, where(acid, ea, ec))
+    d.high_ref = high_ref = where(on_baseline, d.hco3_on_baseline, where(acid, ec, ea))
+    met_acid = resp0 & (h < low_ref - margin)
+    met_alk = resp0 & (h > high_ref + margin)
+    by_h = where(given(f_h), ab._chronicity(f_h), "acute")
+    by_b = ab._chronicity(f_b)
+    judged_b = judge & given(f_b)
+    judged_h = judge & not_(met_acid | met_alk) & given(f_h)
+    resp_chronicity = where(judged_b, by_b, where(judged_h, by_h, where(given(f_b), by_b, by_h)))
+    resp_fraction = where(judged_b, f_b, where(judged_h, clamp(f_h, 0.0, 1.0), NAN))
+    f["chronicity_not_judged"] = resp0 & not_(judge)
+    f["concurrent_metabolic_acidosis"] = met_acid
+    f["concurrent_metabolic_alkalosis"] = met_alk
+    f["chronic_slope_uncertain"] = met_alk & acid & not_(given(f_b)) & (h <= e_acid.chronic.high + margin)
+    d.by_ph = by_ph = ab._chronicity(f_ph)
+    f["chronicity_rules_disagree"] = (
+        resp0 & acid & not_(given(f_b)) & given(f_ph) & (by_ph != resp_chronicity)
+    )
+    f["baseline_and_hco3_disagree"] = (
+        resp0
+        & given(f_b)
+        & given(f_h)
+        & judge
+        & not_(met_acid | met_alk)
+        & (ab._chronicity(f_h) != resp_chronicity)
+    )
+    has_ma = (primary0 == MET_ACID) | met_acid
+    has_mk = (primary0 == MET_ALK) | met_alk
+    has_ra = (primary0 == RESP_ACID) | above
+    has_rk = (primary0 == RESP_ALK) | below
+
+    # -- gaps (REFERENCE.md 5); named disorders only on consistent data --------------------------------------
+    na, cl = x.na, x.cl
+    d.has_gap = has_gap = given(na) & given(cl)
+    d.anion_gap = ag = ab._anion_gap(na, cl, d.hco3_out)
+    d.anion_gap_with_k = ag + x.k
+    with_albumin = given(x.albumin)
+    d.anion_gap_corrected = ab._anion_gap_corrected(ag, x.albumin, x.normal_albumin)
+    d.ag_used = used = where(with_albumin, d.anion_gap_corrected, ag)
+    d.dr_given = has_gap & (d.hco3_out < 23.5)
+    d.delta_ratio = ab._delta_ratio(used, d.hco3_out)
+    d.delta_ratio_band = band = ab._delta_ratio_band(d.delta_ratio)
+    d.delta_gap = dg = ab._delta_gap(used, d.hco3_out)
+    d.delta_gap_reading = ab._delta_gap_reading(dg)
+    f["anion_gap_low"] = has_gap & (used < 3.0)
+    d.osm_calc_given = given(na) & given(x.glucose) & given(x.urea)
+    d.osmolality_calculated = ab._osmolality_calculated(na, x.glucose, x.urea)
+    d.osm_gap_given = d.osm_calc_given & given(x.osm)
+    d.osmolar_gap = ab._osmolar_gap(x.osm, d.osmolality_calculated)
+    f["osmolar_gap_raised"] = d.osm_gap_given & (d.osmolar_gap >= 10.0)
+    f["lactate_raised"] = sound & (x.lactate > 2.0)
+    f["anion_gap_needs_electrolytes"] = sound & not_(has_gap) & has_ma
+    gap = sound & has_gap
+    found = gap & not_(has_ma) & (used >= AG_ALWAYS_ACIDOSIS)
+    f["high_anion_gap_acidosis_found"] = found
+    d.gap_primary = found & (primary0 == NONE)
+    d.primary = primary = where(d.gap_primary, MET_ACID, primary0)
+    has_ma = has_ma | found
+    f["anion_gap_raised"] = gap & not_(has_ma) & (used > ab.NORMAL_ANION_GAP_MMOL_L + 4.0)
+    acidosis = gap & has_ma
+    d.winters_concurrent = acidosis & (primary != MET_ACID)
+    d.hco3_before_gap = before = h + (used - ab.NORMAL_ANION_GAP_MMOL_L)
+    normal_ag = used <= ab.NORMAL_ANION_GAP_MMOL_L
+    d.before_shown = acidosis & not_(normal_ag) & resp0
+    type_resp = where(before < low_ref - margin, "high_and_normal_anion_gap", "high_anion_gap")
+    type_band = where(
+        d.dr_given & (band == "normal_anion_gap_acidosis"),
+        "normal_anion_gap",
+        where(
+            d.dr_given & (band == "high_and_normal_anion_gap_acidosis"),
+            "high_and_normal_anion_gap",
+            "high_anion_gap",
+        ),
+    )
+    d.acidosis_type = where(
+        acidosis, where(normal_ag, "normal_anion_gap", where(resp0, type_resp, type_band)), NONE
+    )
+    raised = acidosis & not_(normal_ag) & not_(has_mk)
+    alk_after_gap = raised & resp0 & (before > high_ref + margin)
+    alk_delta_gap = raised & not_(resp0) & not_(d.dr_given) & (dg > 6.0)
+    alk_delta_ratio = raised & not_(resp0) & d.dr_given & (band == "high_anion_gap_acidosis_with_raised_hco3")
+    d.alkalosis_from_gap = where(
+        alk_after_gap,
+        "hco3_before_gap",
+        where(alk_delta_gap, "delta_gap", where(alk_delta_ratio, "delta_ratio", NONE)),
+    )
+    from_gap = alk_after_gap | alk_delta_gap | alk_delta_ratio
+    f["metabolic_alkalosis_from_gap"] = from_gap
+    f["anion_gap_reading"] = acidosis
+    d.has_mk_before_gap = has_mk
+    has_mk = has_mk | from_gap
+
+    # -- chronicity when a metabolic disorder also moves the HCO3 --------------------------------------------
+    metabolic = has_ma | has_mk
+    indeterminate = resp0 & not_(given(f_b)) & metabolic
+    f["chronicity_indeterminate"] = indeterminate
+    resp_fraction = where(indeterminate, NAN, resp_fraction)
+    concurrent = met0 & (above | below)
+    conc_b = concurrent & has_b & above & (p > ab.NORMAL_PCO2_MMHG + 1.0)
+    d.concurrent_from_baseline = conc_b
+    conc_f = where(conc_b, clamp(div(p - base, p - ab.NORMAL_PCO2_MMHG), 0.0, 1.0), NAN)
+    f["respiratory_chronicity_assumed"] = concurrent & not_(conc_b)
+    d.chronicity = where(
+        resp0, resp_chronicity, where(conc_b, ab._chronicity(conc_f), where(concurrent, "acute", NONE))
+    )
+    d.fraction_acute = where(resp0, resp_fraction, conc_f)
+    d.fraction_acute_baseline = where(resp0, f_b, conc_f)
+    d.has = {MET_ACID: has_ma, MET_ALK: has_mk, RESP_ACID: has_ra, RESP_ALK: has_rk}
+    d.stage = {
+        MET_ACID: where(primary == MET_ACID, 0, where(met_acid, 1, 2)),
+        MET_ALK: where(primary == MET_ALK, 0, where(met_alk, 1, 3)),
+        RESP_ACID: where(primary == RESP_ACID, 0, 1),
+        RESP_ALK: where(primary == RESP_ALK, 0, 1),
+    }
+    d.count = _ones(has_ma) + _ones(has_mk) + _ones(has_ra) + _ones(has_rk)
+
+    # -- Copenhagen (SBE) reading ----------------------------------------------------------------------------
+    sbe_ok = (-40.0 <= sbe) & (sbe <= 40.0)
+    cph = sound & sbe_ok
+    d.copenhagen = cph
+    d.cph_pco2_given = cph & ((primary == MET_ACID) | (primary == MET_ALK))
+    x_acid, x_alk = ab._pco2_sbe_acidosis(sbe), ab._pco2_sbe_alkalosis(sbe)
+    d.cph_pco2 = where(primary == MET_ACID, x_acid, x_alk)
+    d.cph_fits = where(primary == MET_ACID, abs(p - x_acid) <= 2.0, abs(p - x_alk) <= 5.0)
+    sbe_acute, sbe_chronic = ab._sbe_respiratory(p)
+    d.sbe_acute, d.sbe_chronic = sbe_acute, sbe_chronic
+    lo = where(resp0, minimum(sbe_acute, sbe_chronic), 0.0)
+    hi = where(resp0, maximum(sbe_acute, sbe_chronic), 0.0)
+    near_a = abs(sbe - sbe_acute) <= SBE_TOLERANCE
+    near_c = abs(sbe - sbe_chronic) <= SBE_TOLERANCE
+    d.cph_chronicity_given = cph & resp0 & (lo - SBE_TOLERANCE <= sbe) & (sbe <= hi + SBE_TOLERANCE) & judge
+    d.cph_chronicity = where(
+        near_a & near_c, NONE, where(near_a, "acute", where(near_c, "chronic", "acute_on_chronic"))
+    )
+    d.cph_acid = sbe < lo - SBE_TOLERANCE
+    d.cph_alk = sbe > hi + SBE_TOLERANCE
+
+    # -- Stewart ---------------------------------------------------------------------------------------------
+    d.stewart_full = full = with_albumin & sbe_ok
+    lactate_given = given(x.lactate)
+    alb_g_l = x.albumin * 10.0
+    d.story2016 = ab._story2016(sbe, na, cl, alb_g_l, where(lactate_given, x.lactate, 0.0))
+    d.story2004 = ab._story2004(sbe, na, cl, alb_g_l)
+    d.na_cl_effect = na - cl - 35.0
+    effects = {
+        "na_cl": (has_gap, d.na_cl_effect),
+        "albumin": (has_gap & full, d.story2016.albumin),
+        "unmeasured": (has_gap & full, d.story2016.unmeasured),
+        "lactate": (has_gap & lactate_given, -x.lactate),
+    }
+    d.effect_acidifying = {k: ok & (v <= -STEWART_EFFECT) for k, (ok, v) in effects.items()}
+    d.effect_alkalinising = {k: ok & (v >= STEWART_EFFECT) for k, (ok, v) in effects.items()}
+    st_acid = st_alk = False
+    for k in effects:
+        st_acid = st_acid | d.effect_acidifying[k]
+        st_alk = st_alk | d.effect_alkalinising[k]
+    d.sig_given = sig_ok = has_gap & given(x.k) & with_albumin
+    d.assumed = {
+        "ca": not_(given(x.ca_ionised)),
+        "mg": not_(given(x.mg)),
+        "phosphate": not_(given(x.phosphate)),
+        "lactate": not_(lactate_given),
+    }
+    ca = where(given(x.ca_ionised), x.ca_ionised, TYPICAL_CA_IONISED)
+    mg = where(given(x.mg), x.mg, TYPICAL_MG)
+    phos = where(given(x.phosphate), x.phosphate, TYPICAL_PHOSPHATE)
+    d.stewart_terms = (ca, mg, phos)
+    d.sid_apparent = ab._sid_apparent(na, x.k, ca, mg, cl, where(lactate_given, x.lactate, 0.0))
+    d.albumin_charge = ab._albumin_charge(alb_g_l, ph)
+    d.phosphate_charge = ab._phosphate_charge(phos, ph)
+    d.sid_effective = ab._sid_effective(d.hco3_out, alb_g_l, phos, ph)
+    d.strong_ion_gap = ab._strong_ion_gap(d.sid_apparent, d.sid_effective)
+    any_assumed = d.assumed["ca"] | d.assumed["mg"] | d.assumed["phosphate"] | d.assumed["lactate"]
+    f["stewart_assumed_values"] = sound & sig_ok & any_assumed
+    f["strong_ion_gap_raised"] = sound & sig_ok & (d.strong_ion_gap > 4.0)
+
+    # -- the three readings of the metabolic component side by side ------------------------------------------
+    agree_bc = (has_ma == d.cph_acid) & (has_mk == d.cph_alk)
+    d.resp_differs = d.cph_pco2_given & ((has_ra | has_rk) == d.cph_fits)
+    d.stewart_pair_given = has_gap & full
+    stewart_agrees = (st_acid == has_ma) & (st_alk == has_mk)
+    agree_all = agree_bc & not_(d.resp_differs) & (not_(d.stewart_pair_given) | stewart_agrees)
+    d.agree_bc, d.stewart_acid, d.stewart_alk = agree_bc, st_acid, st_alk
+    f["approaches_agree"] = cph & agree_all
+    f["approaches_disagree"] = cph & not_(agree_all)
+    sev["approaches_disagree"] = where(agree_bc, "info", "notable")
+    f["boston_copenhagen_chronicity"] = (
+        cph & d.cph_chronicity_given & (d.cph_chronicity != NONE) & (resp_chronicity != d.cph_chronicity)
+    )
+
+    # -- ventilation safety ----------------------------------------------------------------------------------
+    d.target_given = target = has_ra | has_b
+    floor = ab._pco2_for_ph_acute(FLOOR_PH, p, h)
+    d.floor = floor = where(has_ra & given(floor) & (8.0 <= floor) & (floor < p), floor, NAN)
+    met_primary = (primary == MET_ACID) | (primary == MET_ALK)
+    d.met_expected = ab.Expected(
+        *(where(primary == MET_ACID, a, c_) for a, c_ in zip(winters, alkalosis, strict=True))
+    )
+    d.baseline_estimated = ab._baseline_pco2(maximum(p, 41.0), h)
+    d.baseline_low = ab._baseline_pco2(maximum(p, 41.0), h, 5.0)
+    d.baseline_high = ab._baseline_pco2(maximum(p, 41.0), h, 3.0)
+    by_estimate = target & not_(has_b) & not_(met_primary)
+    d.target_route = where(
+        target,
+        where(has_b, "given", where(met_primary, "metabolic", "estimated")),
+        NONE,
+    )
+    est = d.baseline_estimated
+    d.pco2_target = where(
+        has_b,
+        where(b > PCO2_HIGH, b, PCO2_HIGH),
+        where(
+            met_primary,
+            d.met_expected.value,
+            where(
+                metabolic,
+                maximum(PCO2_HIGH, where(given(floor), floor, 0.0)),
+                where(est > PCO2_HIGH, est, PCO2_HIGH),
+            ),
+        ),
+    )
+    d.pco2_target = where(target, d.pco2_target, NAN)
+    d.pco2_target_basis = where(
+        target,
+        where(
+            has_b,
+            where(b > PCO2_HIGH, "chronic_baseline", "normal_upper_limit"),
+            where(
+                met_primary,
+                "metabolic_compensation",
+                where(
+                    metabolic,
+                    "alkalaemia_floor",
+                    where(est > PCO2_HIGH, "chronic_baseline", "normal_upper_limit"),
+                ),
+            ),
+        ),
+        NONE,
+    )
+    d.baseline_pco2_source = where(target, where(has_b, "given", "estimated"), NONE)
+    f["baseline_estimate_unreliable"] = by_estimate & metabolic
+    f["pco2_target"] = target
+    f["target_below_alkalaemia_floor"] = target & given(floor) & (d.pco2_target < floor - 0.5)
+    f["pco2_below_baseline"] = target & has_b & (p < b - 5.0) & (b > PCO2_HIGH)
+    meets = (ph < NIV_PH) & (p > NIV_PCO2_MMHG)
+    d.niv = where(meets & venous, "not_assessable", where(meets, "met", "not_met"))
+    f["niv_criteria_need_arterial_sample"] = meets & venous
+    f["niv_criteria_met"] = meets & not_(venous)
+    d.niv_chronic = (primary == RESP_ACID) & (d.chronicity == "chronic") & given(d.fraction_acute)
+    sev["niv_criteria_met"] = where(d.niv_chronic, "notable", "urgent")
+    # chronic retention, without a known baseline: the PaCO2 is raised and the HCO3 rules read it chronic or
+    # acute-on-chronic, with no metabolic acidosis named (it would hide retention). Read from the PaCO2 and
+    # HCO3 alone, not from which disorder is called primary (that call flips at pH 7.40), so at a fixed HCO3
+    # the threshold never rises as the PaCO2 rises.
+    d.retainer = where(
+        has_b,
+        b > PCO2_HIGH,
+        (p > PCO2_HIGH) & given(f_h) & (f_h < ab.ACUTE_AT_LEAST) & not_(has_ma),
+    )
+    d.consciousness_threshold = where(
+        has_b,
+        maximum(NARCOSIS_NORMAL_MMHG, b + NARCOSIS_RISE_MMHG),
+        where(d.retainer, NARCOSIS_CHRONIC_MMHG, NARCOSIS_NORMAL_MMHG),
+    )
+    f["pco2_above_consciousness_threshold"] = p > d.consciousness_threshold
+
+    # -- oxygenation -----------------------------------------------------------------------------------------
+    po2, fio2 = x.po2, x.fio2
+    has_po2 = given(po2)
+    f["venous_po2_not_interpreted"] = has_po2 & venous
+    d.oxygenation = ox = has_po2 & not_(venous)
+    d.pio2 = fio2 * (x.pb_value - oxygenation.PH2O_37_MMHG)
+    d.pao2_alveolar = pao2_a = each(
+        oxygenation.alveolar_po2_simple, ox, fio2_fraction=fio2, paco2_mmhg=p, pb_mmhg=x.pb_value, rq=x.rq
+    )
+    d.a_a_gradient = aa = pao2_a - po2
+    d.a_over_A = where(pao2_a > 0, div(po2, pao2_a), NAN)
+    d.pf_ratio = po2 / fio2
+    f["po2_above_alveolar"] = ox & (aa < -10.0)
+    with_age = given(x.age)
+    d.a_a_expected_upper = upper = each(oxygenation.aa_gradient_upper_by_age, ox & with_age, age_years=x.age)
+    adult_low = oxygenation.aa_gradient_upper_by_age(age_years=18.0)
+    adult_high = oxygenation.aa_gradient_upper_by_age(age_years=100.0)
+    category = where(
+        with_age,
+        where(aa > upper, "raised", "normal"),
+        where(aa <= adult_low, "normal", where(aa > adult_high, "raised", "needs_age")),
+    )
+    d.a_a_category = where(ox, category, NONE)
+    f["a_a_on_oxygen"] = ox & (fio2 > 0.3)
+    hyper = p > PCO2_HIGH
+    failure = where(
+        hyper & ((po2 < HYPOXAEMIA_MMHG) | (fio2 > 0.21)),
+        "type_2",
+        where(po2 < HYPOXAEMIA_MMHG, "type_1", "none"),
+    )
+    d.respiratory_failure = where(ox, failure, NONE)
+    masked = ox & (failure == "type_2") & (po2 >= HYPOXAEMIA_MMHG)
+    f["hypoxaemia_masked_by_oxygen"] = masked
+    f["respiratory_failure_type_1"] = ox & (failure == "type_1")
+    f["respiratory_failure_type_2"] = ox & (failure == "type_2") & not_(masked)
+    f["pure_hypoventilation"] = ox & hyper & (category == "normal")
+    f["gas_exchange_impaired"] = ox & hyper & (category == "raised")
+    f["low_inspired_oxygen"] = ox & not_(hyper) & (category == "normal") & (po2 < HYPOXAEMIA_MMHG)
+    f["a_a_needs_age"] = ox & hyper & (category == "needs_age")
+    f["capillary_po2"] = ox & capillary
+
+    # -- temperature, oxygen target, severity, sample site ---------------------------------------------------
+    t = x.temperature
+    d.temperature_given = given(t) & (abs(t - 37.0) >= 1e-9)
+    f["temperature_ph_stat_view"] = d.temperature_given
+    hyper_here = not_(venous) & hyper
+    d.at_risk = at_risk = risk | hyper_here
+    d.hyper_here = hyper_here
+    d.spo2_low, d.spo2_high = where(at_risk, 88, 94), where(at_risk, 92, 98)
+    f["spo2_target"] = where(at_risk, True, True)
+    f["hypercapnic_without_risk_flag"] = hyper_here & not_(risk)
+    f["risk_flag_with_normal_pco2"] = risk & not_(venous) & (p <= PCO2_HIGH)
+    spo2 = x.spo2
+    f["spo2_below_target"] = spo2 < d.spo2_low
+    f["spo2_above_target"] = spo2 > d.spo2_high
+    sev["spo2_above_target"] = where(at_risk, "notable", "info")
+    f["severe_acidaemia"] = ph < SEVERE_ACIDAEMIA_PH
+    f["severe_alkalaemia"] = not_(ph < SEVERE_ACIDAEMIA_PH) & (ph > SEVERE_ALKALAEMIA_PH)
+    single_chronic_alkalosis = (primary == RESP_ALK) & (d.chronicity == "chronic")
+    f["normal_ph_single_disorder"] = (
+        (d.ph_status == "normal") & (d.count == 1) & not_(single_chronic_alkalosis)
+    )
+    f["venous_sample"] = venous
+    f["capillary_sample"] = capillary
+
+    d.finding = f
+    d.severity = sev
+    return d
+
+
+class _Work:
+    """The report being written for one sample, with the decisions it rests on (``d``)."""
+
+    def __init__(self, s: _Sample, report: Report, d: Decision):
         self.s = s
         self.r = report
-        self.disorders: list[dict] = []
-        self.primary: str | None = None
-        self.tentative = False
-        self.hco3: float = 0.0  # the HCO3 the rules use
-        self.hco3_out: float = 0.0  # the reported HCO3, else computed
-        self.consistent: bool | None = None
-        self.sbe: float = 0.0
-        self.resp: dict | None = None  # details of a respiratory primary
-        self.met_expected = None  # Expected of a metabolic primary's PCO2 rule
+        self.d = d
+        self.primary: str | None = _code(d.primary)
+        self.tentative = bool(d.tentative)
+        self.hco3: float = d.hco3  # the HCO3 the rules use
+        self.hco3_out: float = d.hco3_out  # the reported HCO3, else computed
+        self.consistent: bool | None = (not d.doubtful) if d.hco3_given else None
+        self.sbe: float = d.sbe
+        self.disorders: list[dict] = disorders(d)
+        self.resp: bool = bool(d.respiratory_primary)
+        self.met_expected = d.met_expected if self.primary in (MET_ACID, MET_ALK) else None
         self.compensation_text = ""
         self.ag_used: float | None = None
-        self.acidosis_type: str | None = None
-        self.copenhagen: dict = {}
-        self.stewart: dict = {}
+        self.acidosis_type: str | None = _code(d.acidosis_type)
         self.oxygen: dict = {}
         self.temp: dict = {}
         self.pco2_target: float | None = None
@@ -405,22 +1198,43 @@ class _Work:
     def codes(self) -> list[str]:
         return [d["code"] for d in self.disorders]
 
-    def add(self, code: str, *, chronicity: str | None = None, fraction: float | None = None) -> dict:
-        for d in self.disorders:
-            if d["code"] == code:
-                return d
-        entry = {
-            "code": code,
-            "role": "primary" if not self.disorders else "concurrent",
-            "chronicity": chronicity,
-            "fraction_acute": fraction,
-        }
-        self.disorders.append(entry)
-        return entry
+    def has(self, code: str) -> bool:
+        return bool(self.d.has[code])
+
+    def fires(self, code: str) -> bool:
+        return bool(self.d.finding[code])
 
     @property
     def doubtful(self) -> bool:
         return self.consistent is False
+
+
+def _code(word: str) -> str | None:
+    return word if word else None
+
+
+def disorders(d: Decision) -> list[dict]:
+    """The ``disorders`` output of a scalar :class:`Decision`: primary first, then in the order named."""
+    present = sorted((d.stage[code], code) for code in DISORDER_CODES if d.has[code])
+    out = []
+    for i, (_, code) in enumerate(present):
+        respiratory = code in (RESP_ACID, RESP_ALK)
+        out.append(
+            {
+                "code": code,
+                "role": "primary" if i == 0 else "concurrent",
+                "chronicity": _code(d.chronicity) if respiratory else None,
+                "fraction_acute": none_if_nan(d.fraction_acute) if respiratory else None,
+            }
+        )
+    return out
+
+
+def findings(d: Decision) -> list[str]:
+    """The finding codes of a scalar :class:`Decision`, in the response's order (urgent, notable, info)."""
+    order = {"urgent": 0, "notable": 1, "info": 2}
+    codes = [code for code in FINDING_ORDER if d.finding[code]]
+    return sorted(codes, key=lambda code: order[d.severity.get(code, SEVERITY.get(code))])
 
 
 # -- the calculation -----------------------------------------------------------------------------------------
@@ -429,7 +1243,7 @@ class _Work:
 def blood_gas(inputs: Inputs, report: Report) -> None:
     """Interpret one blood-gas sample (CONTRACT.md ``blood_gas``); see the module docstring for the rules."""
     s = _Sample(inputs)
-    w = _Work(s, report)
+    w = _Work(s, report, decide(s.values()))
     _input_findings(w)
     _core(w)
     _classify(w)
@@ -454,11 +1268,11 @@ def blood_gas(inputs: Inputs, report: Report) -> None:
 
 def _input_findings(w: _Work) -> None:
     s, r = w.s, w.r
-    if s.mix_ups:
+    if w.fires("possible_unit_mix_up"):
         r.finding("possible_unit_mix_up", "notable", "Possible unit mix-up: " + " ".join(s.mix_ups))
-    if s.unusual:
+    if w.fires("value_unusual"):
         r.finding("value_unusual", "notable", "Unusual value: " + "; ".join(s.unusual) + ".")
-    if s.pb_and_altitude:
+    if w.fires("pb_used_not_altitude"):
         r.finding(
             "pb_used_not_altitude",
             "info",
@@ -468,9 +1282,9 @@ def _input_findings(w: _Work) -> None:
 
 
 def _core(w: _Work) -> None:
-    s, r = w.s, w.r
+    s, r, d = w.s, w.r, w.d
     hh = ("henderson1908", "nccls1994")
-    hco3_calc = ab.hco3_henderson_hasselbalch(ph=s.ph, pco2_mmhg=s.pco2)
+    hco3_calc = d.hco3_computed
     r.quantity("hco3_computed", hco3_calc, "mmol/L", decimals=1)
     r.step(
         "HCO3 from pH and PCO2 (Henderson-Hasselbalch)",
@@ -480,7 +1294,7 @@ def _core(w: _Work) -> None:
         output="hco3_computed",
         unit="mmol/L",
     )
-    h_measured = ab.hydrogen_ion_from_ph(ph=s.ph)
+    h_measured = d.h_measured
     r.quantity("h_nmol_l_measured", h_measured, "nmol/L", decimals=1)
     r.step(
         "[H+] from the pH",
@@ -491,45 +1305,39 @@ def _core(w: _Work) -> None:
         unit="nmol/L",
     )
     if s.hco3 is not None:
-        c = ab.check_consistency(ph=s.ph, pco2_mmhg=s.pco2, hco3_mmol_l=s.hco3)
-        w.consistent = c.consistent
-        r.put("consistency", "consistent" if c.consistent else "inconsistent")
-        r.put("ph_computed", c.ph_computed, decimals=3)
+        r.put("consistency", d.consistency)
+        r.put("ph_computed", d.ph_computed, decimals=3)
         r.step(
             "pH from the reported PCO2 and HCO3",
             "pH = 6.1 + log10(HCO3 / (0.0307 x PCO2))",
-            c.ph_computed,
+            d.ph_computed,
             hh,
             output="ph_computed",
         )
-        r.put("ph_difference", c.ph_difference, decimals=3)
+        r.put("ph_difference", d.ph_difference, decimals=3)
         r.step(
             "Consistency: computed minus reported pH",
             "difference = pH_computed - pH_reported; consistent when |difference| <= 0.03",
-            c.ph_difference,
+            d.ph_difference,
             "consistency_band",
             output="ph_difference",
         )
-        r.quantity("h_nmol_l_kassirer", c.h_kassirer_nmol_l, "nmol/L", decimals=1)
+        r.quantity("h_nmol_l_kassirer", d.h_kassirer, "nmol/L", decimals=1)
         r.step(
             "[H+] by Kassirer-Bleich",
             "[H+] = 24 x PCO2 [mmHg] / HCO3 [mmol/L]",
-            c.h_kassirer_nmol_l,
+            d.h_kassirer,
             "kassirer1965",
             output="h_nmol_l_kassirer",
             unit="nmol/L",
         )
-        w.hco3_out = s.hco3
-        if c.consistent:
-            w.hco3 = s.hco3
-        else:
-            w.hco3 = hco3_calc
+        if w.fires("inconsistent_triple"):
             r.finding(
                 "inconsistent_triple",
                 "urgent",
                 f"The reported values do not fit together: PCO2 {w.p(s.pco2)} with HCO3 {s.hco3:.1f} mmol/L "
-                f"gives pH {c.ph_computed:.3f}, not the reported {s.ph:.2f} (difference "
-                f"{c.ph_difference:+.3f}; [H+] {c.h_kassirer_nmol_l:.1f} by Kassirer-Bleich against "
+                f"gives pH {d.ph_computed:.3f}, not the reported {s.ph:.2f} (difference "
+                f"{d.ph_difference:+.3f}; [H+] {d.h_kassirer:.1f} by Kassirer-Bleich against "
                 f"{h_measured:.1f} nmol/L measured). Recheck the sample and the transcription (typing slip, "
                 "arterial and venous values mixed, or a chemistry-panel total CO2 entered as HCO3). Any "
                 "reading below rests on doubtful data.",
@@ -550,7 +1358,6 @@ def _core(w: _Work) -> None:
             unit="mmol/L",
         )
     else:
-        w.hco3 = w.hco3_out = hco3_calc
         r.put("consistency", "consistent")
         r.finding(
             "hco3_calculated",
@@ -569,7 +1376,6 @@ def _core(w: _Work) -> None:
     r.quantity("hco3", w.hco3_out, "mmol/L", decimals=1)
 
     # standard base excess (CLSI form) and the variants
-    w.sbe = ab.standard_base_excess_clsi2009(ph=s.ph, hco3_mmol_l=w.hco3_out)
     r.quantity("standard_base_excess", w.sbe, "mmol/L", decimals=1)
     r.step(
         "Standard base excess (CLSI form, the default)",
@@ -579,17 +1385,15 @@ def _core(w: _Work) -> None:
         output="standard_base_excess",
         unit="mmol/L",
     )
-    so2 = s.spo2 / 100.0 if s.spo2 is not None else 1.0
-    v = ab.sbe_variants(ph=s.ph, hco3_mmol_l=w.hco3_out, pco2_mmhg=s.pco2, hb_g_dl=s.hb, so2_fraction=so2)
     variants = {
-        "clsi": {"value": v.clsi, "unit": "mmol/L"},
-        "siggaard_andersen": {"value": v.siggaard_andersen, "unit": "mmol/L"},
-        "van_slyke_hb5": {"value": v.van_slyke_hb5, "unit": "mmol/L"},
+        "clsi": {"value": d.sbe, "unit": "mmol/L"},
+        "siggaard_andersen": {"value": d.sbe_siggaard, "unit": "mmol/L"},
+        "van_slyke_hb5": {"value": d.sbe_van_slyke_hb5, "unit": "mmol/L"},
     }
     r.step(
         "SBE, Siggaard-Andersen form",
         "0.9287 x (HCO3 - 24.4 + 14.83 x (pH - 7.40))",
-        v.siggaard_andersen,
+        d.sbe_siggaard,
         "siggaard1971",
         output="sbe_variants",
         unit="mmol/L",
@@ -597,18 +1401,18 @@ def _core(w: _Work) -> None:
     r.step(
         "SBE, Van Slyke at Hb 5 g/dL",
         "(1 - 0.014 x 5) x [(HCO3 - 24.8) + (1.43 x 5 + 7.7) x (pH - 7.40)]",
-        v.van_slyke_hb5,
+        d.sbe_van_slyke_hb5,
         ("siggaard1971", "nccls1994"),
         output="sbe_variants",
         unit="mmol/L",
     )
-    if v.blood_van_slyke is not None and v.zander is not None:
-        variants["blood_van_slyke"] = {"value": v.blood_van_slyke, "unit": "mmol/L"}
-        variants["zander"] = {"value": v.zander, "unit": "mmol/L"}
+    if s.hb is not None:
+        variants["blood_van_slyke"] = {"value": d.be_blood, "unit": "mmol/L"}
+        variants["zander"] = {"value": d.be_zander, "unit": "mmol/L"}
         r.step(
             "Whole-blood BE, Van Slyke at the patient's Hb",
             "(1 - 0.014 x Hb) x [(HCO3 - 24.8) + (1.43 x Hb + 7.7) x (pH - 7.40)]",
-            v.blood_van_slyke,
+            d.be_blood,
             ("siggaard1971", "nccls1994"),
             output="sbe_variants",
             unit="mmol/L",
@@ -619,134 +1423,93 @@ def _core(w: _Work) -> None:
             f"BE, Zander form ({so2_note})",
             "(1 - 0.0143 Hb) x [(0.0304 x PCO2 x 10^(pH - 6.1) - 24.26) + (9.5 + 1.63 Hb)(pH - 7.4)] - 0.2 "
             "x Hb x (1 - SO2)",
-            v.zander,
+            d.be_zander,
             "lang2002",
             output="sbe_variants",
             unit="mmol/L",
         )
     r.put("sbe_variants", variants, decimals=1)
     if s.base_excess is not None:
-        values = [x for x in v if x is not None]
-        diff = s.base_excess - w.sbe
-        r.quantity("base_excess_difference", diff, "mmol/L", decimals=1)
+        r.quantity("base_excess_difference", d.be_difference, "mmol/L", decimals=1)
         r.step(
             "Reported base excess minus computed SBE",
             "BE_reported - SBE_CLSI",
-            diff,
+            d.be_difference,
             "nccls1994",
             output="base_excess_difference",
             unit="mmol/L",
         )
-        if not min(values) - 2.0 <= s.base_excess <= max(values) + 2.0:
+        if w.fires("base_excess_differs"):
             r.finding(
                 "base_excess_differs",
                 "notable",
                 f"The reported base excess ({s.base_excess:+.1f} mmol/L) differs from every published form "
-                f"computed from pH and HCO3 ({min(values):+.1f} to {max(values):+.1f}): check the "
+                f"computed from pH and HCO3 ({d.be_low:+.1f} to {d.be_high:+.1f}): check the "
                 "transcription or which base excess the analyser reports.",
             )
 
     # pH and PCO2 status
-    w.ph_status = "acidaemia" if s.ph < PH_LOW else ("alkalaemia" if s.ph > PH_HIGH else "normal")
+    w.ph_status = d.ph_status
     r.put("ph_status", w.ph_status)
-    w.pco2_status = "hypercapnia" if s.pco2 > PCO2_HIGH else ("hypocapnia" if s.pco2 < PCO2_LOW else "normal")
+    w.pco2_status = d.pco2_status
     r.put("pco2_status", w.pco2_status)
 
 
 # -- classification ------------------------------------------------------------------------------------------
 
 
-def _weights(pco2: float, hco3: float) -> tuple[float, float]:
-    """Contributions to [H+] = 24 x PCO2 / HCO3 relative to 40/24: (respiratory, metabolic), as |log10|."""
-    return abs(math.log10(pco2 / ab.NORMAL_PCO2_MMHG)), abs(math.log10(ab.NORMAL_HCO3_MMOL_L / hco3))
-
-
 def primary_process(ph: float, pco2: float, hco3: float) -> tuple[str | None, bool]:
     """(primary disorder code or None, tentative) for a consistent pH/PCO2/HCO3.
+
+    pH < 7.35 acidaemia, > 7.45 alkalaemia; HCO3 < 22 or > 26; PCO2 > 45 or < 35. When both processes point
+    the same way, the larger contribution to [H+] (|log10(PCO2/40)| against |log10(24/HCO3)|) is primary; at
+    a normal pH the side of 7.40 chooses; with only the pH outside its range the primary is tentative.
 
     >>> primary_process(7.28, 26.0, 12.0)
     ('metabolic_acidosis', False)
     >>> primary_process(7.53, 24.0, 20.0)
     ('respiratory_alkalosis', False)
     """
-    resp_w, met_w = _weights(pco2, hco3)
-    acid = [c for c, ok in ((MET_ACID, hco3 < HCO3_LOW), (RESP_ACID, pco2 > PCO2_HIGH)) if ok]
-    alk = [c for c, ok in ((MET_ALK, hco3 > HCO3_HIGH), (RESP_ALK, pco2 < PCO2_LOW)) if ok]
-
-    def larger(resp_code: str, met_code: str) -> str:
-        return resp_code if resp_w >= met_w else met_code
-
-    def pick(cands: list[str], side: str) -> tuple[str | None, bool]:
-        if len(cands) == 1:
-            return cands[0], False
-        if len(cands) == 2:
-            return (larger(RESP_ACID, MET_ACID) if side == "acid" else larger(RESP_ALK, MET_ALK)), False
-        options = []
-        if side == "acid":
-            if pco2 > ab.NORMAL_PCO2_MMHG:
-                options.append((resp_w, RESP_ACID))
-            if hco3 < ab.NORMAL_HCO3_MMOL_L:
-                options.append((met_w, MET_ACID))
-        else:
-            if pco2 < ab.NORMAL_PCO2_MMHG:
-                options.append((resp_w, RESP_ALK))
-            if hco3 > ab.NORMAL_HCO3_MMOL_L:
-                options.append((met_w, MET_ALK))
-        if not options:
-            return None, True
-        return max(options)[1], True
-
-    if ph < PH_LOW:
-        return pick(acid, "acid")
-    if ph > PH_HIGH:
-        return pick(alk, "alk")
-    if not acid and not alk:
-        return None, False
-    if ph < ab.NORMAL_PH:
-        cands, side = (acid, "acid") if acid else (alk, "alk")
-    else:
-        cands, side = (alk, "alk") if alk else (acid, "acid")
-    return pick(cands, side)
+    code, tentative = _primary_process(ph, pco2, hco3)
+    return _code(code), bool(tentative)
 
 
 def _classify(w: _Work) -> None:
-    s, r = w.s, w.r
-    w.primary, w.tentative = primary_process(s.ph, s.pco2, w.hco3)
-    if w.tentative and w.primary is not None:
+    r = w.r
+    primary = _code(w.d.primary_classified)
+    if w.fires("borderline_values"):
         r.finding(
             "borderline_values",
             "info",
             "The pH is outside its reference range while PCO2 and HCO3 are inside theirs; "
-            f"{NAMES[w.primary]} is named from the larger contribution to [H+] and is tentative.",
+            f"{NAMES[primary]} is named from the larger contribution to [H+] and is tentative.",
         )
-    if w.primary is None:
+    if primary is None:
         return
-    if w.primary == MET_ACID:
+    if primary == MET_ACID:
         _metabolic_primary(w, acidosis=True)
-    elif w.primary == MET_ALK:
+    elif primary == MET_ALK:
         _metabolic_primary(w, acidosis=False)
     else:
-        _respiratory_primary(w, w.primary)
+        _respiratory_primary(w, primary)
 
 
 def _metabolic_primary(w: _Work, *, acidosis: bool) -> None:
-    w.add(w.primary)
     e = _metabolic_expected(w, acidosis=acidosis)
     _respiratory_response(w, e)
 
 
 def _metabolic_expected(w: _Work, *, acidosis: bool):
     """Expected PaCO2 of a metabolic primary (outputs and steps); returns the Expected band."""
-    r = w.r
+    r, d = w.r, w.d
+    e = d.met_expected
     if acidosis:
-        e = ab.expected_pco2_winters(hco3_mmol_l=w.hco3)
         formula = "expected PaCO2 = 1.5 x HCO3 + 8, band +/- 2 mmHg (Winters)"
         sources = ("albert1967",)
         alt = (
             f"alternatives: 1.54 x HCO3 + 8.36 +/- 2.2 gives {1.54 * w.hco3 + 8.36:.1f} mmHg (Kidney360 2022)"
         )
     else:
-        e = ab.expected_pco2_metabolic_alkalosis(hco3_mmol_l=w.hco3)
         a06 = ab.expected_pco2_metabolic_alkalosis(hco3_mmol_l=w.hco3, slope=0.6).value
         a075 = ab.expected_pco2_metabolic_alkalosis(hco3_mmol_l=w.hco3, slope=0.75).value
         formula = "expected PaCO2 = 40 + 0.7 x (HCO3 - 24), band +/- 5 mmHg"
@@ -754,7 +1517,6 @@ def _metabolic_expected(w: _Work, *, acidosis: bool):
         alt = (
             f"alternatives: slope 0.6 gives {a06:.1f} mmHg (Narins & Emmett 1980), 0.75 gives {a075:.1f} mmHg"
         )
-    w.met_expected = e
     r.pressure_range("expected_pco2", e.low, e.high)
     r.step(
         f"Expected PaCO2 ({formula}; {alt})", formula, e.value, sources, output="expected_pco2", pressure=True
@@ -785,16 +1547,14 @@ def _respiratory_response(w: _Work, e) -> None:
     """Compare the measured PaCO2 with the expected band of a metabolic primary."""
     s, r = w.s, w.r
     band = f"{w.p(e.low)} to {w.p(e.high)}"
-    if s.pco2 > e.high:
-        w.add(RESP_ACID)
+    if w.fires("concurrent_respiratory_acidosis"):
         text = (
             f"PaCO2 {w.p(s.pco2)} is above the {band} expected from compensation: the respiratory response "
             "is inadequate (concurrent respiratory acidosis)."
         )
         r.finding("concurrent_respiratory_acidosis", "notable", text)
         w.compensation_text = "inadequate respiratory compensation (concurrent respiratory acidosis)"
-    elif s.pco2 < e.low:
-        w.add(RESP_ALK)
+    elif w.fires("concurrent_respiratory_alkalosis"):
         text = (
             f"PaCO2 {w.p(s.pco2)} is below the {band} expected from compensation: the patient is "
             "ventilating more than compensation explains (concurrent respiratory alkalosis)."
@@ -811,16 +1571,15 @@ def _respiratory_response(w: _Work, e) -> None:
 
 
 def _respiratory_primary(w: _Work, code: str) -> None:
-    s, r = w.s, w.r
+    s, r, d = w.s, w.r, w.d
     acid = code == RESP_ACID
     p, h = s.pco2, w.hco3
     delta = p - ab.NORMAL_PCO2_MMHG
+    e = ab.RespiratoryExpectation(d.e_acute, d.e_chronic)
     if acid:
-        e = ab.expected_hco3_respiratory_acidosis(paco2_mmhg=p)
         acute_f = "HCO3 = 24 + 1 x (PaCO2 - 40)/10 (band: 1-2 per 10 mmHg)"
         chronic_f = "HCO3 = 24 + 3.5 x (PaCO2 - 40)/10 (band: 3 [some texts], 4 [Brandis], 5 [Martinu 2003])"
     else:
-        e = ab.expected_hco3_respiratory_alkalosis(paco2_mmhg=p)
         acute_f = "HCO3 = 24 - 2 x (40 - PaCO2)/10 (band: 2-2.5 per 10 mmHg)"
         chronic_f = "HCO3 = 24 - 4 x (40 - PaCO2)/10 (band: 4-5 per 10 mmHg, Narins & Emmett; Brandis)"
     rules = ("narins1980", "berend2014", "kidney360_2022", "brandis") + (("martinu2003",) if acid else ())
@@ -854,13 +1613,9 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             output="expected_hco3_centre",
             unit="mmol/L",
         )
-    span = abs(e.chronic.value - e.acute.value)
-    margin = max(HCO3_MARGIN_MIN, 0.2 * span)
-    judge = abs(delta) >= 5.0
-    info = {"acid": acid, "e": e, "margin": margin, "judge": judge, "f_h": None, "f_ph": None, "f_b": None}
-    if abs(delta) >= 1.0:
-        f_h = ab.fraction_acute_hco3(paco2_mmhg=p, hco3_mmol_l=h)
-        info["f_h"] = f_h
+    margin = d.margin
+    f_h, f_ph, f_b = none_if_nan(d.f_h), none_if_nan(d.f_ph), none_if_nan(d.f_b)
+    if f_h is not None:
         r.put("fraction_acute_hco3", f_h, decimals=2)
         r.step(
             "Fraction acute by the HCO3 rules",
@@ -870,7 +1625,7 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             output="fraction_acute_hco3",
         )
     if acid:
-        pr = ab.expected_ph_respiratory_acidosis(paco2_mmhg=p)
+        pr = d.ph_rules
         r.put("expected_ph", {"acute": pr.acute, "chronic": pr.chronic}, decimals=2)
         r.step(
             "Expected pH if acute",
@@ -886,15 +1641,9 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             "berend2014",
             output="expected_ph",
         )
-        # a pH that cannot be computed (expected HCO3 beyond the Henderson-Hasselbalch domain at an extreme
-        # PaCO2) is left out, as the contract says
-        ph_hh = {
-            label: ab.ph_henderson_hasselbalch(hco3_mmol_l=expected.value, pco2_mmhg=p)
-            for label, expected in (("acute", e.acute), ("chronic", e.chronic))
-            if ab._HCO3[0] <= expected.value <= ab._HCO3[1]
-        }
+        ph_hh = {"acute": d.ph_hh_acute, "chronic": d.ph_hh_chronic}
         r.put("expected_ph_hh", ph_hh, decimals=3)
-        for label in ph_hh:
+        for label in ("acute", "chronic"):
             r.step(
                 f"pH from the expected {label} HCO3 (Henderson-Hasselbalch)",
                 "pH = 6.1 + log10(HCO3_expected / (0.0307 x PaCO2))",
@@ -902,9 +1651,7 @@ def _respiratory_primary(w: _Work, code: str) -> None:
                 "henderson1908",
                 output="expected_ph_hh",
             )
-        if p >= 41.0:
-            f_ph = ab.fraction_acute_ph(ph=s.ph, paco2_mmhg=p)
-            info["f_ph"] = f_ph
+        if f_ph is not None:
             r.put("fraction_acute_ph", f_ph, decimals=2)
             r.step(
                 "Fraction acute by the pH rules",
@@ -913,7 +1660,7 @@ def _respiratory_primary(w: _Work, code: str) -> None:
                 ("fraction_acute_bands", "berend2014"),
                 output="fraction_acute_ph",
             )
-        if delta > 30.0:
+        if w.fires("ph_rule_drift"):
             r.finding(
                 "ph_rule_drift",
                 "info",
@@ -921,9 +1668,8 @@ def _respiratory_primary(w: _Work, code: str) -> None:
                 f"pH {pr.acute:.2f}, while Henderson-Hasselbalch with the acute HCO3 gives "
                 f"{ph_hh['acute']:.3f}. The chronicity call uses the HCO3 rules.",
             )
-    if acid and s.baseline_pco2 is not None:
-        b = s.baseline_pco2
-        exp_b = ab.expected_hco3_with_baseline(paco2_mmhg=p, baseline_pco2_mmhg=b)
+    if f_b is not None:
+        exp_b = d.hco3_on_baseline
         r.quantity("expected_hco3_on_baseline", exp_b, "mmol/L", decimals=1)
         r.step(
             "HCO3 expected on the known baseline",
@@ -934,9 +1680,6 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             output="expected_hco3_on_baseline",
             unit="mmol/L",
         )
-        base = max(b, ab.NORMAL_PCO2_MMHG)
-        f_b = _clamp((p - base) / delta, 0.0, 1.0) if p > base and delta > 0 else 0.0
-        info["f_b"] = f_b
         r.put("fraction_acute_baseline", f_b, decimals=2)
         r.step(
             "Fraction acute from the known baseline",
@@ -945,94 +1688,67 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             "fraction_acute_bands",
             output="fraction_acute_baseline",
         )
-        low_ref = high_ref = exp_b
-    else:
-        low_ref = e.acute.value if acid else e.chronic.value
-        high_ref = e.chronic.value if acid else e.acute.value
-    info["low_ref"], info["high_ref"] = low_ref, high_ref
-    met_acid = h < low_ref - margin
-    met_alk = h > high_ref + margin
-    chronicity = fraction = None
-    hco3_reading = (
-        ab.chronicity_from_fraction(fraction_acute=info["f_h"]) if info["f_h"] is not None else "acute"
-    )
-    if not judge:
+    low_ref, high_ref = d.low_ref, d.high_ref
+    chronicity = _code(d.chronicity)
+    if w.fires("chronicity_not_judged"):
         r.finding(
             "chronicity_not_judged",
             "info",
             f"PaCO2 {w.p(p)} is too close to normal for the acute and chronic rules to be told apart; the "
             "chronicity shown is provisional.",
         )
-    if judge and info["f_b"] is not None:
-        fraction = info["f_b"]
-        chronicity = ab.chronicity_from_fraction(fraction_acute=fraction)
-    elif judge and not (met_acid or met_alk) and info["f_h"] is not None:
-        fraction = _clamp(info["f_h"], 0.0, 1.0)
-        chronicity = hco3_reading
-    elif info["f_b"] is not None:
-        chronicity = ab.chronicity_from_fraction(fraction_acute=info["f_b"])
-    else:
-        chronicity = hco3_reading  # provisional: fraction_acute stays null
-    w.add(code, chronicity=chronicity, fraction=fraction)
-    if met_acid:
-        w.add(MET_ACID)
+    if w.fires("concurrent_metabolic_acidosis"):
         r.finding(
             "concurrent_metabolic_acidosis",
             "notable",
             f"HCO3 {h:.1f} mmol/L is more than {margin:.1f} below the {low_ref:.1f} expected "
-            f"{'even for an acute change' if not info['f_b'] and acid else 'for this PaCO2'}: a concurrent "
+            f"{'even for an acute change' if not f_b and acid else 'for this PaCO2'}: a concurrent "
             "metabolic acidosis.",
         )
-    if met_alk:
-        w.add(MET_ALK)
+    if w.fires("concurrent_metabolic_alkalosis"):
         r.finding(
             "concurrent_metabolic_alkalosis",
             "notable",
             f"HCO3 {h:.1f} mmol/L is more than {margin:.1f} above the {high_ref:.1f} expected "
-            f"{'even for full chronic compensation' if acid and info['f_b'] is None else 'for this PaCO2'}: "
+            f"{'even for full chronic compensation' if acid and f_b is None else 'for this PaCO2'}: "
             "a concurrent metabolic alkalosis.",
         )
-        if acid and info["f_b"] is None and h <= e.chronic.high + margin:
+        if w.fires("chronic_slope_uncertain"):
             r.finding(
                 "chronic_slope_uncertain",
                 "info",
                 "With the steeper chronic slopes reported (up to about 5 mmol/L per 10 mmHg in stable "
                 f"COPD, Martinu 2003; expected {e.chronic.high:.1f}) this HCO3 could be compensation alone.",
             )
-    if acid and chronicity is not None and info["f_b"] is None and info["f_ph"] is not None:
-        by_ph = ab.chronicity_from_fraction(fraction_acute=info["f_ph"])
-        if by_ph != chronicity:
-            r.finding(
-                "chronicity_rules_disagree",
-                "info",
-                f"The HCO3 rules read {chronicity.replace('_', '-')} (f {info['f_h']:.2f}), the pH rules "
-                f"{by_ph.replace('_', '-')} (f {info['f_ph']:.2f})"
-                + (
-                    "; at this rise the pH rules drift, so the HCO3 reading is used."
-                    if delta > 30
-                    else "; the HCO3 reading is used."
-                ),
-            )
-    if info["f_b"] is not None and info["f_h"] is not None and judge and not (met_acid or met_alk):
-        by_h = ab.chronicity_from_fraction(fraction_acute=info["f_h"])
-        if by_h != chronicity:
-            r.finding(
-                "baseline_and_hco3_disagree",
-                "info",
-                f"The known baseline reads {chronicity.replace('_', '-')}, the HCO3 alone "
-                f"{by_h.replace('_', '-')}: the baseline may be out of date, or a metabolic process moves "
-                "the HCO3.",
-            )
-    w.resp = info
+    if w.fires("chronicity_rules_disagree"):
+        by_ph = d.by_ph
+        r.finding(
+            "chronicity_rules_disagree",
+            "info",
+            f"The HCO3 rules read {chronicity.replace('_', '-')} (f {f_h:.2f}), the pH rules "
+            f"{by_ph.replace('_', '-')} (f {f_ph:.2f})"
+            + (
+                "; at this rise the pH rules drift, so the HCO3 reading is used."
+                if delta > 30
+                else "; the HCO3 reading is used."
+            ),
+        )
+    if w.fires("baseline_and_hco3_disagree"):
+        by_h = ab.chronicity_from_fraction(fraction_acute=f_h)
+        r.finding(
+            "baseline_and_hco3_disagree",
+            "info",
+            f"The known baseline reads {chronicity.replace('_', '-')}, the HCO3 alone "
+            f"{by_h.replace('_', '-')}: the baseline may be out of date, or a metabolic process moves "
+            "the HCO3.",
+        )
 
 
 def _finish_chronicity(w: _Work) -> None:
     """Respiratory chronicity when a metabolic disorder also moves the HCO3 (always a word, never null)."""
     r = w.r
-    metabolic = MET_ACID in w.codes() or MET_ALK in w.codes()
-    if w.resp is not None and w.resp["f_b"] is None and metabolic:
+    if w.fires("chronicity_indeterminate"):
         primary = w.disorders[0]
-        primary["fraction_acute"] = None
         r.finding(
             "chronicity_indeterminate",
             "info",
@@ -1043,18 +1759,14 @@ def _finish_chronicity(w: _Work) -> None:
         )
     if w.primary in (MET_ACID, MET_ALK):
         for d in w.disorders[1:]:
-            if d["code"] in (RESP_ACID, RESP_ALK) and d["chronicity"] is None:
+            if d["code"] in (RESP_ACID, RESP_ALK):
                 _concurrent_respiratory_chronicity(w, d)
 
 
 def _concurrent_respiratory_chronicity(w: _Work, d: dict) -> None:
-    s, r = w.s, w.r
-    b = s.baseline_pco2
-    if b is not None and d["code"] == RESP_ACID and s.pco2 > ab.NORMAL_PCO2_MMHG + 1.0:
-        base = max(b, ab.NORMAL_PCO2_MMHG)
-        f = _clamp((s.pco2 - base) / (s.pco2 - ab.NORMAL_PCO2_MMHG), 0.0, 1.0)
-        d["chronicity"] = ab.chronicity_from_fraction(fraction_acute=f)
-        d["fraction_acute"] = f
+    r = w.r
+    if w.d.concurrent_from_baseline:
+        f = d["fraction_acute"]
         r.put("fraction_acute_baseline", f, decimals=2)
         r.step(
             "Fraction acute of the concurrent respiratory acidosis, from the known baseline",
@@ -1064,7 +1776,6 @@ def _concurrent_respiratory_chronicity(w: _Work, d: dict) -> None:
             output="fraction_acute_baseline",
         )
         return
-    d["chronicity"] = "acute"
     r.finding(
         "respiratory_chronicity_assumed",
         "info",
@@ -1079,11 +1790,11 @@ def _concurrent_respiratory_chronicity(w: _Work, d: dict) -> None:
 
 
 def _gap_values(w: _Work) -> dict | None:
-    s, r = w.s, w.r
-    if s.na is None or s.cl is None:
+    s, r, d = w.s, w.r, w.d
+    if not d.has_gap:
         return None
     out = {}
-    ag = ab.anion_gap(na_mmol_l=s.na, cl_mmol_l=s.cl, hco3_mmol_l=w.hco3_out)
+    ag = d.anion_gap
     r.quantity("anion_gap", ag, "mmol/L", decimals=1)
     r.step(
         "Anion gap",
@@ -1095,9 +1806,7 @@ def _gap_values(w: _Work) -> dict | None:
     )
     out["ag"] = ag
     if s.k is not None:
-        agk = ab.anion_gap_with_potassium(
-            na_mmol_l=s.na, k_mmol_l=s.k, cl_mmol_l=s.cl, hco3_mmol_l=w.hco3_out
-        )
+        agk = d.anion_gap_with_k
         r.quantity("anion_gap_with_k", agk, "mmol/L", decimals=1)
         r.step(
             "Anion gap with potassium",
@@ -1107,11 +1816,8 @@ def _gap_values(w: _Work) -> dict | None:
             output="anion_gap_with_k",
             unit="mmol/L",
         )
-    used = ag
     if s.albumin is not None:
-        agc = ab.anion_gap_albumin_corrected_figge1998(
-            anion_gap_mmol_l=ag, albumin_g_dl=s.albumin, normal_albumin_g_dl=s.normal_albumin
-        )
+        agc = d.anion_gap_corrected
         r.quantity("anion_gap_corrected", agc, "mmol/L", decimals=1)
         r.step(
             f"Anion gap corrected for albumin (normal albumin {s.normal_albumin:.1f} g/dL)",
@@ -1121,11 +1827,11 @@ def _gap_values(w: _Work) -> dict | None:
             output="anion_gap_corrected",
             unit="mmol/L",
         )
-        used = agc
+    used = d.ag_used
     out["used"] = used
     which = "albumin-corrected AG" if s.albumin is not None else "AG"
-    if w.hco3_out < 23.5:
-        dr = ab.delta_ratio(anion_gap_mmol_l=used, hco3_mmol_l=w.hco3_out)
+    if d.dr_given:
+        dr = d.delta_ratio
         r.put("delta_ratio", dr, decimals=2)
         r.step(
             f"Delta ratio (from the {which})",
@@ -1134,10 +1840,9 @@ def _gap_values(w: _Work) -> dict | None:
             "brandis",
             output="delta_ratio",
         )
-        band = ab.delta_ratio_band_brandis(delta_ratio_value=dr)
-        r.put("delta_ratio_band", band)
-        out["dr"], out["band"] = dr, band
-    dg = ab.delta_gap(anion_gap_mmol_l=used, hco3_mmol_l=w.hco3_out)
+        r.put("delta_ratio_band", d.delta_ratio_band)
+        out["dr"], out["band"] = dr, d.delta_ratio_band
+    dg = d.delta_gap
     r.quantity("delta_gap", dg, "mmol/L", decimals=1)
     r.step(
         f"Delta gap (from the {which})",
@@ -1147,9 +1852,9 @@ def _gap_values(w: _Work) -> dict | None:
         output="delta_gap",
         unit="mmol/L",
     )
-    r.put("delta_gap_reading", ab.delta_gap_reading(delta_gap_mmol_l=dg))
+    r.put("delta_gap_reading", d.delta_gap_reading)
     out["dg"] = dg
-    if used < 3.0:
+    if w.fires("anion_gap_low"):
         r.finding(
             "anion_gap_low",
             "notable",
@@ -1161,10 +1866,10 @@ def _gap_values(w: _Work) -> dict | None:
 
 
 def _osmolality(w: _Work) -> None:
-    s, r = w.s, w.r
-    if s.na is None or s.glucose is None or s.urea is None:
+    s, r, d = w.s, w.r, w.d
+    if not d.osm_calc_given:
         return
-    calc = ab.osmolality_calculated_si(na_mmol_l=s.na, glucose_mmol_l=s.glucose, urea_mmol_l=s.urea)
+    calc = d.osmolality_calculated
     r.quantity("osmolality_calculated", calc, "mOsm/kg", decimals=0)
     r.step(
         "Calculated osmolality (SI)",
@@ -1174,9 +1879,9 @@ def _osmolality(w: _Work) -> None:
         output="osmolality_calculated",
         unit="mOsm/kg",
     )
-    if s.osm is None:
+    if not d.osm_gap_given:
         return
-    gap = ab.osmolar_gap(measured_mosm_kg=s.osm, calculated_mosm_kg=calc)
+    gap = d.osmolar_gap
     r.quantity("osmolar_gap", gap, "mOsm/kg", decimals=0)
     r.step(
         "Osmolar gap",
@@ -1186,7 +1891,7 @@ def _osmolality(w: _Work) -> None:
         output="osmolar_gap",
         unit="mOsm/kg",
     )
-    if gap >= 10.0:
+    if w.fires("osmolar_gap_raised"):
         r.finding(
             "osmolar_gap_raised",
             "notable",
@@ -1202,17 +1907,17 @@ def _gap_outputs_only(w: _Work) -> None:
 
 
 def _gaps(w: _Work) -> None:
-    s, r = w.s, w.r
+    s, r, d = w.s, w.r, w.d
     g = _gap_values(w)
     _osmolality(w)
-    if s.lactate is not None and s.lactate > 2.0:
+    if w.fires("lactate_raised"):
         r.finding(
             "lactate_raised",
             "notable",
             f"Lactate {s.lactate:.1f} mmol/L is raised (above 2 mmol/L) and adds to the anion gap.",
         )
     if g is None:
-        if MET_ACID in w.codes():
+        if w.fires("anion_gap_needs_electrolytes"):
             r.finding(
                 "anion_gap_needs_electrolytes",
                 "info",
@@ -1221,11 +1926,8 @@ def _gaps(w: _Work) -> None:
         return
     used = g["used"]
     w.ag_used = used
-    resp_primary = w.resp is not None
-    if MET_ACID not in w.codes() and used >= AG_ALWAYS_ACIDOSIS:
-        w.add(MET_ACID)
-        if w.primary is None:  # the gap alone reveals it: it is the primary disorder
-            w.primary = MET_ACID
+    if w.fires("high_anion_gap_acidosis_found"):
+        if d.gap_primary:  # the gap alone reveals it: it is the primary disorder
             _metabolic_expected(w, acidosis=True)
         r.finding(
             "high_anion_gap_acidosis_found",
@@ -1233,8 +1935,8 @@ def _gaps(w: _Work) -> None:
             f"An anion gap of {used:.0f} mmol/L points to a high anion gap metabolic acidosis although the "
             f"HCO3 ({w.hco3:.1f} mmol/L) does not show it on its own (opposing processes).",
         )
-    if MET_ACID not in w.codes():
-        if used > ab.NORMAL_ANION_GAP_MMOL_L + 4.0:
+    if not w.has(MET_ACID):
+        if w.fires("anion_gap_raised"):
             r.finding(
                 "anion_gap_raised",
                 "info",
@@ -1242,8 +1944,8 @@ def _gaps(w: _Work) -> None:
                 "being evident.",
             )
         return
-    if w.primary != MET_ACID:
-        e = ab.expected_pco2_winters(hco3_mmol_l=w.hco3)
+    if d.winters_concurrent:
+        e = d.winters
         r.pressure("expected_pco2_winters", e.value)
         r.step(
             f"Winters' formula for the concurrent metabolic acidosis (band {w.p(e.low)} to {w.p(e.high)})",
@@ -1253,10 +1955,8 @@ def _gaps(w: _Work) -> None:
             output="expected_pco2_winters",
             pressure=True,
         )
-    before = w.hco3 + (used - ab.NORMAL_ANION_GAP_MMOL_L)
-    if used <= ab.NORMAL_ANION_GAP_MMOL_L:
-        w.acidosis_type = "normal_anion_gap"
-    elif resp_primary:
+    before = d.hco3_before_gap
+    if d.before_shown:
         r.quantity("hco3_before_anion_gap", before, "mmol/L", decimals=1)
         r.step(
             "HCO3 before the unmeasured acid",
@@ -1266,44 +1966,29 @@ def _gaps(w: _Work) -> None:
             output="hco3_before_anion_gap",
             unit="mmol/L",
         )
-        w.acidosis_type = "high_anion_gap"
-        if before < w.resp["low_ref"] - w.resp["margin"]:
-            w.acidosis_type = "high_and_normal_anion_gap"
-        if before > w.resp["high_ref"] + w.resp["margin"] and MET_ALK not in w.codes():
-            w.add(MET_ALK)
-            r.finding(
-                "metabolic_alkalosis_from_gap",
-                "notable",
-                f"Adding back the anion-gap acid gives an HCO3 of {before:.1f} mmol/L, above the "
-                f"{w.resp['high_ref']:.1f} the {NAMES[w.primary]} explains: a concurrent metabolic "
-                "alkalosis (triple disorder).",
-            )
-    else:
-        band = g.get("band")
-        if band is None:  # HCO3 at or above 24: the delta gap decides
-            w.acidosis_type = "high_anion_gap"
-            if g["dg"] > 6.0 and MET_ALK not in w.codes():
-                w.add(MET_ALK)
-                r.finding(
-                    "metabolic_alkalosis_from_gap",
-                    "notable",
-                    f"The delta gap is {g['dg']:+.1f} mmol/L (above +6): a concurrent metabolic alkalosis.",
-                )
-        elif band == "normal_anion_gap_acidosis":
-            w.acidosis_type = "normal_anion_gap"
-        elif band == "high_and_normal_anion_gap_acidosis":
-            w.acidosis_type = "high_and_normal_anion_gap"
-        else:
-            w.acidosis_type = "high_anion_gap"
-            if band == "high_anion_gap_acidosis_with_raised_hco3" and MET_ALK not in w.codes():
-                w.add(MET_ALK)
-                r.finding(
-                    "metabolic_alkalosis_from_gap",
-                    "notable",
-                    f"Delta ratio {g['dr']:.2f} (above 2): the HCO3 has fallen far less than the anion gap "
-                    "rose, so a raised HCO3 was there before: a concurrent metabolic alkalosis (or "
-                    "compensation of a chronic respiratory acidosis).",
-                )
+    kind = d.alkalosis_from_gap
+    if kind == "hco3_before_gap":
+        r.finding(
+            "metabolic_alkalosis_from_gap",
+            "notable",
+            f"Adding back the anion-gap acid gives an HCO3 of {before:.1f} mmol/L, above the "
+            f"{d.high_ref:.1f} the {NAMES[w.primary]} explains: a concurrent metabolic "
+            "alkalosis (triple disorder).",
+        )
+    elif kind == "delta_gap":
+        r.finding(
+            "metabolic_alkalosis_from_gap",
+            "notable",
+            f"The delta gap is {g['dg']:+.1f} mmol/L (above +6): a concurrent metabolic alkalosis.",
+        )
+    elif kind == "delta_ratio":
+        r.finding(
+            "metabolic_alkalosis_from_gap",
+            "notable",
+            f"Delta ratio {g['dr']:.2f} (above 2): the HCO3 has fallen far less than the anion gap "
+            "rose, so a raised HCO3 was there before: a concurrent metabolic alkalosis (or "
+            "compensation of a chronic respiratory acidosis).",
+        )
     r.put("metabolic_acidosis_type", w.acidosis_type)
     words = {
         "normal_anion_gap": "a normal anion gap (hyperchloraemic) metabolic acidosis",
@@ -1311,7 +1996,7 @@ def _gaps(w: _Work) -> None:
         "high_and_normal_anion_gap": "a high anion gap and a normal anion gap metabolic acidosis together",
     }
     dr_text = f", delta ratio {g['dr']:.2f}" if "dr" in g else ""
-    if resp_primary and g.get("dr", 0.0) > 2.0 and MET_ALK not in w.codes():
+    if w.resp and g.get("dr", 0.0) > 2.0 and not w.has(MET_ALK):
         dr_text += (
             f" (above 2, but the HCO3 before the anion-gap acid, {before:.1f} mmol/L, is within what the "
             f"{NAMES[w.primary]} explains)"
@@ -1323,39 +2008,31 @@ def _gaps(w: _Work) -> None:
 
 
 def _copenhagen(w: _Work) -> None:
-    s, r = w.s, w.r
-    sbe = w.sbe
-    cph: dict = {"sbe": sbe}
-    if not -40.0 <= sbe <= 40.0:
-        w.copenhagen = cph
+    r, d = w.r, w.d
+    if not d.copenhagen:
         return
     if w.primary == MET_ACID:
-        x = ab.expected_pco2_sbe_metabolic_acidosis(sbe_mmol_l=sbe)
-        cph["pco2"], cph["fits"] = x, abs(s.pco2 - x) <= 2.0
-        r.pressure("expected_pco2_copenhagen", x)
+        r.pressure("expected_pco2_copenhagen", d.cph_pco2)
         r.step(
             "Expected PaCO2 by the SBE rule (metabolic acidosis)",
             "PaCO2 = 40 + SBE",
-            x,
+            d.cph_pco2,
             ("schlichtig1998", "berend2018"),
             output="expected_pco2_copenhagen",
             pressure=True,
         )
     elif w.primary == MET_ALK:
-        x = ab.expected_pco2_sbe_metabolic_alkalosis(sbe_mmol_l=sbe)
-        cph["pco2"], cph["fits"] = x, abs(s.pco2 - x) <= 5.0
-        r.pressure("expected_pco2_copenhagen", x)
+        r.pressure("expected_pco2_copenhagen", d.cph_pco2)
         r.step(
             "Expected PaCO2 by the SBE rule (metabolic alkalosis)",
             "PaCO2 = 40 + 0.6 x SBE",
-            x,
+            d.cph_pco2,
             ("schlichtig1998", "berend2018"),
             output="expected_pco2_copenhagen",
             pressure=True,
         )
-    lo = hi = 0.0
-    if w.resp is not None:
-        acute, chronic = ab.expected_sbe_respiratory(paco2_mmhg=s.pco2)
+    if w.resp:
+        acute, chronic = d.sbe_acute, d.sbe_chronic
         r.put(
             "expected_sbe",
             {"acute": {"value": acute, "unit": "mmol/L"}, "chronic": {"value": chronic, "unit": "mmol/L"}},
@@ -1377,41 +2054,15 @@ def _copenhagen(w: _Work) -> None:
             output="expected_sbe",
             unit="mmol/L",
         )
-        lo, hi = min(acute, chronic), max(acute, chronic)
-        cph["acute"], cph["chronic"] = acute, chronic
-        near_a, near_c = abs(sbe - acute) <= SBE_TOLERANCE, abs(sbe - chronic) <= SBE_TOLERANCE
-        if lo - SBE_TOLERANCE <= sbe <= hi + SBE_TOLERANCE and w.resp["judge"]:
-            cph["chronicity"] = (
-                None
-                if near_a and near_c
-                else "acute"
-                if near_a
-                else "chronic"
-                if near_c
-                else "acute_on_chronic"
-            )
-    cph["acid"] = sbe < lo - SBE_TOLERANCE
-    cph["alk"] = sbe > hi + SBE_TOLERANCE
-    w.copenhagen = cph
 
 
 def _stewart(w: _Work) -> None:
-    s, r = w.s, w.r
-    st: dict = {}
-    w.stewart = st
-    if s.na is None or s.cl is None:
+    s, r, d = w.s, w.r, w.d
+    if not d.has_gap:
         return
     mq = "mEq/L"
-    sbe_ok = -40.0 <= w.sbe <= 40.0
-    if s.albumin is not None and sbe_ok:
-        alb_g_l = s.albumin * 10.0
-        lactate = s.lactate if s.lactate is not None else 0.0
-        p16 = ab.base_excess_partition_story2016(
-            sbe_mmol_l=w.sbe, na_mmol_l=s.na, cl_mmol_l=s.cl, albumin_g_l=alb_g_l, lactate_mmol_l=lactate
-        )
-        p04 = ab.base_excess_partition_story2004(
-            sbe_mmol_l=w.sbe, na_mmol_l=s.na, cl_mmol_l=s.cl, albumin_g_l=alb_g_l
-        )
+    if d.stewart_full:
+        p16, p04 = d.story2016, d.story2004
         r.put(
             "base_excess_partition",
             {k: {"value": v, "unit": mq} for k, v in p16._asdict().items()},
@@ -1457,11 +2108,8 @@ def _stewart(w: _Work) -> None:
             output="base_excess_partition_2004",
             unit=mq,
         )
-        effects = {"na_cl": p16.na_cl, "albumin": p16.albumin, "unmeasured": p16.unmeasured}
-        if s.lactate is not None:
-            effects["lactate"] = p16.lactate
     else:
-        na_cl = s.na - s.cl - 35.0
+        na_cl = d.na_cl_effect
         r.quantity("na_cl_effect", na_cl, mq, decimals=1)
         r.step(
             "Na-Cl effect (Story 2016; albumin not given, so no full partition)",
@@ -1471,9 +2119,7 @@ def _stewart(w: _Work) -> None:
             output="na_cl_effect",
             unit=mq,
         )
-        effects = {"na_cl": na_cl}
         if s.lactate is not None:
-            effects["lactate"] = -s.lactate
             r.quantity("lactate_effect", -s.lactate, mq, decimals=1)
             r.step(
                 "Lactate effect (Story 2016)",
@@ -1483,49 +2129,30 @@ def _stewart(w: _Work) -> None:
                 output="lactate_effect",
                 unit=mq,
             )
-    st["effects"] = effects
-    st["full"] = s.albumin is not None and sbe_ok
-    if s.k is not None and s.albumin is not None:
+    if d.sig_given:
         assumed = []
-        ca = s.ca_ionised if s.ca_ionised is not None else TYPICAL_CA_IONISED
-        mg = s.mg if s.mg is not None else TYPICAL_MG
-        phos = s.phosphate if s.phosphate is not None else TYPICAL_PHOSPHATE
-        lactate = s.lactate if s.lactate is not None else 0.0
-        for name, given, value in (
-            ("ionised calcium", s.ca_ionised, ca),
-            ("magnesium", s.mg, mg),
-            ("phosphate", s.phosphate, phos),
+        ca, mg, phos = d.stewart_terms
+        for name, key, value in (
+            ("ionised calcium", "ca", ca),
+            ("magnesium", "mg", mg),
+            ("phosphate", "phosphate", phos),
         ):
-            if given is None:
+            if d.assumed[key]:
                 assumed.append(f"{name} {value:g} mmol/L")
-        alb_g_l = s.albumin * 10.0
-        sida = ab.strong_ion_difference_apparent(
-            na_mmol_l=s.na,
-            k_mmol_l=s.k,
-            ca_ionised_mmol_l=ca,
-            mg_mmol_l=mg,
-            cl_mmol_l=s.cl,
-            lactate_mmol_l=lactate,
-        )
-        alb_q = ab.albumin_charge_figge(albumin_g_l=alb_g_l, ph=s.ph)
-        phos_q = ab.phosphate_charge_figge(phosphate_mmol_l=phos, ph=s.ph)
-        side = ab.strong_ion_difference_effective(
-            hco3_mmol_l=w.hco3_out, albumin_g_l=alb_g_l, phosphate_mmol_l=phos, ph=s.ph
-        )
-        sig = ab.strong_ion_gap(sid_apparent_meq_l=sida, sid_effective_meq_l=side)
+        sig = d.strong_ion_gap
         sources = ("stewart1983", "figge1992", "kellum1995")
         for name, value, formula, src in (
-            ("sid_apparent", sida, "Na + K + 2 x Ca(ionised) + 2 x Mg - Cl - lactate", sources),
-            ("albumin_charge", alb_q, "albumin g/L x (0.123 x pH - 0.631)", "figge1992"),
-            ("phosphate_charge", phos_q, "phosphate mmol/L x (0.309 x pH - 0.469)", "figge1992"),
-            ("sid_effective", side, "HCO3 + albumin charge + phosphate charge", sources),
+            ("sid_apparent", d.sid_apparent, "Na + K + 2 x Ca(ionised) + 2 x Mg - Cl - lactate", sources),
+            ("albumin_charge", d.albumin_charge, "albumin g/L x (0.123 x pH - 0.631)", "figge1992"),
+            ("phosphate_charge", d.phosphate_charge, "phosphate mmol/L x (0.309 x pH - 0.469)", "figge1992"),
+            ("sid_effective", d.sid_effective, "HCO3 + albumin charge + phosphate charge", sources),
             ("strong_ion_gap", sig, "SIG = SIDa - SIDe", ("kellum1995", "figge1992")),
         ):
             r.quantity(name, value, mq, decimals=1)
             r.step(name.replace("_", " ").replace("sid", "SID"), formula, value, src, output=name, unit=mq)
-        if s.lactate is None:
+        if d.assumed["lactate"]:
             assumed.append("lactate not given (any lactate is counted in the SIG)")
-        if assumed:
+        if w.fires("stewart_assumed_values"):
             r.finding(
                 "stewart_assumed_values",
                 "info",
@@ -1541,8 +2168,7 @@ def _stewart(w: _Work) -> None:
                 output="strong_ion_gap",
                 unit=mq,
             )
-        st["sig"] = sig
-        if sig > 4.0:
+        if w.fires("strong_ion_gap_raised"):
             r.finding(
                 "strong_ion_gap_raised",
                 "info",
@@ -1562,12 +2188,10 @@ _EFFECT_WORDS = {
 
 def _compare(w: _Work) -> None:
     """Physiological, base-excess and physicochemical readings of the metabolic component, side by side."""
-    r = w.r
-    codes = w.codes()
-    boston = (MET_ACID in codes, MET_ALK in codes)
-    cph = w.copenhagen
-    if "acid" not in cph:
+    s, r, d = w.s, w.r, w.d
+    if not d.copenhagen:
         return
+    boston = (w.has(MET_ACID), w.has(MET_ALK))
 
     def words(acid: bool, alk: bool) -> str:
         if acid and alk:
@@ -1575,54 +2199,54 @@ def _compare(w: _Work) -> None:
         return "a metabolic acidosis" if acid else "a metabolic alkalosis" if alk else "no metabolic disorder"
 
     parts = [f"Physiological (HCO3) reading: {words(*boston)}."]
-    cph_pair = (cph["acid"], cph["alk"])
-    beyond = " beyond what the respiratory disorder explains" if w.resp is not None and any(cph_pair) else ""
+    cph_pair = (bool(d.cph_acid), bool(d.cph_alk))
+    beyond = " beyond what the respiratory disorder explains" if w.resp and any(cph_pair) else ""
     resp_note = ""
-    resp_differs = False
-    if "pco2" in cph:
+    if d.cph_pco2_given:
         rule = "SBE" if w.primary == MET_ACID else "0.6 x SBE"
-        resp_note = f"; PaCO2 {'fits' if cph['fits'] else 'does not fit'} 40 + {rule} = {w.p(cph['pco2'])}"
-        boston_resp = RESP_ACID in codes or RESP_ALK in codes
-        resp_differs = boston_resp == cph["fits"]
+        resp_note = f"; PaCO2 {'fits' if d.cph_fits else 'does not fit'} 40 + {rule} = {w.p(d.cph_pco2)}"
     parts.append(
-        f"Base-excess (Copenhagen) reading: SBE {cph['sbe']:+.1f} mmol/L, "
-        f"{words(*cph_pair)}{beyond}{resp_note}."
+        f"Base-excess (Copenhagen) reading: SBE {d.sbe:+.1f} mmol/L, {words(*cph_pair)}{beyond}{resp_note}."
     )
-    if resp_differs:
+    if d.resp_differs:
         parts.append(
             "The two readings differ on the respiratory response: "
             + (
                 "Winters' formula finds it appropriate while the SBE rule does not."
-                if cph["fits"] is False
+                if not d.cph_fits
                 else "the SBE rule finds it appropriate while the HCO3 rule does not."
             )
         )
-    st = w.stewart.get("effects")
-    stewart_pair = None
-    if st:
-        acidifying = [k for k, v in st.items() if v <= -STEWART_EFFECT]
-        alkalinising = [k for k, v in st.items() if v >= STEWART_EFFECT]
-        shown = ", ".join(f"{k.replace('_', '-')} {v:+.1f}" for k, v in st.items())
+    if d.has_gap:
+        shown_keys = ["na_cl"] + (["albumin", "unmeasured"] if d.stewart_full else [])
+        if s.lactate is not None:
+            shown_keys.append("lactate")
+        values = {
+            "na_cl": d.na_cl_effect,
+            "albumin": d.story2016.albumin,
+            "unmeasured": d.story2016.unmeasured,
+            "lactate": -s.lactate if s.lactate is not None else None,
+        }
+        acidifying = [k for k in shown_keys if d.effect_acidifying[k]]
+        alkalinising = [k for k in shown_keys if d.effect_alkalinising[k]]
+        shown = ", ".join(f"{k.replace('_', '-')} {values[k]:+.1f}" for k in shown_keys)
         named = [_EFFECT_WORDS[k][0] for k in acidifying] + [_EFFECT_WORDS[k][1] for k in alkalinising]
         text = f"Physicochemical (Stewart) reading: effects {shown} mEq/L" + (
             f", showing {', '.join(named)}" if named else ", none of them large"
         )
-        if w.stewart.get("full"):
-            stewart_pair = (bool(acidifying), bool(alkalinising))
+        if d.stewart_full:
             text += "."
         else:
             text += (
                 " (albumin not given, so the unmeasured-ion effect is unknown and this reading is partial)."
             )
         parts.append(text)
-        if RESP_ACID in codes and "na_cl" in alkalinising:
+        if w.has(RESP_ACID) and d.effect_alkalinising["na_cl"]:
             parts.append(
                 "With a respiratory acidosis, a low chloride (a raised Na-Cl effect) is also how renal "
                 "compensation appears in Stewart terms."
             )
-    agree_bc = boston == cph_pair
-    agree_all = agree_bc and not resp_differs and (stewart_pair is None or stewart_pair == boston)
-    if agree_all:
+    if w.fires("approaches_agree"):
         parts.append("The readings agree.")
         r.finding("approaches_agree", "info", " ".join(parts))
     else:
@@ -1630,42 +2254,38 @@ def _compare(w: _Work) -> None:
             parts.append(
                 "Opposing metabolic processes cancel in the SBE, which measures only their net effect."
             )
-        if stewart_pair is not None and stewart_pair != boston:
+        if d.stewart_pair_given and (bool(d.stewart_acid), bool(d.stewart_alk)) != boston:
             parts.append(
                 "Stewart splits the net change into separate effects, some of which offset each other."
             )
         parts.append(
             "Each approach measures the metabolic component its own way; none is taken as the reference here."
         )
-        r.finding("approaches_disagree", "info" if agree_bc else "notable", " ".join(parts))
+        r.finding("approaches_disagree", d.severity["approaches_disagree"], " ".join(parts))
     # the chronic respiratory rules (Boston 3.5 per 10 against Copenhagen 0.4 x dPaCO2)
-    if w.resp is not None and "chronicity" in cph:
+    if w.fires("boston_copenhagen_chronicity"):
         boston_ch = w.disorders[0]["chronicity"]
-        if boston_ch is not None and cph["chronicity"] is not None and boston_ch != cph["chronicity"]:
-            r.finding(
-                "boston_copenhagen_chronicity",
-                "info",
-                f"The HCO3 rules read {boston_ch.replace('_', '-')}, the SBE rules "
-                f"{cph['chronicity'].replace('_', '-')} (SBE {cph['sbe']:+.1f}; acute 0, chronic "
-                f"{cph['chronic']:+.1f} +/- 3 mmol/L). The chronic SBE rule corresponds to a steeper HCO3 "
-                "rise than 3.5 per 10 mmHg, so the two rules differ most for chronic hypercapnia.",
-            )
+        r.finding(
+            "boston_copenhagen_chronicity",
+            "info",
+            f"The HCO3 rules read {boston_ch.replace('_', '-')}, the SBE rules "
+            f"{d.cph_chronicity.replace('_', '-')} (SBE {d.sbe:+.1f}; acute 0, chronic "
+            f"{d.sbe_chronic:+.1f} +/- 3 mmol/L). The chronic SBE rule corresponds to a steeper HCO3 "
+            "rise than 3.5 per 10 mmHg, so the two rules differ most for chronic hypercapnia.",
+        )
 
 
 # -- ventilation safety --------------------------------------------------------------------------------------
 
 
 def _ventilation(w: _Work) -> None:
-    s, r = w.s, w.r
-    codes = w.codes()
+    s, r, d = w.s, w.r, w.d
     p = s.pco2
-    resp_acid = RESP_ACID in codes
-    if resp_acid or s.baseline_pco2 is not None:
-        _pco2_target(w, resp_acid)
+    if d.target_given:
+        _pco2_target(w)
     # NIV thresholds (BTS/ICS 2016)
-    meets = s.ph < NIV_PH and p > NIV_PCO2_MMHG
-    if meets and s.site == "venous":
-        w.niv = "not_assessable"
+    w.niv = d.niv
+    if w.fires("niv_criteria_need_arterial_sample"):
         r.finding(
             "niv_criteria_need_arterial_sample",
             "notable",
@@ -1673,8 +2293,7 @@ def _ventilation(w: _Work) -> None:
             "(pH < 7.35 and PaCO2 > 6.5 kPa) are defined on arterial (or arterialised capillary) values: "
             "confirm with one.",
         )
-    elif meets:
-        w.niv = "met"
+    elif w.fires("niv_criteria_met"):
         notes = []
         if s.ph < NIV_INVASIVE_PH:
             notes.append(
@@ -1682,12 +2301,7 @@ def _ventilation(w: _Work) -> None:
                 "ventilation should be considered."
             )
         first = w.disorders[0] if w.disorders else None
-        chronic = bool(
-            first
-            and first["code"] == RESP_ACID
-            and first["chronicity"] == "chronic"
-            and first["fraction_acute"] is not None
-        )
+        chronic = bool(d.niv_chronic)
         if chronic:
             notes.append(
                 "The HCO3 here fits chronic, compensated hypercapnia, while the guideline addresses acute "
@@ -1698,7 +2312,7 @@ def _ventilation(w: _Work) -> None:
         kpa = "" if w.r.pressure_unit == "kPa" else f" ({units.convert(p, 'mmHg', 'kPa'):.2f} kPa)"
         r.finding(
             "niv_criteria_met",
-            "notable" if chronic else "urgent",
+            d.severity["niv_criteria_met"],
             f"pH {s.ph:.2f} with PaCO2 {w.p(p)}{kpa} is below 7.35 and above 6.5 kPa: the thresholds at "
             "which the BTS/ICS 2016 guideline recommends considering acute NIV for hypercapnic respiratory "
             "failure that persists after optimal medical treatment. "
@@ -1706,29 +2320,14 @@ def _ventilation(w: _Work) -> None:
             + (" " if notes else "")
             + "This is a threshold for the treating team to weigh, not an instruction.",
         )
-    else:
-        w.niv = "not_met"
     r.put("niv_criteria", w.niv)
     # consciousness
-    retainer = False
+    retainer = bool(d.retainer)
+    threshold = d.consciousness_threshold
     if s.baseline_pco2 is not None:
-        threshold = max(NARCOSIS_NORMAL_MMHG, s.baseline_pco2 + NARCOSIS_RISE_MMHG)
         formula = "max(75 mmHg, baseline PaCO2 + 35 mmHg)"
-        retainer = s.baseline_pco2 > PCO2_HIGH
     else:
-        first = w.disorders[0] if w.disorders else None
-        # chronic retention = the HCO3 rules read chronic or acute-on-chronic and no metabolic acidosis is
-        # named (a metabolic acidosis would hide retention). Reading it from the HCO3 alone keeps the
-        # threshold non-increasing as PaCO2 rises at a fixed HCO3.
-        f_h = w.resp.get("f_h") if w.resp is not None else None
-        retainer = bool(
-            first
-            and first["code"] == RESP_ACID
-            and f_h is not None
-            and f_h < ab.ACUTE_AT_LEAST
-            and MET_ACID not in w.codes()
-        )
-        threshold = NARCOSIS_CHRONIC_MMHG if retainer else NARCOSIS_NORMAL_MMHG
+        # chronic retention is read from the PaCO2 and HCO3 alone (decide: d.retainer)
         formula = (
             "about 90 mmHg in chronic retainers (chronic compensation seen in the HCO3)"
             if retainer
@@ -1743,7 +2342,7 @@ def _ventilation(w: _Work) -> None:
         output="pco2_consciousness_threshold",
         pressure=True,
     )
-    if p > threshold:
+    if w.fires("pco2_above_consciousness_threshold"):
         who = (
             "for this patient's usual PaCO2"
             if s.baseline_pco2 is not None
@@ -1759,43 +2358,34 @@ def _ventilation(w: _Work) -> None:
         )
 
 
-def _pco2_target(w: _Work, resp_acid: bool) -> None:
-    s, r = w.s, w.r
+def _pco2_target(w: _Work) -> None:
+    s, r, d = w.s, w.r, w.d
     p, h = s.pco2, w.hco3
-    codes = w.codes()
-    metabolic = MET_ACID in codes or MET_ALK in codes
-    floor = None
-    if resp_acid:
-        f = ab.pco2_for_ph_acute(ph_target=FLOOR_PH, paco2_mmhg=p, hco3_mmol_l=h)
-        if f is not None and 8.0 <= f < p:
-            floor = f
-            r.pressure("pco2_alkalaemia_floor", f)
-            r.step(
-                "PaCO2 at which a quick fall would bring the pH to 7.45 (present HCO3, acute rule)",
-                "P = (HCO3 - 0.1 x PaCO2) / (0.0307 x 10^(7.45 - 6.1) - 0.1)",
-                f,
-                ("henderson1908", "narins1980", "posthypercapnic_alkalosis"),
-                output="pco2_alkalaemia_floor",
-                pressure=True,
-            )
+    floor = none_if_nan(d.floor)
+    if floor is not None:
+        r.pressure("pco2_alkalaemia_floor", floor)
+        r.step(
+            "PaCO2 at which a quick fall would bring the pH to 7.45 (present HCO3, acute rule)",
+            "P = (HCO3 - 0.1 x PaCO2) / (0.0307 x 10^(7.45 - 6.1) - 0.1)",
+            floor,
+            ("henderson1908", "narins1980", "posthypercapnic_alkalosis"),
+            output="pco2_alkalaemia_floor",
+            pressure=True,
+        )
+    target, basis, source = d.pco2_target, d.pco2_target_basis, d.baseline_pco2_source
     reason = ""
-    if s.baseline_pco2 is not None:
-        source = "given"
+    if d.target_route == "given":
         b = s.baseline_pco2
-        if b > PCO2_HIGH:
-            target, basis = b, "chronic_baseline"
+        if basis == "chronic_baseline":
             reason = (
                 f"the patient's known usual PaCO2 ({w.p(b)}). Ventilating below it leaves the kidneys' "
                 "retained HCO3 unopposed: post-hypercapnic metabolic alkalosis."
             )
         else:
-            target, basis = PCO2_HIGH, "normal_upper_limit"
             reason = "the upper limit of normal, because the known usual PaCO2 is normal."
         formula = "target = known baseline PaCO2 if above 45 mmHg, else 45 mmHg"
         src = ("posthypercapnic_alkalosis", "acid_base_normal_ranges")
-    elif w.primary in (MET_ACID, MET_ALK) and w.met_expected is not None:
-        source, basis = "estimated", "metabolic_compensation"
-        target = w.met_expected.value
+    elif d.target_route == "metabolic":
         rule = "Winters' formula" if w.primary == MET_ACID else "the metabolic alkalosis rule"
         reason = (
             f"the PaCO2 that compensation for the {NAMES[w.primary]} would give ({rule}); aiming for a "
@@ -1805,10 +2395,7 @@ def _pco2_target(w: _Work, resp_acid: bool) -> None:
         formula = "target = centre of the expected compensating PaCO2"
         src = ("albert1967",) if w.primary == MET_ACID else ("berend2014",)
     else:
-        source = "estimated"
-        est = ab.baseline_pco2_from_hco3(paco2_mmhg=max(p, 41.0), hco3_mmol_l=h)
-        lo = ab.baseline_pco2_from_hco3(paco2_mmhg=max(p, 41.0), hco3_mmol_l=h, chronic_mmol_per_10_mmhg=5.0)
-        hi = ab.baseline_pco2_from_hco3(paco2_mmhg=max(p, 41.0), hco3_mmol_l=h, chronic_mmol_per_10_mmhg=3.0)
+        est, lo, hi = d.baseline_estimated, d.baseline_low, d.baseline_high
         r.pressure("baseline_pco2_estimated", est)
         r.step(
             "Usual (chronic) PaCO2 estimated from the HCO3 (an estimate)",
@@ -1828,9 +2415,7 @@ def _pco2_target(w: _Work, resp_acid: bool) -> None:
             output="baseline_pco2_range",
             pressure=True,
         )
-        if metabolic:
-            target = max(PCO2_HIGH, floor or 0.0)
-            basis = "alkalaemia_floor"
+        if basis == "alkalaemia_floor":
             reason = (
                 "the higher of 45 mmHg and the PaCO2 at which the present HCO3 would make the blood "
                 "alkalaemic: a concurrent metabolic disorder moves the HCO3, so the usual PaCO2 cannot be "
@@ -1845,8 +2430,7 @@ def _pco2_target(w: _Work, resp_acid: bool) -> None:
                 "alkalosis too high. A known usual PaCO2 (an earlier stable gas) should be used where "
                 "there is one.",
             )
-        elif est > PCO2_HIGH:
-            target, basis = est, "chronic_baseline"
+        elif basis == "chronic_baseline":
             reason = (
                 f"the usual PaCO2 estimated from the HCO3 ({w.p(est)}; {w.p(lo)} to {w.p(hi)} across the "
                 "published chronic slopes). The HCO3 shows chronic CO2 retention: ventilating below the "
@@ -1855,7 +2439,6 @@ def _pco2_target(w: _Work, resp_acid: bool) -> None:
             )
             formula = "target = estimated usual PaCO2"
         else:
-            target, basis = PCO2_HIGH, "normal_upper_limit"
             reason = (
                 "the upper limit of normal: the HCO3 shows no chronic CO2 retention (estimated usual PaCO2 "
                 f"{w.p(est)})."
@@ -1875,14 +2458,14 @@ def _pco2_target(w: _Work, resp_acid: bool) -> None:
         + reason
         + " A target for the treating team to weigh, reached gradually and rechecked with a repeat gas.",
     )
-    if floor is not None and target < floor - 0.5:
+    if w.fires("target_below_alkalaemia_floor"):
         r.finding(
             "target_below_alkalaemia_floor",
             "notable",
             f"Lowering PaCO2 quickly to {w.p(target)} would, with the present HCO3 ({h:.1f} mmol/L), bring "
             f"the pH above 7.45 (that happens below about {w.p(floor)}); the HCO3 falls only over days.",
         )
-    if s.baseline_pco2 is not None and p < s.baseline_pco2 - 5.0 and s.baseline_pco2 > PCO2_HIGH:
+    if w.fires("pco2_below_baseline"):
         r.finding(
             "pco2_below_baseline",
             "notable",
@@ -1899,21 +2482,11 @@ def _pco2_target(w: _Work, resp_acid: bool) -> None:
 # -- oxygenation ---------------------------------------------------------------------------------------------
 
 
-def _pf_ratio(pao2_mmhg: float, fio2: float) -> float:
-    """PaO2 / FiO2 [mmHg] (private helper; the oxygenation module's own version is not relied on here)."""
-    return pao2_mmhg / fio2
-
-
-def _a_over_A(pao2_mmhg: float, alveolar_mmhg: float) -> float | None:
-    """a/A ratio (private helper); None when the alveolar PO2 is not positive."""
-    return pao2_mmhg / alveolar_mmhg if alveolar_mmhg > 0 else None
-
-
 def _oxygenation(w: _Work) -> None:
-    s, r = w.s, w.r
+    s, r, d = w.s, w.r, w.d
     if s.po2 is None:
         return
-    if s.site == "venous":
+    if w.fires("venous_po2_not_interpreted"):
         r.finding(
             "venous_po2_not_interpreted",
             "notable",
@@ -1946,10 +2519,10 @@ def _oxygenation(w: _Work) -> None:
             output="pb",
             pressure=True,
         )
-    pio2 = s.fio2 * (pb - oxygenation.PH2O_37_MMHG)
+    pio2 = d.pio2
     r.pressure("pio2", pio2)
     r.step("Inspired PO2", "PIO2 = FiO2 x (PB - 47)", pio2, "alveolar_gas_1946", output="pio2", pressure=True)
-    pao2_a = oxygenation.alveolar_po2_simple(fio2_fraction=s.fio2, paco2_mmhg=s.pco2, pb_mmhg=pb, rq=s.rq)
+    pao2_a = d.pao2_alveolar
     pao2_full = oxygenation.alveolar_po2_full(fio2_fraction=s.fio2, paco2_mmhg=s.pco2, pb_mmhg=pb, rq=s.rq)
     r.pressure("pao2_alveolar", pao2_a)
     r.step(
@@ -1969,17 +2542,17 @@ def _oxygenation(w: _Work) -> None:
         output="pao2_alveolar_full",
         pressure=True,
     )
-    aa = pao2_a - s.po2
+    aa = d.a_a_gradient
     r.pressure("a_a_gradient", aa)
     r.step("A-a gradient", "A-a = PAO2 - PaO2", aa, "alveolar_gas_1946", output="a_a_gradient", pressure=True)
-    ratio = _a_over_A(s.po2, pao2_a)
+    ratio = none_if_nan(d.a_over_A)
     if ratio is not None:
         r.put("a_over_A", ratio, decimals=2)
         r.step("a/A ratio", "PaO2 / PAO2 (normal above 0.75)", ratio, "gilbert1974", output="a_over_A")
-    pf = _pf_ratio(s.po2, s.fio2)
+    pf = d.pf_ratio
     r.quantity("pf_ratio", pf, "mmHg", decimals=0)
     r.step("P/F ratio", "PaO2 [mmHg] / FiO2", pf, "berlin2012", output="pf_ratio", unit="mmHg")
-    if aa < -10.0:
+    if w.fires("po2_above_alveolar"):
         r.finding(
             "po2_above_alveolar",
             "notable",
@@ -1988,7 +2561,7 @@ def _oxygenation(w: _Work) -> None:
         )
     # age-expected upper limit and category
     if s.age is not None:
-        upper = oxygenation.aa_gradient_upper_by_age(age_years=s.age)
+        upper = d.a_a_expected_upper
         r.pressure("a_a_expected_upper", upper)
         r.step(
             "Upper limit of the A-a gradient for age (breathing air)",
@@ -1998,13 +2571,9 @@ def _oxygenation(w: _Work) -> None:
             output="a_a_expected_upper",
             pressure=True,
         )
-        category = "raised" if aa > upper else "normal"
-    else:
-        adult_low = oxygenation.aa_gradient_upper_by_age(age_years=18.0)
-        adult_high = oxygenation.aa_gradient_upper_by_age(age_years=100.0)
-        category = "normal" if aa <= adult_low else ("raised" if aa > adult_high else "needs_age")
+    category = d.a_a_category
     r.put("a_a_category", category)
-    if s.fio2 > 0.3:
+    if w.fires("a_a_on_oxygen"):
         r.finding(
             "a_a_on_oxygen",
             "info",
@@ -2012,22 +2581,16 @@ def _oxygenation(w: _Work) -> None:
             "gradient is wider, so a 'raised' reading is less specific.",
         )
     # respiratory failure
-    hyper = s.pco2 > PCO2_HIGH
-    if hyper and (s.po2 < HYPOXAEMIA_MMHG or s.fio2 > 0.21):
-        failure = "type_2"
-    elif s.po2 < HYPOXAEMIA_MMHG:
-        failure = "type_1"
-    else:
-        failure = "none"
+    failure = d.respiratory_failure
     r.put("respiratory_failure", failure)
-    if failure == "type_2" and s.po2 >= HYPOXAEMIA_MMHG:
+    if w.fires("hypoxaemia_masked_by_oxygen"):
         r.finding(
             "hypoxaemia_masked_by_oxygen",
             "notable",
             f"PaO2 {w.p(s.po2)} is not low, but on FiO2 {s.fio2:.2f} with PaCO2 {w.p(s.pco2)} this is "
             "hypercapnic (type 2) respiratory failure: supplemental oxygen masks the hypoxaemia.",
         )
-    elif failure != "none":
+    elif failure != "none" and w.fires(f"respiratory_failure_{failure}"):
         r.finding(
             f"respiratory_failure_{failure}",
             "notable",
@@ -2039,7 +2602,7 @@ def _oxygenation(w: _Work) -> None:
             ),
         )
     reading = None
-    if hyper and category == "normal":
+    if w.fires("pure_hypoventilation"):
         reading = "pure_hypoventilation"
         r.finding(
             "pure_hypoventilation",
@@ -2048,7 +2611,7 @@ def _oxygenation(w: _Work) -> None:
             "hypoventilation alone (reduced drive, neuromuscular weakness or a chest-wall problem), not "
             "from lung disease.",
         )
-    elif hyper and category == "raised":
+    elif w.fires("gas_exchange_impaired"):
         reading = "lung_disease_and_hypoventilation"
         r.finding(
             "gas_exchange_impaired",
@@ -2056,20 +2619,20 @@ def _oxygenation(w: _Work) -> None:
             f"Hypercapnia with a raised A-a gradient ({w.p(aa)}): lung disease (V/Q mismatch, shunt or dead "
             "space) as well as hypoventilation.",
         )
-    elif not hyper and category == "normal" and s.po2 < HYPOXAEMIA_MMHG:
+    elif w.fires("low_inspired_oxygen"):
         r.finding(
             "low_inspired_oxygen",
             "notable",
             "Hypoxaemia with a normal A-a gradient and no hypercapnia points to a low inspired PO2 "
             "(altitude, low FiO2).",
         )
-    elif category == "needs_age" and hyper:
+    elif w.fires("a_a_needs_age"):
         r.finding(
             "a_a_needs_age",
             "info",
             "Give the age to judge the A-a gradient: it separates pure hypoventilation from lung disease.",
         )
-    if s.site == "capillary":
+    if w.fires("capillary_po2"):
         r.finding(
             "capillary_po2",
             "notable",
@@ -2084,9 +2647,9 @@ def _oxygenation(w: _Work) -> None:
 
 def _temperature(w: _Work) -> None:
     s, r = w.s, w.r
-    t = s.temperature
-    if t is None or abs(t - 37.0) < 1e-9:
+    if not w.fires("temperature_ph_stat_view"):
         return
+    t = s.temperature
     ph_t = temperature.ph_at_temperature_rosenthal(ph=s.ph, temperature_c=t)
     pco2_t = temperature.pco2_at_temperature(pco2_mmhg=s.pco2, temperature_c=t)
     r.put("ph_at_temperature", ph_t, decimals=2)
@@ -2142,17 +2705,16 @@ def _temperature(w: _Work) -> None:
 
 
 def _spo2_target(w: _Work) -> None:
-    s, r = w.s, w.r
-    hyper_here = s.site != "venous" and s.pco2 > PCO2_HIGH
-    at_risk = s.hypercapnia_risk or hyper_here
-    low, high = (88, 92) if at_risk else (94, 98)
+    s, r, d = w.s, w.r, w.d
+    at_risk = bool(d.at_risk)
+    low, high = d.spo2_low, d.spo2_high
     w.spo2_target = (low, high)
     r.put("spo2_target", {"low": low, "high": high}, decimals=0)
     why = (
         "at risk of hypercapnic respiratory failure"
         if s.hypercapnia_risk
         else "hypercapnic on this sample"
-        if hyper_here
+        if d.hyper_here
         else "not marked at risk of hypercapnic failure"
     )
     r.step(
@@ -2169,14 +2731,14 @@ def _spo2_target(w: _Work) -> None:
         f"SpO2 target {low}-{high} % ({why}; BTS 2017). Use the patient's own prescribed range where one "
         "exists.",
     )
-    if hyper_here and not s.hypercapnia_risk:
+    if w.fires("hypercapnic_without_risk_flag"):
         r.finding(
             "hypercapnic_without_risk_flag",
             "notable",
             f"PaCO2 {w.p(s.pco2)} is raised although hypercapnia_risk was not set: the lower 88-92 % range "
             "of the BTS 2017 guideline is shown.",
         )
-    if s.hypercapnia_risk and s.site != "venous" and s.pco2 <= PCO2_HIGH:
+    if w.fires("risk_flag_with_normal_pco2"):
         r.finding(
             "risk_flag_with_normal_pco2",
             "info",
@@ -2184,47 +2746,43 @@ def _spo2_target(w: _Work) -> None:
             "no history of NIV or invasive ventilation for hypercapnic failure; the 88-92 % range is kept "
             "because hypercapnia_risk was set.",
         )
-    if s.spo2 is not None:
-        if s.spo2 < low:
-            r.finding(
-                "spo2_below_target", "notable", f"SpO2 {s.spo2:g} % is below the {low}-{high} % target."
-            )
-        elif s.spo2 > high:
-            r.finding(
-                "spo2_above_target",
-                "notable" if at_risk else "info",
-                f"SpO2 {s.spo2:g} % is above the {low}-{high} % target"
-                + (
-                    ": in patients at risk of hypercapnic failure excess oxygen can raise the PaCO2."
-                    if at_risk
-                    else "."
-                ),
-            )
+    if w.fires("spo2_below_target"):
+        r.finding("spo2_below_target", "notable", f"SpO2 {s.spo2:g} % is below the {low}-{high} % target.")
+    elif w.fires("spo2_above_target"):
+        r.finding(
+            "spo2_above_target",
+            d.severity["spo2_above_target"],
+            f"SpO2 {s.spo2:g} % is above the {low}-{high} % target"
+            + (
+                ": in patients at risk of hypercapnic failure excess oxygen can raise the PaCO2."
+                if at_risk
+                else "."
+            ),
+        )
 
 
 def _severity(w: _Work) -> None:
     s, r = w.s, w.r
-    if s.ph < SEVERE_ACIDAEMIA_PH:
+    if w.fires("severe_acidaemia"):
         r.finding(
             "severe_acidaemia",
             "urgent",
             f"pH {s.ph:.2f} is below {SEVERE_ACIDAEMIA_PH:.2f}: severe acidaemia.",
         )
-    elif s.ph > SEVERE_ALKALAEMIA_PH:
+    elif w.fires("severe_alkalaemia"):
         r.finding(
             "severe_alkalaemia",
             "urgent",
             f"pH {s.ph:.2f} is above {SEVERE_ALKALAEMIA_PH:.2f}: severe alkalaemia.",
         )
-    if w.ph_status == "normal" and len(w.disorders) == 1:
+    if w.fires("normal_ph_single_disorder"):
         d = w.disorders[0]
-        if not (d["code"] == RESP_ALK and d["chronicity"] == "chronic"):
-            r.finding(
-                "normal_ph_single_disorder",
-                "info",
-                f"The pH is normal with a single {NAMES[d['code']]}: compensation rarely returns the pH to "
-                "normal, so an opposing second process is possible.",
-            )
+        r.finding(
+            "normal_ph_single_disorder",
+            "info",
+            f"The pH is normal with a single {NAMES[d['code']]}: compensation rarely returns the pH to "
+            "normal, so an opposing second process is possible.",
+        )
 
 
 # -- outputs, cautions, summary ------------------------------------------------------------------------------
@@ -2287,7 +2845,7 @@ def _outputs(w: _Work) -> None:
     r = w.r
     for d in w.disorders:
         if d["fraction_acute"] is not None:
-            from_baseline = w.resp is not None and w.resp["f_b"] is not None
+            from_baseline = w.resp and given(w.d.f_b)
             r.step(
                 f"Fraction acute of the {NAMES[d['code']]} used for the chronicity call",
                 ">= 0.8 acute, <= 0.2 chronic, between acute-on-chronic"
@@ -2321,7 +2879,7 @@ def _cautions(w: _Work) -> None:
             "a venous PO2 says nothing about oxygenation. Confirm hypercapnia with an arterial or "
             "arterialised capillary sample."
         )
-        w.r.finding(
+        r.finding(
             "venous_sample",
             "notable",
             "Venous sample: the rules were derived on arterial blood; a raised venous PCO2 screens for, but "
@@ -2332,7 +2890,7 @@ def _cautions(w: _Work) -> None:
             "Capillary sample: arterialised capillary pH and PCO2 approximate arterial values when the site "
             "is well perfused; capillary PO2 underestimates arterial PO2."
         )
-        w.r.finding(
+        r.finding(
             "capillary_sample",
             "info",
             "Arterialised capillary sample: pH and PCO2 approximate arterial values; PO2 underestimates "
@@ -2369,8 +2927,8 @@ def _summary(w: _Work) -> None:
         f"mmol/L ({hco3_note}), SBE {w.sbe:+.1f} mmol/L."
     )
     r.say(w.interpretation)
-    if w.resp is not None:
-        e = w.resp["e"]
+    if w.resp:
+        e = ab.RespiratoryExpectation(w.d.e_acute, w.d.e_chronic)
         d = w.disorders[0]
         line = (
             f"Expected HCO3 for this PCO2: {e.acute.value:.1f} if acute, {e.chronic.value:.1f} if chronic "

@@ -551,6 +551,23 @@ REFERENCES: dict[str, Ref] = {
         "common practice",
     ),
     # -- additions: altitude and transport (keep this line: it is an edit anchor) --
+    "jcgm101_2008": _r(
+        "JCGM 101:2008 (GUM Supplement 1)",
+        "Joint Committee for Guides in Metrology. JCGM 101:2008. Evaluation of measurement data - "
+        "Supplement 1 to the Guide to the expression of uncertainty in measurement - Propagation of "
+        "distributions using a Monte Carlo method. BIPM, 2008 (draws from the input distributions, each "
+        "propagated through the model; coverage interval from the 2.5th and 97.5th percentiles).",
+        "from memory",
+    ),
+    "analyser_imprecision": _r(
+        "Typical analyser imprecision (1 SD)",
+        "Typical between-run imprecision of blood-gas and point-of-care chemistry analysers, as 1 SD or "
+        "CV: pH 0.01; PCO2 3 %; PO2 4 %; Na 1.5, K 0.1, Cl 1.5 mmol/L; albumin 4 %; lactate 5 %; glucose "
+        "3 %; urea 4 %; phosphate 4 %; osmolality 3 mOsm/kg; Hb 2 %; ionised Ca 2 %; Mg 4 %; pulse "
+        "oximeter SpO2 2 % (ISO 80601-2-61 accuracy limit 4 % root-mean-square, from memory); "
+        "thermometer 0.2 degC. Each laboratory states its own: use those where known.",
+        "common practice",
+    ),
     # -- additions: shell, uncertainty, other (keep this line: it is an edit anchor) --
 }
 

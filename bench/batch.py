@@ -1,0 +1,304 @@
+#!/usr/bin/env python3
+"""Batch audit and uncertainty: how fast, against looping the scalar bridge.
+
+    python3 bench/batch.py [--rows 100000] [--scalar-sample 5000] [--full-scalar] [--repeat 3] [--json FILE]
+
+Builds a seeded, invented audit file (--rows samples: COPD exacerbations, compensated and mixed disorders,
+normal gases, venous and capillary samples, about 2 % of rows with a typing slip or a unit mix-up, units in
+the header and now and then in a cell) and times:
+
+- the batch: reading the CSV text, interpreting every row (numpy, tidewell.batch.interpret_table), writing
+  the output CSV and the summary; and end to end, file to file (tidewell.batch.run);
+- the scalar bridge looped over the same rows (tidewell.bridge.handle_obj on each row's inputs, no CSV work
+  at all, so the ratio favours the loop). By default a random sample of --scalar-sample rows is timed
+  before and after the batch and the per-row mean is extrapolated to --rows (printed as extrapolated);
+  --full-scalar loops over every row instead;
+- the uncertainty calculation: 10,000 draws for three samples, --repeat times each.
+
+A benchmark, not a test: it prints figures (and the load of the machine) and passes no judgement. The
+target of issue 9 is a batch at least 20 times faster than the scalar loop.
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import io
+import json
+import os
+import platform
+import random
+import statistics
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "core"))
+
+from tidewell import __version__, batch, bridge  # noqa: E402
+
+COLUMNS = [
+    "id",
+    "ph",
+    "pco2[kPa]",
+    "po2[kPa]",
+    "hco3[mmol/L]",
+    "base_excess[mmol/L]",
+    "fio2",
+    "sample",
+    "na[mmol/L]",
+    "k[mmol/L]",
+    "cl[mmol/L]",
+    "albumin[g/L]",
+    "lactate[mmol/L]",
+    "glucose[mmol/L]",
+    "spo2",
+    "age",
+    "hypercapnia_risk",
+]
+
+
+def _gas(rng: random.Random) -> tuple[float, float, float]:
+    """(pH, PCO2 kPa, HCO3) of one invented scenario."""
+    kind = rng.random()
+    if kind < 0.25:  # COPD, chronic or acute-on-chronic hypercapnia
+        pco2 = rng.uniform(6.5, 11.0)
+        hco3 = rng.uniform(27, 38)
+    elif kind < 0.45:  # metabolic acidosis, more or less compensated
+        hco3 = rng.uniform(6, 21)
+        pco2 = (1.5 * hco3 + 8 + rng.uniform(-5, 5)) / 7.50062
+    elif kind < 0.55:  # metabolic alkalosis
+        hco3 = rng.uniform(27, 45)
+        pco2 = (40 + 0.7 * (hco3 - 24) + rng.uniform(-6, 6)) / 7.50062
+    elif kind < 0.65:  # hyperventilation
+        pco2 = rng.uniform(2.5, 4.6)
+        hco3 = rng.uniform(16, 24)
+    else:  # normal or nearly so
+        pco2 = rng.uniform(4.4, 6.2)
+        hco3 = rng.uniform(21, 28)
+    ph = 6.1 + __import__("math").log10(hco3 / (0.0307 * pco2 * 7.50062))
+    return ph, pco2, hco3
+
+
+def make_csv(rows: int, seed: int = 7) -> str:
+    rng = random.Random(seed)
+    out = io.StringIO()
+    writer = csv.writer(out)
+    writer.writerow(COLUMNS)
+    for n in range(rows):
+        ph, pco2, hco3 = _gas(rng)
+        ph = min(max(ph, 6.8), 7.75)
+        fio2 = rng.choice(["0.21", "0.21", "0.24", "0.28", "28%", "0.35", "0.4", "0.6"])
+        site = rng.choice(["arterial"] * 8 + ["venous", "capillary"])
+        po2 = f"{rng.uniform(5.5, 13.5):.1f}" if site != "venous" or rng.random() < 0.3 else ""
+        pco2_cell = f"{pco2:.2f}"
+        if rng.random() < 0.03:  # now and then a cell in another unit
+            pco2_cell = f"{pco2 * 7.50062:.0f} mmHg"
+        if rng.random() < 0.01:  # a unit mix-up: kPa value in the mmHg sense
+            pco2_cell = f"{pco2:.1f} mmHg"
+        ph_cell = f"{ph:.2f}" if rng.random() > 0.01 else f"{ph * 100:.0f}"  # a missing decimal point
+        chem = rng.random() < 0.6
+        writer.writerow(
+            [
+                f"G{n:06d}",
+                ph_cell,
+                pco2_cell,
+                po2,
+                f"{hco3 * rng.uniform(0.98, 1.02):.1f}",
+                "" if rng.random() < 0.5 else f"{hco3 - 24.8 + 16.2 * (ph - 7.4):.1f}",
+                fio2,
+                site,
+                f"{rng.uniform(128, 148):.0f}" if chem else "",
+                f"{rng.uniform(3.0, 6.0):.1f}" if chem else "",
+                f"{rng.uniform(90, 112):.0f}" if chem else "",
+                f"{rng.uniform(20, 45):.0f}" if chem and rng.random() < 0.5 else "",
+                f"{rng.uniform(0.6, 9):.1f}" if rng.random() < 0.5 else "",
+                f"{rng.uniform(4, 20):.1f}" if rng.random() < 0.4 else "",
+                f"{rng.uniform(80, 100):.0f}" if rng.random() < 0.4 else "",
+                f"{rng.uniform(18, 95):.0f}",
+                rng.choice(["yes", "no", ""]),
+            ]
+        )
+    return out.getvalue()
+
+
+def time_scalar(table, indices) -> float:
+    """Seconds per row of the scalar bridge on the rows ``indices`` (inputs prepared beforehand)."""
+    requests = [{"calc": "blood_gas", "inputs": batch.row_inputs(table, i)} for i in indices]
+    start = time.perf_counter()
+    for request in requests:
+        bridge.handle_obj(request)
+    return (time.perf_counter() - start) / len(requests)
+
+
+def time_batch(text: str, repeat: int) -> dict:
+    runs = []
+    for _ in range(repeat):
+        t0 = time.perf_counter()
+        table = batch.read_table(text)
+        t1 = time.perf_counter()
+        audit = batch.interpret_table(table)
+        t2 = time.perf_counter()
+        out = io.StringIO()
+        batch.write_csv(table, audit, out)
+        counts = batch.summary(audit)
+        t3 = time.perf_counter()
+        runs.append({"read": t1 - t0, "interpret": t2 - t1, "write_and_summary": t3 - t2, "total": t3 - t0})
+    best = min(runs, key=lambda r: r["total"])
+    return {"best": best, "runs": runs, "scalar_rows": audit.scalar_rows, "counts": counts, "table": table}
+
+
+def time_file_to_file(text: str, repeat: int) -> list[float]:
+    times = []
+    with tempfile.TemporaryDirectory() as tmp:
+        source, target = Path(tmp) / "in.csv", Path(tmp) / "out.csv"
+        source.write_text(text, encoding="utf-8")
+        for _ in range(repeat):
+            start = time.perf_counter()
+            batch.run(str(source), str(target), progress=False, stdout=io.StringIO(), stderr=io.StringIO())
+            times.append(time.perf_counter() - start)
+    return times
+
+
+SURENESS_SAMPLES = {
+    "COPD exacerbation (pH, PCO2, HCO3)": {"ph": 7.24, "pco2": {"value": 9.3, "unit": "kPa"}, "hco3": 29.7},
+    "with PO2, FiO2, age": {
+        "ph": 7.24,
+        "pco2": {"value": 9.3, "unit": "kPa"},
+        "hco3": 29.7,
+        "po2": {"value": 7.1, "unit": "kPa"},
+        "fio2": 0.28,
+        "age": 71,
+    },
+    "full chemistry": {
+        "ph": 7.21,
+        "pco2": {"value": 3.1, "unit": "kPa"},
+        "hco3": 9.0,
+        "po2": {"value": 12.5, "unit": "kPa"},
+        "na": 136,
+        "k": 5.1,
+        "cl": 101,
+        "albumin": {"value": 30, "unit": "g/L"},
+        "lactate": {"value": 6.2, "unit": "mmol/L"},
+        "glucose": {"value": 14, "unit": "mmol/L"},
+        "urea": {"value": 9, "unit": "mmol/L"},
+        "measured_osmolality": 310,
+        "spo2": 96,
+        "age": 54,
+    },
+}
+
+
+def _as_request(sample: dict) -> dict:
+    units_ = {
+        "hco3": "mmol/L",
+        "na": "mmol/L",
+        "k": "mmol/L",
+        "cl": "mmol/L",
+        "measured_osmolality": "mOsm/kg",
+    }
+    return {k: ({"value": v, "unit": units_[k]} if k in units_ else v) for k, v in sample.items()}
+
+
+def time_sureness(repeat: int) -> dict:
+    out = {}
+    for name, sample in SURENESS_SAMPLES.items():
+        request = {"calc": "uncertainty", "inputs": {"sample": _as_request(sample), "draws": 10_000}}
+        response = bridge.handle_obj(request)  # warm: imports numpy and the module once
+        assert response["ok"], response
+        times = []
+        for _ in range(repeat):
+            start = time.perf_counter()
+            bridge.handle_obj(request)
+            times.append(time.perf_counter() - start)
+        out[name] = {"best_s": min(times), "median_s": statistics.median(times), "runs": times}
+    return out
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser(
+        description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter
+    )
+    parser.add_argument("--rows", type=int, default=100_000)
+    parser.add_argument("--scalar-sample", type=int, default=5_000)
+    parser.add_argument("--full-scalar", action="store_true", help="loop the scalar bridge over every row")
+    parser.add_argument("--repeat", type=int, default=3)
+    parser.add_argument("--json", metavar="FILE")
+    args = parser.parse_args()
+
+    load_before = os.getloadavg()
+    text = make_csv(args.rows)
+    table = batch.read_table(text)
+    rng = random.Random(1)
+    if args.full_scalar:
+        indices_a, indices_b = list(range(len(table))), []
+    else:
+        indices_a = rng.sample(range(len(table)), min(args.scalar_sample, len(table)))
+        indices_b = rng.sample(range(len(table)), min(args.scalar_sample, len(table)))
+    scalar_a = time_scalar(table, indices_a)
+    result = time_batch(text, args.repeat)
+    files = time_file_to_file(text, args.repeat)
+    scalar_b = time_scalar(table, indices_b) if indices_b else scalar_a
+    per_row = (scalar_a + scalar_b) / 2
+    scalar_total = per_row * args.rows
+    best = result["best"]
+    sure = time_sureness(max(args.repeat, 5))
+    load_after = os.getloadavg()
+
+    report = {
+        "engine": __version__,
+        "python": platform.python_version(),
+        "numpy": __import__("numpy").__version__,
+        "cpus": os.cpu_count(),
+        "load_average_1min": [round(load_before[0], 2), round(load_after[0], 2)],
+        "rows": args.rows,
+        "csv_bytes": len(text.encode()),
+        "rows_read_by_the_scalar_reader": result["scalar_rows"],
+        "rows_with_errors": result["counts"]["with_errors"],
+        "batch_best_s": {k: round(v, 3) for k, v in best.items()},
+        "batch_totals_s": [round(r["total"], 3) for r in result["runs"]],
+        "file_to_file_s": [round(t, 3) for t in files],
+        "scalar_per_row_ms": [round(scalar_a * 1e3, 4), round(scalar_b * 1e3, 4)],
+        "scalar_rows_timed": len(indices_a) + len(indices_b),
+        "scalar_total_s": round(scalar_total, 1),
+        "scalar_total_is": "measured" if args.full_scalar else "extrapolated from the rows timed",
+        "ratio_interpret_only": round(scalar_total / best["interpret"], 1),
+        "ratio_csv_in_to_csv_out": round(scalar_total / best["total"], 1),
+        "ratio_file_to_file": round(scalar_total / min(files), 1),
+        "uncertainty_10000_draws": {
+            k: {kk: round(vv, 4) for kk, vv in v.items() if kk != "runs"} for k, v in sure.items()
+        },
+    }
+    print(
+        f"Tidewell {__version__}, Python {report['python']}, numpy {report['numpy']}, {report['cpus']} CPUs"
+    )
+    print(f"load average (1 min) before/after: {report['load_average_1min']}")
+    errors = result["counts"]["with_errors"]
+    print(f"{args.rows:,} rows, {report['csv_bytes'] / 1e6:.1f} MB of CSV; {errors} rows with errors;")
+    print(f"  {result['scalar_rows']} rows read by the scalar reader (the rest on arrays)")
+    print(
+        f"batch (best of {args.repeat}): read {best['read']:.2f} s, interpret {best['interpret']:.2f} s, "
+        f"write + summary {best['write_and_summary']:.2f} s, total {best['total']:.2f} s"
+    )
+    print(f"file to file (tidewell.batch.run): {', '.join(f'{t:.2f}' for t in files)} s")
+    print(
+        f"scalar bridge: {per_row * 1e3:.3f} ms per row ({report['scalar_total_is']}: "
+        f"{report['scalar_rows_timed']:,} rows timed) -> {scalar_total:.0f} s for {args.rows:,} rows"
+    )
+    print(
+        f"ratio: {report['ratio_interpret_only']}x interpreting, "
+        f"{report['ratio_csv_in_to_csv_out']}x CSV text in to CSV text out, "
+        f"{report['ratio_file_to_file']}x file to file"
+    )
+    for name, t in sure.items():
+        best_ms, median_ms = t["best_s"] * 1e3, t["median_s"] * 1e3
+        print(f"uncertainty, 10,000 draws, {name}: best {best_ms:.0f} ms, median {median_ms:.0f} ms")
+    if args.json:
+        Path(args.json).write_text(json.dumps(report, indent=2) + "\n", encoding="utf-8")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,5 @@
+"""``python -m tidewell``: the command line (see :mod:`tidewell.cli`)."""
+
+from .cli import main
+
+raise SystemExit(main())

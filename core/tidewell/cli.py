@@ -1,0 +1,694 @@
+"""The command line: ``tidewell`` (or ``python -m tidewell``).
+
+==================  ================================================================================
+``main``            the entry point: one sample from flags, ``calc``, ``batch``, ``how-sure``
+``sample_inputs``   the blood_gas inputs of the flags given (``--pco2 9.3kPa`` -> a quantity)
+``typed_value``     one typed value of a blood_gas input: "9.3kPa", "28%", "yes" -> request form
+``parse_assignment`` ``key=value`` of ``tidewell calc`` -> (nested key path, request value)
+``render``          a bridge response as readable text: summary, findings by severity, key numbers,
+                    cautions
+==================  ================================================================================
+
+Everything goes through the bridge (``tidewell.bridge.handle_obj``), exactly as the web shell does; the
+command line only turns typed text into a request and a response into text. Exit codes: 0 answered, 2 bad
+input (each problem on stderr with its field and hint), 1 an internal fault. The single-sample path needs no
+numpy; ``batch`` and the "how sure" line do (``pip install tidewell[arrays]``).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import os
+import re
+import shutil
+import sys
+import textwrap
+
+from . import __version__, units
+from .bridge import available, handle_obj
+
+# -- typed values (shared with the batch reader) -------------------------------------------------------------
+
+#: cell or flag texts that mean "not given"
+EMPTY = frozenset({"", "na", "n/a", "null", "none", "nan", "-"})
+TRUE, FALSE = frozenset({"true", "yes", "y", "1"}), frozenset({"false", "no", "n", "0"})
+_NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*([A-Za-z%°µμ].*?)?\s*$")
+_UNIT_FOLD = {u.casefold(): u for u in units.ALL_UNITS}
+_UNIT_FOLD.update({"°c": "degC", "c": "degC", "°f": "degF", "f": "degF"})
+ABSENT, NUMBER, BAD = 0, 1, 2
+
+
+def canonical_unit(text: str | None) -> str | None:
+    """A unit as Tidewell spells it, matched ignoring case ("kpa" -> "kPa", "°C" -> "degC"); unknown text is
+    returned unchanged (the bridge then names the accepted units).
+
+    >>> canonical_unit("kpa"), canonical_unit("MMOL/L"), canonical_unit(" C "), canonical_unit("stone")
+    ('kPa', 'mmol/L', 'degC', 'stone')
+    """
+    if text is None:
+        return None
+    stripped = text.strip()
+    if not stripped:
+        return None
+    return _UNIT_FOLD.get(stripped.casefold(), stripped)
+
+
+def split_cell(text: str | None) -> tuple[int, float | None, str | None]:
+    """(state, number, unit) of a typed value: ABSENT, NUMBER (with its unit or None) or BAD.
+
+    >>> split_cell("9.3kPa"), split_cell(" 7.24 "), split_cell("NA"), split_cell("7,4")
+    ((1, 9.3, 'kPa'), (1, 7.24, None), (0, None, None), (2, None, None))
+    """
+    if text is None or text.strip().casefold() in EMPTY:
+        return ABSENT, None, None
+    try:
+        number = float(text)
+    except ValueError:
+        m = _NUMBER_UNIT.match(text)
+        if not m:
+            return BAD, None, None
+        number, unit = float(m.group(1)), canonical_unit(m.group(2))
+    else:
+        unit = None
+    if not math.isfinite(number):
+        return BAD, None, None
+    return NUMBER, number, unit
+
+
+_KINDS: dict[str, str] = {}
+
+
+def _kinds() -> dict[str, str]:
+    """input key -> how the blood_gas reader reads it (interpret.FIELDS), looked up once."""
+    if not _KINDS:
+        from .interpret import FIELDS
+
+        _KINDS.update({f.key: f.kind for f in FIELDS})
+    return _KINDS
+
+
+def typed_value(key: str, text: str, default_unit: str | None = None):
+    """One blood_gas input typed as text, in the form a request carries it (None when not given).
+
+    Dimensioned inputs become ``{"value", "unit"}`` (the unit typed, else ``default_unit``, else none: the
+    bridge then says which units it accepts); pH, age and the other bare numbers stay numbers; ``28%``
+    becomes ``{"value": 28, "unit": "%"}``; flags read true/false, yes/no, y/n, 1/0; words are lower-cased.
+    Text that is not a number is passed on as text, so the bridge names the problem.
+
+    >>> typed_value("pco2", "9.3kPa"), typed_value("pco2", "70", "mmHg"), typed_value("fio2", "28%")
+    ({'value': 9.3, 'unit': 'kPa'}, {'value': 70.0, 'unit': 'mmHg'}, {'value': 28.0, 'unit': '%'})
+    >>> typed_value("ph", "7.24"), typed_value("hypercapnia_risk", "yes"), typed_value("sample", "Venous")
+    (7.24, True, 'venous')
+    """
+    kind = _kinds().get(key, "quantity")
+    if text is None or text.strip().casefold() in EMPTY:
+        return None
+    if kind == "choice":
+        return text.strip().casefold()
+    if kind == "flag":
+        folded = text.strip().casefold()
+        return True if folded in TRUE else False if folded in FALSE else text.strip()
+    state, number, unit = split_cell(text)
+    unit = unit if unit is not None else default_unit
+    value = number if state == NUMBER else text.strip()
+    if kind in ("quantity", "concentration"):
+        return {"value": value, "unit": unit}
+    if unit is not None and state == NUMBER:
+        return {"value": value, "unit": unit}
+    return value
+
+
+def parse_assignment(text: str) -> tuple[list[str], object]:
+    """``key=value`` of ``tidewell calc``: the key (dots make nested objects) and the value as a request
+    carries it: a number, a quantity ("8000ft", "9.3 kPa"), a percentage ("28%"), true/false, JSON ("{...}",
+    "[...]") or a word.
+
+    >>> parse_assignment("altitude=8000ft"), parse_assignment("fio2=0.21"), parse_assignment("to=mmol/L")
+    ((['altitude'], {'value': 8000.0, 'unit': 'ft'}), (['fio2'], 0.21), (['to'], 'mmol/L'))
+    >>> parse_assignment("errors.pco2.cv=3%")
+    (['errors', 'pco2', 'cv'], {'value': 3.0, 'unit': '%'})
+    """
+    key, sep, raw = text.partition("=")
+    if not sep or not key.strip():
+        raise ValueError(f"'{text}' is not key=value (for example altitude=8000ft)")
+    path = [part.strip() for part in key.split(".")]
+    value = raw.strip()
+    if value[:1] in ("{", "["):
+        try:
+            return path, json.loads(value)
+        except ValueError as exc:
+            raise ValueError(f"{key}: the value is not valid JSON ({exc})") from None
+    folded = value.casefold()
+    if folded in ("true", "false"):
+        return path, folded == "true"
+    if folded in ("null", "none", ""):
+        return path, None
+    state, number, unit = split_cell(value)
+    if state == NUMBER:
+        return path, number if unit is None else {"value": number, "unit": unit}
+    return path, value
+
+
+# -- the blood-gas flags -------------------------------------------------------------------------------------
+
+#: (flag, input key, metavar, help) by group; every blood_gas input has one
+SAMPLE_FLAGS = {
+    "Blood gas": (
+        ("--ph", "ph", "NUMBER", "pH at 37 degC, e.g. 7.24 (required)"),
+        ("--pco2", "pco2", "VALUE", "PCO2 with its unit, e.g. 9.3kPa or 70mmHg (required)"),
+        ("--hco3", "hco3", "VALUE", "bicarbonate as reported, e.g. 29.7 (mmol/L)"),
+        ("--po2", "po2", "VALUE", "PO2 with its unit, e.g. 7.1kPa or 53mmHg"),
+        ("--fio2", "fio2", "FRACTION", "inspired oxygen, 0.28 or 28%% (default 0.21, air)"),
+        ("--sample", "sample", "SITE", "arterial (default), venous or capillary"),
+        ("--base-excess", "base_excess", "VALUE", "base excess as reported (mmol/L)"),
+    ),
+    "Chemistry (Na, K, Cl need no unit: mmol/L; give the others with theirs, e.g. 7.2mmol/L, 130mg/dL)": (
+        ("--na", "na", "VALUE", "sodium"),
+        ("--k", "k", "VALUE", "potassium"),
+        ("--cl", "cl", "VALUE", "chloride"),
+        ("--albumin", "albumin", "VALUE", "albumin with its unit, e.g. 32g/L or 3.2g/dL"),
+        ("--lactate", "lactate", "VALUE", "lactate"),
+        ("--glucose", "glucose", "VALUE", "glucose"),
+        ("--urea", "urea", "VALUE", "urea"),
+        ("--bun", "bun", "VALUE", "blood urea nitrogen, e.g. 28mg/dL (instead of urea)"),
+        ("--phosphate", "phosphate", "VALUE", "phosphate"),
+        ("--osmolality", "measured_osmolality", "VALUE", "measured osmolality (mOsm/kg)"),
+        ("--ca-ionised", "ca_ionised", "VALUE", "ionised calcium"),
+        ("--mg", "mg", "VALUE", "magnesium"),
+    ),
+    "Patient and oxygen": (
+        ("--hb", "hb", "VALUE", "haemoglobin with its unit, e.g. 13g/dL or 130g/L"),
+        ("--spo2", "spo2", "PERCENT", "pulse oximetry saturation, e.g. 91"),
+        ("--age", "age", "YEARS", "age in years (for the A-a gradient limit)"),
+        ("--temperature", "temperature", "VALUE", "patient's temperature, e.g. 34degC or 93degF"),
+        ("--altitude", "altitude", "VALUE", "altitude of the patient, e.g. 1500m or 8000ft"),
+        ("--pb", "pb", "VALUE", "barometric pressure if measured, e.g. 1013hPa"),
+        ("--baseline-pco2", "baseline_pco2", "VALUE", "the patient's usual PaCO2 when known, e.g. 6.8kPa"),
+        (
+            "--hypercapnia-risk",
+            "hypercapnia_risk",
+            None,
+            "the patient is at risk of hypercapnic respiratory failure (e.g. COPD)",
+        ),
+    ),
+    "Settings": (
+        ("--normal-albumin", "normal_albumin", "VALUE", "local normal albumin (default 4.0 g/dL)"),
+        ("--rq", "rq", "NUMBER", "respiratory quotient (default 0.8)"),
+    ),
+}
+#: inputs whose accepted units all give the same number (mmol/L = mEq/L for a monovalent ion; osmolality has
+#: one unit), so a bare number is read in that unit without any guess. Everything else needs its unit:
+#: glucose, lactate, urea, phosphate, calcium and magnesium differ between mmol/L, mEq/L and mg/dL.
+IMPLIED_UNITS = {
+    "hco3": "mmol/L",
+    "base_excess": "mmol/L",
+    "na": "mmol/L",
+    "k": "mmol/L",
+    "cl": "mmol/L",
+    "measured_osmolality": "mOsm/kg",
+}
+FLAG_OF = {key: flag for group in SAMPLE_FLAGS.values() for flag, key, _, _ in group}
+
+DESCRIPTION = """\
+Tidewell interprets a blood gas from the command line: acid-base disorders and their compensation,
+chronicity of hypercapnia, gaps, oxygenation, safe PaCO2 and SpO2 targets, with every number sourced.
+Give each value with its unit; a pressure without a unit is refused, never guessed.
+
+Decision support only: it applies published adult rules to the numbers entered. It does not replace
+clinical assessment, senior advice or local protocols."""
+
+EXAMPLES = """\
+examples:
+  tidewell --ph 7.24 --pco2 9.3kPa --hco3 29.7 --po2 7.1kPa --fio2 28% --age 71
+  tidewell --ph 7.31 --pco2 68mmHg --hco3 33 --baseline-pco2 55mmHg --hypercapnia-risk --json
+  tidewell calc altitude altitude=8000ft fio2=0.21 pco2=5.1kPa po2=9.8kPa
+  tidewell calc convert quantity=180mg/dL to=mmol/L substance=glucose
+  tidewell how-sure --ph 7.34 --pco2 6.6kPa --hco3 26 --error ph=0.02
+  tidewell batch gases.csv -o gases-read.csv
+
+commands:
+  (none)     one blood gas from the flags below
+  calc       any calculation by name with key=value inputs (tidewell calc --help)
+  how-sure   how often the reading survives the analyser's measurement error (tidewell how-sure --help)
+  batch      a CSV file, one sample per row (tidewell batch --help)
+
+exit status: 0 answered, 2 bad input (each problem printed with its field), 1 internal fault."""
+
+
+def _add_sample_flags(parser: argparse.ArgumentParser) -> None:
+    for title, flags in SAMPLE_FLAGS.items():
+        group = parser.add_argument_group(title)
+        for flag, key, metavar, text in flags:
+            if metavar is None:
+                group.add_argument(flag, dest=key, action="store_const", const="true", help=text)
+            else:
+                group.add_argument(flag, dest=key, metavar=metavar, help=text)
+
+
+def _add_output_flags(parser: argparse.ArgumentParser, *, how_sure: bool = False) -> None:
+    out = parser.add_argument_group("Output")
+    if how_sure:
+        out.add_argument(
+            "--no-how-sure", action="store_true", help="skip the 'how sure' line (10,000 draws, needs numpy)"
+        )
+    out.add_argument("--json", action="store_true", help="print the bridge response as JSON instead of text")
+    units_ = out.add_mutually_exclusive_group()
+    units_.add_argument(
+        "--kpa", dest="pressure_unit", action="store_const", const="kPa", help="pressures in kPa"
+    )
+    units_.add_argument(
+        "--mmhg", dest="pressure_unit", action="store_const", const="mmHg", help="pressures in mmHg"
+    )
+
+
+def sample_inputs(args: argparse.Namespace) -> dict:
+    """The blood_gas inputs of the sample flags that were given."""
+    inputs = {}
+    for key in FLAG_OF:
+        text = getattr(args, key, None)
+        if text is None:
+            continue
+        value = typed_value(key, text, IMPLIED_UNITS.get(key))
+        if value is not None:
+            inputs[key] = value
+    return inputs
+
+
+def _pressure_unit(args, inputs: dict) -> str:
+    """Pressures are shown in the unit asked for, else in the unit the PCO2 was typed in (else mmHg)."""
+    if getattr(args, "pressure_unit", None):
+        return args.pressure_unit
+    pco2 = inputs.get("pco2")
+    if isinstance(pco2, dict) and pco2.get("unit") == "kPa":
+        return "kPa"
+    return "mmHg"
+
+
+# -- text output ---------------------------------------------------------------------------------------------
+
+#: the blood_gas outputs shown as key numbers, with their labels
+_KEY_NUMBERS = {
+    "ph_status": "pH status",
+    "disorders": "Disorders",
+    "consistency": "pH/PCO2/HCO3",
+    "hco3": "HCO3",
+    "hco3_computed": "HCO3 from pH and PCO2",
+    "standard_base_excess": "Standard base excess",
+    "expected_pco2": "Expected PaCO2",
+    "expected_hco3": "Expected HCO3",
+    "anion_gap": "Anion gap",
+    "anion_gap_corrected": "Anion gap, albumin-corrected",
+    "delta_ratio": "Delta ratio",
+    "metabolic_acidosis_type": "Metabolic acidosis",
+    "osmolar_gap": "Osmolar gap",
+    "strong_ion_gap": "Strong ion gap",
+    "pao2_alveolar": "Alveolar PO2",
+    "a_a_gradient": "A-a gradient",
+    "a_a_expected_upper": "A-a upper limit for age",
+    "pf_ratio": "P/F ratio",
+    "respiratory_failure": "Respiratory failure",
+    "spo2_target": "SpO2 target (%)",
+    "niv_criteria": "NIV criteria (BTS/ICS 2016)",
+    "pco2_target": "PaCO2 target",
+    "baseline_pco2_source": "Usual PaCO2",
+    "pco2_alkalaemia_floor": "PaCO2 alkalaemia floor",
+    "pco2_consciousness_threshold": "PaCO2 consciousness threshold",
+}
+
+
+def _width() -> int:
+    return max(60, min(shutil.get_terminal_size((100, 24)).columns, 110))
+
+
+def _number(x, decimals: int | None) -> str:
+    if isinstance(x, bool):
+        return "yes" if x else "no"
+    if isinstance(x, int):
+        return str(x)
+    if decimals is None:
+        return f"{x:.4g}"
+    return f"{x:.{decimals}f}"
+
+
+def format_value(value, decimals: int | None = None) -> str:
+    """An output value as text: numbers, quantities, ranges, lists, nested objects.
+
+    >>> format_value({"value": 29.74, "unit": "mmol/L"}, 1), format_value({"low": 88, "high": 92}, 0)
+    ('29.7 mmol/L', '88 to 92')
+    """
+    if isinstance(value, dict):
+        if set(value) == {"value", "unit"}:
+            v = value["value"]
+            if isinstance(v, list):
+                return _list_text(v, decimals) + f" {value['unit']}"
+            return f"{_number(v, decimals)} {value['unit']}"
+        if set(value) >= {"low", "high"} and len(value) <= 3:
+            lo, hi = value["low"], value["high"]
+            if (
+                isinstance(lo, dict)
+                and isinstance(hi, dict)
+                and "value" in lo
+                and lo.get("unit") == hi.get("unit")
+            ):
+                return f"{_number(lo['value'], decimals)} to {_number(hi['value'], decimals)} {lo['unit']}"
+            return f"{format_value(lo, decimals)} to {format_value(hi, decimals)}"
+        return "; ".join(f"{k.replace('_', ' ')} {format_value(v, decimals)}" for k, v in value.items())
+    if isinstance(value, list):
+        if value and all(isinstance(x, dict) and "code" in x for x in value):
+            return ", ".join(_disorder_text(x) for x in value)
+        return _list_text(value, decimals)
+    if isinstance(value, str):
+        return value.replace("_", " ")
+    if value is None:
+        return "-"
+    return _number(value, decimals)
+
+
+def _list_text(values: list, decimals) -> str:
+    if len(values) <= 6:
+        return ", ".join(format_value(x, decimals) for x in values)
+    return (
+        f"{len(values)} values, {format_value(values[0], decimals)} to {format_value(values[-1], decimals)}"
+    )
+
+
+def _disorder_text(d: dict) -> str:
+    text = d["code"].replace("_", " ")
+    if d.get("chronicity"):
+        text = d["chronicity"].replace("_", "-") + " " + text
+        if d.get("fraction_acute") is not None:
+            text += f" (fraction acute {d['fraction_acute']:.2f})"
+    return text + (" [primary]" if d.get("role") == "primary" else "")
+
+
+def render(response: dict, *, width: int | None = None, how_sure: str | None = None) -> str:
+    """A success response as text: summary, findings by severity, key numbers, cautions."""
+    width = width or _width()
+    wrap = textwrap.TextWrapper(width=width, initial_indent="  ", subsequent_indent="    ")
+    lines = [f"Tidewell {response.get('engine', __version__)}: {response['calc'].replace('_', ' ')}", ""]
+    if response.get("summary"):
+        lines.append("Summary")
+        for sentence in response["summary"]:
+            lines.extend(wrap.wrap(sentence))
+        lines.append("")
+    if how_sure:
+        lines.append("How sure")
+        lines.extend(wrap.wrap(how_sure))
+        lines.append("")
+    if response.get("findings"):
+        lines.append("Findings (most urgent first)")
+        for severity in ("urgent", "notable", "info"):
+            for f in response["findings"]:
+                if f["severity"] == severity:
+                    lines.extend(
+                        textwrap.wrap(
+                            f"{f['text']} [{f['code']}]",
+                            width=width,
+                            initial_indent=f"  {severity.upper():<9}",
+                            subsequent_indent=" " * 11,
+                        )
+                    )
+        lines.append("")
+    outputs, display = response.get("outputs", {}), response.get("display", {})
+    names = [n for n in _KEY_NUMBERS if n in outputs] if response["calc"] == "blood_gas" else list(outputs)
+    if names:
+        lines.append("Key numbers" if response["calc"] == "blood_gas" else "Results")
+        labels = {n: _KEY_NUMBERS.get(n, n.replace("_", " ")) for n in names}
+        label_width = min(max(len(v) for v in labels.values()) + 2, 34)
+        for name in names:
+            text = format_value(outputs[name], display.get(name))
+            label = labels[name]
+            first, *rest = textwrap.wrap(text, width=max(20, width - label_width - 4)) or [""]
+            lines.append(f"  {label:<{label_width}}{first}")
+            lines.extend(" " * (label_width + 2) + r for r in rest)
+        if response["calc"] == "blood_gas":
+            lines.append(f"  ({len(outputs)} outputs in all, each with its source: --json shows every step)")
+        lines.append("")
+    if response.get("cautions"):
+        lines.append("Cautions")
+        for text in response["cautions"]:
+            lines.extend(textwrap.wrap(text, width=width, initial_indent="  - ", subsequent_indent="    "))
+    return "\n".join(lines).rstrip() + "\n"
+
+
+def _errors_text(response: dict, *, flags: bool) -> str:
+    out = []
+    for e in response.get("errors", []):
+        field = e.get("field", "")
+        message = e.get("message", "")
+        key = field.removeprefix("inputs.")
+        if flags and key in FLAG_OF:
+            message = f"{FLAG_OF[key]}: " + message.removeprefix(field + ": ")
+        out.append(f"tidewell: {message} [{e.get('code')}]")
+    return "\n".join(out) + "\n"
+
+
+def _finish(response: dict, args, *, flags: bool, how_sure: str | None = None) -> int:
+    if not response.get("ok"):
+        sys.stderr.write(_errors_text(response, flags=flags))
+        internal = any(e.get("code") == "internal_error" for e in response.get("errors", []))
+        return 1 if internal else 2
+    if getattr(args, "json", False):
+        sys.stdout.write(json.dumps(response, indent=2, ensure_ascii=False) + "\n")
+    else:
+        sys.stdout.write(render(response, how_sure=how_sure))
+    return 0
+
+
+# -- the commands --------------------------------------------------------------------------------------------
+
+
+def _sample_parser(
+    prog: str, description: str, epilog: str, *, how_sure: bool = False
+) -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog=prog,
+        description=description,
+        epilog=epilog,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        allow_abbrev=False,
+    )
+    parser.add_argument("--version", action="version", version=f"tidewell {__version__}")
+    _add_sample_flags(parser)
+    _add_output_flags(parser, how_sure=how_sure)
+    return parser
+
+
+def _how_sure_line(inputs: dict, pressure_unit: str) -> str | None:
+    """The one-line "how sure" of the uncertainty calculation (None without numpy, or on bad input)."""
+    try:
+        import numpy  # noqa: F401
+    except ModuleNotFoundError:
+        return "How sure: not computed (numpy is not installed: pip install tidewell[arrays])."
+    response = handle_obj(
+        {"calc": "uncertainty", "inputs": {"sample": inputs}, "options": {"pressure_unit": pressure_unit}}
+    )
+    return response["outputs"].get("how_sure") if response.get("ok") else None
+
+
+def run_sample(argv: list[str]) -> int:
+    parser = _sample_parser("tidewell", DESCRIPTION, EXAMPLES, how_sure=True)
+    args = parser.parse_args(argv)
+    inputs = sample_inputs(args)
+    if not inputs:
+        parser.print_help()
+        return 2
+    unit = _pressure_unit(args, inputs)
+    response = handle_obj({"calc": "blood_gas", "inputs": inputs, "options": {"pressure_unit": unit}})
+    how = None
+    if response.get("ok") and not args.json and not args.no_how_sure:
+        how = _how_sure_line(inputs, unit)
+    return _finish(response, args, flags=True, how_sure=how)
+
+
+def run_how_sure(argv: list[str]) -> int:
+    parser = _sample_parser(
+        "tidewell how-sure",
+        "How sure is the reading? Each measured value is drawn 10,000 times within the analyser's usual\n"
+        "measurement error (defaults: typical analyser imprecision; set your own with --error), every draw\n"
+        "is interpreted with the same rules, and the share of draws giving each disorder, chronicity and\n"
+        "finding is reported, with 95 % intervals of the derived numbers. Measurement error only: sampling\n"
+        "errors (air, delay, venous admixture) are not covered.",
+        "examples:\n"
+        "  tidewell how-sure --ph 7.34 --pco2 6.6kPa --hco3 26\n"
+        "  tidewell how-sure --ph 7.34 --pco2 6.6kPa --error ph=0.02 --error pco2=cv:5% --draws 20000\n\n"
+        "--error KEY=ERROR: sd:VALUE or cv:PERCENT; without a prefix a value ending in % is a CV and any\n"
+        "other value an SD in the input's unit (0.02 for pH, 0.3kPa for PCO2). For SpO2 write sd:2.",
+    )
+    draws = parser.add_argument_group("Draws")
+    draws.add_argument(
+        "--draws", type=int, default=None, metavar="N", help="number of draws (default 10,000)"
+    )
+    draws.add_argument(
+        "--seed", type=int, default=None, metavar="N", help="seed of the draws (same seed, same answer)"
+    )
+    draws.add_argument(
+        "--error", action="append", default=[], metavar="KEY=ERROR", help="measurement error of one input"
+    )
+    args = parser.parse_args(argv)
+    inputs = sample_inputs(args)
+    request_inputs: dict = {"sample": inputs}
+    errors: dict = {}
+    for item in args.error:
+        key, sep, text = item.partition("=")
+        key = key.strip().replace("-", "_")
+        if not sep:
+            parser.error(f"--error {item}: write KEY=ERROR, for example ph=0.02 or pco2=cv:5%")
+        kind, colon, rest = text.partition(":")
+        if colon and kind.strip().casefold() in ("sd", "cv"):
+            kind, text = kind.strip().casefold(), rest
+        else:
+            kind = "cv" if text.strip().endswith("%") else "sd"
+        state, number, unit = split_cell(text)
+        if state != NUMBER:
+            parser.error(f"--error {item}: '{text}' is not a number")
+        if kind == "cv":
+            errors[key] = {"cv": {"value": number, "unit": "%"} if unit == "%" else number}
+        else:
+            default = IMPLIED_UNITS.get(key)
+            unit = unit if unit is not None else default
+            errors[key] = {"sd": number if unit is None else {"value": number, "unit": unit}}
+    if errors:
+        request_inputs["errors"] = errors
+    if args.draws is not None:
+        request_inputs["draws"] = args.draws
+    if args.seed is not None:
+        request_inputs["seed"] = args.seed
+    unit = _pressure_unit(args, inputs)
+    response = handle_obj(
+        {"calc": "uncertainty", "inputs": request_inputs, "options": {"pressure_unit": unit}}
+    )
+    if not response.get("ok"):
+        for e in response.get("errors", []):
+            key = e["field"].removeprefix("inputs.sample.")
+            if key in FLAG_OF:
+                e["message"] = f"{FLAG_OF[key]}: " + e["message"].removeprefix(e["field"] + ": ")
+    return _finish(response, args, flags=False)
+
+
+def run_calc(argv: list[str]) -> int:
+    parser = argparse.ArgumentParser(
+        prog="tidewell calc",
+        description="Run any calculation of the bridge contract by name with key=value inputs. Values with\n"
+        "units are written together (8000ft, 9.3kPa, 180mg/dL), percentages with % (28%), flags as\n"
+        "true/false, objects as JSON or with dotted keys (sample.ph=7.3). docs/bridge.md lists the inputs.",
+        epilog="examples:\n"
+        "  tidewell calc altitude altitude=8000ft fio2=0.21\n"
+        "  tidewell calc alveolar_gas fio2=0.4 pco2=6.2kPa po2=11kPa age=60\n"
+        "  tidewell calc oxygen_supply cylinder_water_capacity=10L cylinder_pressure=200bar flow=15L/min "
+        "duration=60min\n"
+        "  tidewell calc uncertainty sample.ph=7.34 sample.pco2=6.6kPa sample.hco3=26mmol/L seed=7\n\n"
+        "calculations: " + ", ".join(available()),
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        allow_abbrev=False,
+    )
+    parser.add_argument("name", nargs="?", help="the calculation, e.g. altitude or blood_gas")
+    parser.add_argument("inputs", nargs="*", metavar="key=value", help="its inputs")
+    _add_output_flags(parser)
+    args = parser.parse_args(argv)
+    if not args.name:
+        sys.stdout.write("calculations: " + ", ".join(available()) + "\n")
+        return 0
+    inputs: dict = {}
+    for item in args.inputs:
+        try:
+            path, value = parse_assignment(item)
+        except ValueError as exc:
+            sys.stderr.write(f"tidewell: {exc}\n")
+            return 2
+        target = inputs
+        for part in path[:-1]:
+            existing = target.get(part)
+            if not isinstance(existing, dict):
+                existing = target[part] = {}
+            target = existing
+        target[path[-1]] = value
+    request = {"calc": args.name, "inputs": inputs}
+    if args.pressure_unit:
+        request["options"] = {"pressure_unit": args.pressure_unit}
+    response = handle_obj(request)
+    return _finish(response, args, flags=False)
+
+
+def run_batch(argv: list[str]) -> int:
+    parser = argparse.ArgumentParser(
+        prog="tidewell batch",
+        description="Interpret a CSV file of blood gases, one sample per row, and write every input column\n"
+        "followed by the main outputs and the findings of each row. Columns are named by the input keys\n"
+        "(ph, pco2, hco3, po2, fio2, sample, na, cl, albumin, lactate, age, hypercapnia_risk, ...); give\n"
+        "units in the header (pco2[kPa]), in a second row of units, or in a cell (7.1 kPa). Other columns\n"
+        "(an id, a date) are copied through. A row's problems go in its 'error' column and the batch goes\n"
+        "on; a summary of counts per disorder, chronicity and finding is printed at the end.",
+        epilog="example:\n  tidewell batch gases.csv -o gases-read.csv --kpa\n\n"
+        "exit status: 0 done (rows with errors included), 2 the file cannot be read, 1 internal fault.",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        allow_abbrev=False,
+    )
+    parser.add_argument("source", metavar="IN.csv", help="the samples ('-' reads standard input)")
+    parser.add_argument("-o", "--output", metavar="OUT.csv", help="where to write (default: standard output)")
+    units_ = parser.add_mutually_exclusive_group()
+    units_.add_argument(
+        "--kpa", dest="pressure_unit", action="store_const", const="kPa", help="pressures in kPa"
+    )
+    units_.add_argument(
+        "--mmhg", dest="pressure_unit", action="store_const", const="mmHg", help="pressures in mmHg (default)"
+    )
+    shown = parser.add_mutually_exclusive_group()
+    shown.add_argument(
+        "--progress", dest="progress", action="store_const", const=True, help="always show progress"
+    )
+    shown.add_argument(
+        "--no-progress", dest="progress", action="store_const", const=False, help="never show it"
+    )
+    parser.add_argument("--full-precision", action="store_true", help="write numbers unrounded")
+    parser.add_argument("--summary-json", metavar="FILE", help="also write the summary counts as JSON")
+    args = parser.parse_args(argv)
+    try:
+        from . import batch
+    except ModuleNotFoundError as exc:
+        sys.stderr.write(f"tidewell: batch needs numpy ({exc}); pip install tidewell[arrays]\n")
+        return 1
+    try:
+        counts = batch.run(
+            args.source,
+            args.output,
+            pressure_unit=args.pressure_unit or "mmHg",
+            progress=args.progress,
+            full_precision=args.full_precision,
+        )
+    except (OSError, UnicodeDecodeError) as exc:
+        sys.stderr.write(f"tidewell: cannot read or write the file: {exc}\n")
+        return 2
+    except batch.TableError as exc:
+        sys.stderr.write(f"tidewell: {args.source}: {exc}\n")
+        return 2
+    if args.summary_json:
+        with open(args.summary_json, "w", encoding="utf-8") as f:
+            json.dump(counts, f, indent=2)
+    return 0
+
+
+COMMANDS = {"calc": run_calc, "batch": run_batch, "how-sure": run_how_sure}
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line with ``argv`` (default: the process's arguments); returns the exit status."""
+    argv = list(sys.argv[1:] if argv is None else argv)
+    try:
+        if argv and argv[0] in COMMANDS:
+            return COMMANDS[argv[0]](argv[1:])
+        return run_sample(argv)
+    except SystemExit as exc:  # argparse: --help (0) and usage errors (2)
+        return exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 2)
+    except KeyboardInterrupt:
+        sys.stderr.write("tidewell: interrupted\n")
+        return 1
+    except BrokenPipeError:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return 0
+    except Exception as exc:  # a fault inside Tidewell: say so, without a traceback
+        sys.stderr.write(f"tidewell: internal error ({type(exc).__name__}); nothing was written. {exc}\n")
+        return 1
