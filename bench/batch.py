@@ -226,7 +226,10 @@ def main() -> int:
     parser.add_argument("--full-scalar", action="store_true", help="loop the scalar bridge over every row")
     parser.add_argument("--repeat", type=int, default=3)
     parser.add_argument("--json", metavar="FILE")
+    parser.add_argument("--quick", action="store_true", help="CI: 2,000 rows, 200 scalar, one repeat")
     args = parser.parse_args()
+    if args.quick:
+        args.rows, args.scalar_sample, args.repeat, args.full_scalar = 2_000, 200, 1, False
 
     load_before = os.getloadavg()
     text = make_csv(args.rows)
