@@ -176,9 +176,8 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
         )
 
     pio2 = ox.inspired_po2(fio2_fraction=fio2, pb_mmhg=pb, ph2o_mmhg=ph2o)
-    report.pressure("pio2", pio2)
-    report.step(
-        "Inspired PO2", "PIO2 = FiO2 x (PB - PH2O)", pio2, "alveolar_gas_1946", output="pio2", pressure=True
+    report.computed(
+        "pio2", pio2, "Inspired PO2", "PIO2 = FiO2 x (PB - PH2O)", "alveolar_gas_1946", pressure=True
     )
     simple = ox.alveolar_po2_simple(fio2_fraction=fio2, paco2_mmhg=pco2, pb_mmhg=pb, rq=rq, ph2o_mmhg=ph2o)
     full = ox.alveolar_po2_full(fio2_fraction=fio2, paco2_mmhg=pco2, pb_mmhg=pb, rq=rq, ph2o_mmhg=ph2o)
@@ -190,23 +189,21 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
             f"{simple:.0f} mmHg",
             "Check FiO2, PB/altitude and PCO2 (units); such values are not survivable.",
         )
-    report.pressure("pao2_alveolar", simple)
-    report.step(
+    report.computed(
+        "pao2_alveolar",
+        simple,
         "Alveolar PO2 (simplified alveolar gas equation)",
         "PAO2 = PIO2 - PaCO2 / R",
-        simple,
         "alveolar_gas_1946",
-        output="pao2_alveolar",
         pressure=True,
         inputs={"R": rq},
     )
-    report.pressure("pao2_alveolar_full", full)
-    report.step(
+    report.computed(
+        "pao2_alveolar_full",
+        full,
         "Alveolar PO2 (full alveolar gas equation)",
         "PAO2 = PIO2 - PaCO2 x (FiO2 + (1 - FiO2) / R)",
-        full,
         "alveolar_gas_1946",
-        output="pao2_alveolar_full",
         pressure=True,
     )
     if not 0.7 <= rq <= 1.0:
@@ -217,33 +214,30 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
     on_air = fio2 <= 0.2101
     if age is not None:
         upper = ox.aa_gradient_upper_by_age(age_years=age)
-        report.pressure("a_a_expected_upper", upper)
-        report.step(
+        report.computed(
+            "a_a_expected_upper",
+            upper,
             "Upper limit of the A-a gradient for age (breathing air)",
             "age / 4 + 4",
-            upper,
             "aa_age_rule",
-            output="a_a_expected_upper",
             pressure=True,
         )
         expected = ox.expected_pao2_by_age(age_years=age)
         sorbini = ox.expected_pao2_sorbini1968(age_years=age)
-        report.pressure("pao2_expected_for_age", expected)
-        report.step(
+        report.computed(
+            "pao2_expected_for_age",
+            expected,
             "Expected PaO2 for age (air, sea level)",
             "100 - age / 3",
-            expected,
             "aa_age_rule",
-            output="pao2_expected_for_age",
             pressure=True,
         )
-        report.pressure("pao2_expected_sorbini", sorbini)
-        report.step(
+        report.computed(
+            "pao2_expected_sorbini",
+            sorbini,
             "Expected PaO2 for age, Sorbini (air, sea level)",
             "109 - 0.43 x age",
-            sorbini,
             "sorbini1968",
-            output="pao2_expected_sorbini",
             pressure=True,
         )
         if age >= 75:
@@ -275,30 +269,28 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
             )
         if paw is not None:
             oi = ox.oxygenation_index(fio2_fraction=fio2, mean_airway_pressure_cmh2o=paw, pao2_mmhg=po2)
-            report.put("oxygenation_index", oi, decimals=1)
-            report.step(
+            report.computed(
+                "oxygenation_index",
+                oi,
                 "Oxygenation index",
                 "OI = FiO2 x mean airway pressure (cmH2O) x 100 / PaO2 (mmHg)",
-                oi,
                 "chen2018_oi",
-                output="oxygenation_index",
+                decimals=1,
             )
     elif paw is not None:
         report.finding("oi_needs_po2", "info", "The oxygenation index needs a PaO2 (po2).")
 
     if spo2 is not None:
         sf = ox.sf_ratio(spo2_percent=spo2, fio2_fraction=fio2)
-        report.put("sf_ratio", sf, decimals=0)
-        report.step("SpO2/FiO2 ratio", "S/F = SpO2 (%) / FiO2", sf, "rice2007", output="sf_ratio")
+        report.computed("sf_ratio", sf, "SpO2/FiO2 ratio", "S/F = SpO2 (%) / FiO2", "rice2007", decimals=0)
         if spo2 <= ox.RICE_SPO2_MAX_PERCENT and sf > 64.0:
             est = ox.pf_from_sf_rice2007(sf=sf)
-            report.pressure("pf_ratio_estimated_from_sf", est)
-            report.step(
+            report.computed(
+                "pf_ratio_estimated_from_sf",
+                est,
                 "P/F ratio estimated from S/F (Rice)",
                 "P/F = (S/F - 64) / 0.84",
-                est,
                 "rice2007",
-                output="pf_ratio_estimated_from_sf",
                 pressure=True,
             )
         else:
@@ -322,11 +314,11 @@ def _alveolar_po2_indices(
     report: Report, *, fio2: float, po2: float, pao2_alv: float, pb: float, altitude: float | None, age
 ) -> None:
     aa = pao2_alv - po2
-    report.pressure("a_a_gradient", aa)
-    report.step("A-a gradient", "PAO2 - PaO2", aa, "alveolar_gas_1946", output="a_a_gradient", pressure=True)
+    report.computed("a_a_gradient", aa, "A-a gradient", "PAO2 - PaO2", "alveolar_gas_1946", pressure=True)
     ratio = ox.a_over_a_ratio(pao2_mmhg=po2, pao2_alveolar_mmhg=pao2_alv)
-    report.put("a_over_A", ratio, decimals=2)
-    report.step("a/A ratio", "PaO2 / PAO2 (normal above 0.75)", ratio, "gilbert1974", output="a_over_A")
+    report.computed(
+        "a_over_A", ratio, "a/A ratio", "PaO2 / PAO2 (normal above 0.75)", "gilbert1974", decimals=2
+    )
     if aa < -5.0:
         report.finding(
             "pao2_above_alveolar",
@@ -337,16 +329,14 @@ def _alveolar_po2_indices(
     elif ratio < 0.75:
         report.finding("a_over_a_low", "notable", "The a/A ratio is below 0.75: impaired gas exchange.")
     pf = ox.pf_ratio(pao2_mmhg=po2, fio2_fraction=fio2)
-    report.pressure("pf_ratio", pf)
-    report.step("P/F ratio", "PaO2 / FiO2", pf, "berlin2012", output="pf_ratio", pressure=True)
+    report.computed("pf_ratio", pf, "P/F ratio", "PaO2 / FiO2", "berlin2012", pressure=True)
     corrected = ox.pf_ratio_altitude_corrected_berlin(pao2_mmhg=po2, fio2_fraction=fio2, pb_mmhg=pb)
-    report.pressure("pf_ratio_altitude_corrected", corrected)
-    report.step(
+    report.computed(
+        "pf_ratio_altitude_corrected",
+        corrected,
         "P/F ratio corrected for barometric pressure",
         "PaO2 / FiO2 x PB / 760",
-        corrected,
         "berlin2012",
-        output="pf_ratio_altitude_corrected",
         pressure=True,
     )
     above_1000 = (
@@ -436,13 +426,12 @@ def oxygen_content(inputs: Inputs, report: Report) -> None:
                 )
         elif spo2 <= ox.RICE_SPO2_MAX_PERCENT:
             est = ox.po2_from_saturation_exact(so2_fraction=sao2)
-            report.pressure("po2_estimated", est)
-            report.step(
+            report.computed(
+                "po2_estimated",
+                est,
                 "PO2 on the standard curve for this SpO2 (exact inverse of Severinghaus eq 1)",
                 "PO2^3 + 150 PO2 = 23400 S / (1 - S)",
-                est,
                 "severinghaus1979",
-                output="po2_estimated",
                 pressure=True,
             )
     else:
@@ -479,14 +468,14 @@ def oxygen_content(inputs: Inputs, report: Report) -> None:
         )
     if co is not None:
         do2 = ox.oxygen_delivery(cao2_ml_dl=content.total_ml_dl, cardiac_output_l_min=co)
-        report.quantity("do2", do2, "mL/min", decimals=0)
-        report.step(
+        report.computed(
+            "do2",
+            do2,
             "Oxygen delivery",
             "DO2 = CaO2 x cardiac output x 10",
-            do2,
             "o2_content",
-            output="do2",
             unit="mL/min",
+            decimals=0,
         )
     report.caution(
         "Pulse oximetry reads carboxyhaemoglobin as oxyhaemoglobin and is unreliable in methaemoglobinaemia, "
@@ -614,13 +603,12 @@ def oxygen_dissociation_curve(inputs: Inputs, report: Report) -> None:
     p50_std = ox.P50_STANDARD_MMHG
     p50 = p50_std / factor
     report.pressure("p50_standard", p50_std, decimals=1 if report.pressure_unit == "mmHg" else 2)
-    report.pressure("p50_patient", p50)
-    report.step(
+    report.computed(
+        "p50_patient",
+        p50,
         "P50 of the patient's curve",
         "P50 = P50_standard / factor (P50_standard 26.86 mmHg, eq 1 at S = 0.5)",
-        p50,
         "severinghaus1979",
-        output="p50_patient",
         pressure=True,
     )
 
@@ -913,28 +901,28 @@ def ventilation(inputs: Inputs, report: Report) -> None:
     inputs.finish()
 
     ve = vn.minute_ventilation(vt_ml=vt, rr_per_min=rr)
-    report.quantity("minute_ventilation", ve, "L/min", decimals=1)
-    report.step(
+    report.computed(
+        "minute_ventilation",
+        ve,
         "Minute ventilation",
         "VE = VT x RR",
-        ve,
         "alveolar_ventilation",
-        output="minute_ventilation",
         unit="L/min",
+        decimals=1,
     )
 
     # -- body size ---------------------------------------------------------------------------------
     pbw = None
     if height is not None and sex is not None:
         pbw = vn.predicted_body_weight_ardsnet(height_cm=height, sex=sex)
-        report.quantity("predicted_body_weight", pbw, "kg", decimals=1)
-        report.step(
+        report.computed(
+            "predicted_body_weight",
+            pbw,
             "Predicted body weight (ARDSNet)",
             ("50" if sex == "male" else "45.5") + " + 0.91 x (height cm - 152.4)",
-            pbw,
             "ardsnet2000",
-            output="predicted_body_weight",
             unit="kg",
+            decimals=1,
         )
         if height < 152.4:
             report.finding(
@@ -943,8 +931,9 @@ def ventilation(inputs: Inputs, report: Report) -> None:
                 "The PBW formula is not validated below about 150 cm or in children.",
             )
         per_kg = vn.vt_per_kg(vt_ml=vt, pbw_kg=pbw)
-        report.quantity("vt_per_kg_pbw", per_kg, "mL/kg", decimals=1)
-        report.step("VT per kg PBW", "VT / PBW", per_kg, "ardsnet2000", output="vt_per_kg_pbw", unit="mL/kg")
+        report.computed(
+            "vt_per_kg_pbw", per_kg, "VT per kg PBW", "VT / PBW", "ardsnet2000", unit="mL/kg", decimals=1
+        )
         band = vn.lung_protective_vt(pbw_kg=pbw)
         report.put(
             "vt_lung_protective",
@@ -976,14 +965,14 @@ def ventilation(inputs: Inputs, report: Report) -> None:
                 f"VT is {per_kg:.1f} mL/kg PBW, below 4 mL/kg: dead-space fraction and PaCO2 rise.",
             )
         anat = vn.anatomical_dead_space(pbw_kg=pbw)
-        report.quantity("anatomical_dead_space", anat, "mL", decimals=0)
-        report.step(
+        report.computed(
+            "anatomical_dead_space",
+            anat,
             "Anatomical dead space (estimate)",
             "2.2 mL/kg PBW",
-            anat,
             "numa1996",
-            output="anatomical_dead_space",
             unit="mL",
+            decimals=0,
         )
     elif height is not None:
         report.finding(
@@ -1139,23 +1128,22 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             )
     if etco2 is not None:
         adsf = vn.alveolar_dead_space_fraction(paco2_mmhg=pco2, etco2_mmhg=etco2)
-        report.pressure("pco2_etco2_gradient", pco2 - etco2)
-        report.step(
+        report.computed(
+            "pco2_etco2_gradient",
+            pco2 - etco2,
             "Arterial to end-tidal PCO2 gradient",
             "PaCO2 - EtCO2",
-            pco2 - etco2,
             "etco2_gradient",
-            output="pco2_etco2_gradient",
             pressure=True,
         )
         if adsf >= 0.0:
-            report.put("alveolar_dead_space_fraction", adsf, decimals=2)
-            report.step(
+            report.computed(
+                "alveolar_dead_space_fraction",
+                adsf,
                 "Alveolar dead-space fraction (from EtCO2)",
                 "(PaCO2 - EtCO2) / PaCO2",
-                adsf,
                 ("tusman2012", "nunn1960"),
-                output="alveolar_dead_space_fraction",
+                decimals=2,
             )
         else:
             report.finding(
@@ -1167,13 +1155,13 @@ def ventilation(inputs: Inputs, report: Report) -> None:
         if peco2 is not None:
             if peco2 < etco2:
                 bohr = vn.vd_vt_bohr(paco2_alveolar_mmhg=etco2, peco2_mmhg=peco2)
-                report.put("vd_vt_bohr", bohr, decimals=2)
-                report.step(
+                report.computed(
+                    "vd_vt_bohr",
+                    bohr,
                     "VD/VT (Bohr, end-tidal PCO2 as alveolar)",
                     "VD/VT = (PetCO2 - PECO2) / PetCO2",
-                    bohr,
                     ("bohr1891", "tusman2012"),
-                    output="vd_vt_bohr",
+                    decimals=2,
                 )
             else:
                 report.finding(
@@ -1181,13 +1169,12 @@ def ventilation(inputs: Inputs, report: Report) -> None:
                 )
     if etco2 is not None and etco2_now is not None:
         track = vn.pco2_from_etco2(paco2_mmhg=pco2, etco2_mmhg=etco2, etco2_now_mmhg=etco2_now)
-        report.pressure("pco2_estimated_now", track.paco2_now_mmhg)
-        report.step(
+        report.computed(
+            "pco2_estimated_now",
+            track.paco2_now_mmhg,
             "Current PaCO2 tracked from EtCO2 (gradient assumed constant)",
             "PaCO2_now = EtCO2_now + (PaCO2 - EtCO2)",
-            track.paco2_now_mmhg,
             "etco2_gradient",
-            output="pco2_estimated_now",
             pressure=True,
         )
         report.caution(
@@ -1199,24 +1186,23 @@ def ventilation(inputs: Inputs, report: Report) -> None:
     va_effective = ve * (1.0 - vd_vt) if vd_vt is not None else None
     if vd is not None:
         va = vn.alveolar_ventilation(vt_ml=vt, vd_ml=vd, rr_per_min=rr)
-        report.quantity("alveolar_ventilation", va, "L/min", decimals=2)
-        report.step(
+        report.computed(
+            "alveolar_ventilation",
+            va,
             "Alveolar ventilation (entered dead space)",
             "VA = (VT - VD) x RR",
-            va,
             "alveolar_ventilation",
-            output="alveolar_ventilation",
             unit="L/min",
+            decimals=2,
         )
         report.put("vd_vt_entered", vd / vt, decimals=2)
         predicted = vn.paco2_from_alveolar_ventilation(vco2_ml_min=vco2, va_l_min=va)
-        report.pressure("pco2_predicted", predicted)
-        report.step(
+        report.computed(
+            "pco2_predicted",
+            predicted,
             f"PaCO2 predicted from VA and the {vco2_source.replace('_', ' ')} VCO2",
             "PaCO2 = 0.863 x VCO2 / VA",
-            predicted,
             "alveolar_ventilation",
-            output="pco2_predicted",
             pressure=True,
             inputs={"k": vn.K_CO2},
         )
@@ -1238,14 +1224,14 @@ def ventilation(inputs: Inputs, report: Report) -> None:
         if va_effective is not None:
             report.quantity("alveolar_ventilation_effective", va_effective, "L/min", decimals=2)
     elif va_effective is not None:
-        report.quantity("alveolar_ventilation", va_effective, "L/min", decimals=2)
-        report.step(
+        report.computed(
+            "alveolar_ventilation",
+            va_effective,
             "Alveolar ventilation (effective, from VD/VT)",
             "VA = VE x (1 - VD/VT)",
-            va_effective,
             "alveolar_ventilation",
-            output="alveolar_ventilation",
             unit="L/min",
+            decimals=2,
         )
 
     # -- timing ----------------------------------------------------------------------------------------

@@ -724,14 +724,14 @@ def altitude(inputs: Inputs, report: Report) -> None:
     _pressure_steps(report, f)
     report.pressure("pb", f.pb)
     report.pressure("pb_origin", f.pb_origin)
-    report.quantity("pb_hpa", units.convert(f.pb, "mmHg", "hPa"), "hPa", decimals=1)
-    report.step(
+    report.computed(
+        "pb_hpa",
+        units.convert(f.pb, "mmHg", "hPa"),
         "Barometric pressure in hPa",
         "1 mmHg = 1.33322387415 hPa",
-        units.convert(f.pb, "mmHg", "hPa"),
         "bipm2019",
-        output="pb_hpa",
         unit="hPa",
+        decimals=1,
     )
     cabin_formula = (
         "as given"
@@ -742,142 +742,132 @@ def altitude(inputs: Inputs, report: Report) -> None:
         report, "cabin_altitude", f.cabin_m, f.unit, "Cabin altitude", cabin_formula, "icao7488"
     )
 
-    report.pressure("pio2", ph.pio2)
-    report.step(
+    report.computed(
+        "pio2",
+        ph.pio2,
         "Inspired PO2 at the cabin altitude",
         f"PIO2 = FiO2 x (PB - 47) = {f.fio2:.3g} x ({f.pb:.1f} - 47) mmHg",
-        ph.pio2,
         eq_src,
-        output="pio2",
         pressure=True,
     )
-    report.pressure("pio2_origin", ph.pio2_origin)
-    report.step(
+    report.computed(
+        "pio2_origin",
+        ph.pio2_origin,
         "Inspired PO2 at the origin",
         "PIO2 = FiO2 x (PB_origin - 47)",
-        ph.pio2_origin,
         eq_src,
-        output="pio2_origin",
         pressure=True,
     )
 
-    report.pressure("pao2_alveolar", ph.pao2)
-    report.step(
+    report.computed(
+        "pao2_alveolar",
+        ph.pao2,
         f"Alveolar PO2 at the cabin altitude ({f.equation} alveolar gas equation)",
         _equation_text(f)
         + f", R {f.rq:g}, PaCO2 {f.pco2:.1f} mmHg"
         + (" (assumed)" if f.pco2_assumed else "")
         + f"; {assumptions}; shown as 0 if the equation gives 0 or less",
-        ph.pao2,
         eq_src,
-        output="pao2_alveolar",
         pressure=True,
     )
-    report.pressure("pao2_alveolar_origin", ph.pao2_origin)
-    report.step(
+    report.computed(
+        "pao2_alveolar_origin",
+        ph.pao2_origin,
         "Alveolar PO2 at the origin",
         _equation_text(f, pb="PB_origin"),
-        ph.pao2_origin,
         eq_src,
-        output="pao2_alveolar_origin",
         pressure=True,
     )
-    report.pressure("pao2_alveolar_simple", max(ph.pao2_simple_raw, 0.0))
-    report.step(
+    report.computed(
+        "pao2_alveolar_simple",
+        max(ph.pao2_simple_raw, 0.0),
         "Alveolar PO2 at the cabin altitude, simple equation",
         "PAO2 = FiO2 x (PB - 47) - PaCO2 / R",
-        max(ph.pao2_simple_raw, 0.0),
         eq_src,
-        output="pao2_alveolar_simple",
         pressure=True,
     )
-    report.pressure("pao2_alveolar_full", max(ph.pao2_full_raw, 0.0))
-    report.step(
+    report.computed(
+        "pao2_alveolar_full",
+        max(ph.pao2_full_raw, 0.0),
         "Alveolar PO2 at the cabin altitude, full equation",
         "PAO2 = FiO2 x (PB - 47) - PaCO2 x (FiO2 + (1 - FiO2) / R)",
-        max(ph.pao2_full_raw, 0.0),
         eq_src,
-        output="pao2_alveolar_full",
         pressure=True,
     )
 
-    report.put("fio2_equivalent", ph.fio2_equivalent, decimals=3)
-    report.step(
+    report.computed(
+        "fio2_equivalent",
+        ph.fio2_equivalent,
         "FiO2 that keeps the origin's alveolar PO2 (water-vapour corrected; default)",
         f"FiO2_cabin = FiO2 x (PB_origin - 47) / (PB - 47) = {f.fio2:.3g} x ({f.pb_origin:.1f} - 47) / "
         f"({f.pb:.1f} - 47)"
         " (keeps PIO2, hence PAO2 at the same PaCO2 and R)",
-        ph.fio2_equivalent,
         ("fio2_altitude_rules", "alveolar_gas_1946"),
-        output="fio2_equivalent",
+        decimals=3,
     )
     report.put("fio2_equivalent_within_max", ph.fio2_equivalent <= f.fio2_max + 1e-9)
-    report.put("fio2_equivalent_simple", ph.fio2_equivalent_simple, decimals=3)
-    report.step(
+    report.computed(
+        "fio2_equivalent_simple",
+        ph.fio2_equivalent_simple,
         "FiO2 by the simple pressure ratio (comparison; under-doses slightly)",
         "FiO2_cabin = FiO2 x PB_origin / PB",
-        ph.fio2_equivalent_simple,
         "fio2_altitude_rules",
-        output="fio2_equivalent_simple",
+        decimals=3,
     )
 
-    report.put("sea_level_fio2_equivalent", ph.sea_level_equivalent, decimals=3)
-    report.step(
+    report.computed(
+        "sea_level_fio2_equivalent",
+        ph.sea_level_equivalent,
         "Hypoxic-challenge equivalence: air at this cabin altitude",
         "FiO2_sea-level = 0.2095 x (PB - 47) / (760 - 47); 8,000 ft gives about 0.15, the FiO2 of the "
         "hypoxic "
         "challenge test (FiO2 0.15 at sea level has the PIO2 of air at "
         f"{_alt_text(ph.hct_altitude_m, 'ft')})",
-        ph.sea_level_equivalent,
         ("aviation_o2_equivalence", "bradi2009", "bts2011_air", "air_o2_fraction"),
-        output="sea_level_fio2_equivalent",
+        decimals=3,
     )
-    report.put("sea_level_fio2_equivalent_dry", ph.sea_level_equivalent_dry, decimals=3)
-    report.step(
+    report.computed(
+        "sea_level_fio2_equivalent_dry",
+        ph.sea_level_equivalent_dry,
         "Sea-level FiO2 equivalent on dry pressures (comparison)",
         "FiO2_sea-level = 0.2095 x PB / 760",
-        ph.sea_level_equivalent_dry,
         ("aviation_o2_equivalence", "air_o2_fraction"),
-        output="sea_level_fio2_equivalent_dry",
+        decimals=3,
     )
-    report.quantity(
-        "hypoxic_challenge_altitude", units.convert(ph.hct_altitude_m, "m", f.unit), f.unit, decimals=0
-    )
-    report.step(
+    report.computed(
+        "hypoxic_challenge_altitude",
+        units.convert(ph.hct_altitude_m, "m", f.unit),
         "Cabin altitude whose air matches the hypoxic challenge (FiO2 0.15 at sea level)",
         "PB = 47 + 0.15 x (760 - 47) / 0.2095, then the ISA pressure altitude",
-        units.convert(ph.hct_altitude_m, "m", f.unit),
         ("bradi2009", "icao7488"),
-        output="hypoxic_challenge_altitude",
         unit=f.unit,
+        decimals=0,
     )
 
     if ph.a_over_a is not None:
-        report.put("a_over_A", ph.a_over_a, decimals=2)
-        report.step(
+        report.computed(
+            "a_over_A",
+            ph.a_over_a,
             "a/A ratio at the origin",
             f"a/A = PaO2 / PAO2_origin = {f.po2:.1f} / {ph.pao2_origin:.1f}",
-            ph.a_over_a,
             ("gilbert1974", "alveolar_gas_1946"),
-            output="a_over_A",
+            decimals=2,
         )
-        report.pressure("po2_predicted", ph.po2_predicted)
-        report.step(
+        report.computed(
+            "po2_predicted",
+            ph.po2_predicted,
             "Predicted PaO2 at the cabin altitude (constant a/A)",
             "PaO2_cabin = a/A x PAO2_cabin; assumes the origin's a/A ratio, PaCO2 and R hold at altitude "
             "(a planning estimate: the real PaO2 can be lower)",
-            ph.po2_predicted,
             "gilbert1974",
-            output="po2_predicted",
             pressure=True,
         )
-        report.pressure("po2_threshold", INFLIGHT_PO2_THRESHOLD_MMHG)
-        report.step(
+        report.computed(
+            "po2_threshold",
+            INFLIGHT_PO2_THRESHOLD_MMHG,
             "In-flight PaO2 below which in-flight oxygen is advised",
             "6.6 kPa (49.5 mmHg, 'about 50 mmHg')",
-            INFLIGHT_PO2_THRESHOLD_MMHG,
             "bts2011_inflight_threshold",
-            output="po2_threshold",
             pressure=True,
         )
     if ph.max_altitude is not None:
@@ -891,14 +881,14 @@ def altitude(inputs: Inputs, report: Report) -> None:
 
 def _max_altitude_outputs(report: Report, f: _Flight, ph: _Physiology) -> None:
     eq = _equation_text(f, fio2="FiO2_max", pb="PB(h)")
-    report.put("fio2_for_target", ph.fio2_for_target, decimals=3)
-    report.step(
+    report.computed(
+        "fio2_for_target",
+        ph.fio2_for_target,
         "FiO2 that keeps the predicted PaO2 at the target at the cabin altitude",
         f"solve a/A x PAO2(FiO2, PB) = {_p(report, f.target_po2)} for FiO2 (exact: PAO2 is linear in FiO2); "
         "above 1.0 means no FiO2 suffices",
-        ph.fio2_for_target,
         ("alveolar_gas_1946", "gilbert1974"),
-        output="fio2_for_target",
+        decimals=3,
     )
     mx = ph.max_altitude
     report.put("max_altitude_status", mx.status)
@@ -945,38 +935,37 @@ def _trapped_gas_outputs(report: Report, f: _Flight, ph: _Physiology) -> None:
     dry, wet = (units.convert(v, "mL", u) for v in (ph.volume_dry, ph.volume_wet))
     decimals = 0 if u == "mL" else 3
     chosen = wet if f.gas_kind == "wet" else dry
-    report.quantity("trapped_gas_volume_at_altitude", chosen, u, decimals=decimals)
-    report.step(
+    report.computed(
+        "trapped_gas_volume_at_altitude",
+        chosen,
         f"Trapped gas volume at the cabin altitude ({f.gas_kind} gas; free expansion)",
         "V2 = V1 x (PB_origin - 47) / (PB - 47) (saturated at 37 degC)"
         if f.gas_kind == "wet"
         else "V2 = V1 x PB_origin / PB",
-        chosen,
         ("boyle", "trapped_gas_practice"),
-        output="trapped_gas_volume_at_altitude",
         unit=u,
+        decimals=decimals,
     )
-    report.quantity("trapped_gas_volume_dry", dry, u, decimals=decimals)
-    report.step(
+    report.computed(
+        "trapped_gas_volume_dry",
+        dry,
         "Dry gas (cuffs, bags): Boyle's law",
         "V2 = V1 x PB_origin / PB",
-        dry,
         "boyle",
-        output="trapped_gas_volume_dry",
         unit=u,
+        decimals=decimals,
     )
-    report.quantity("trapped_gas_volume_wet", wet, u, decimals=decimals)
-    report.step(
+    report.computed(
+        "trapped_gas_volume_wet",
+        wet,
         "Body-cavity gas (saturated with water vapour at 37 degC)",
         "V2 = V1 x (PB_origin - 47) / (PB - 47)",
-        wet,
         "boyle",
-        output="trapped_gas_volume_wet",
         unit=u,
+        decimals=decimals,
     )
     ratio = chosen / units.convert(f.volume, "mL", u)
-    report.put("trapped_gas_expansion", ratio, decimals=2)
-    report.step("Expansion ratio", "V2 / V1", ratio, "boyle", output="trapped_gas_expansion")
+    report.computed("trapped_gas_expansion", ratio, "Expansion ratio", "V2 / V1", "boyle", decimals=2)
 
 
 def _summary(report: Report, f: _Flight, ph: _Physiology) -> None:
@@ -1063,13 +1052,13 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
         output="pb",
         pressure=True,
     )
-    report.put("fio2_equivalent", ph.fio2_equivalent, decimals=3)
-    report.step(
+    report.computed(
+        "fio2_equivalent",
+        ph.fio2_equivalent,
         f"FiO2 that keeps the origin's alveolar PO2 at the cabin altitude {_alt_text(f.cabin_m, f.unit)}",
         "FiO2 x (PB_origin - 47) / (PB - 47)",
-        ph.fio2_equivalent,
         ("fio2_altitude_rules", "alveolar_gas_1946"),
-        output="fio2_equivalent",
+        decimals=3,
     )
     report.put("fio2_profile", {"at_fio2": f.fio2, "at_fio2_equivalent": f_eq_used}, decimals=3)
     report.step(
@@ -1114,13 +1103,12 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
             output="po2_predicted",
             pressure=True,
         )
-        report.pressure("po2_threshold", INFLIGHT_PO2_THRESHOLD_MMHG)
-        report.step(
+        report.computed(
+            "po2_threshold",
+            INFLIGHT_PO2_THRESHOLD_MMHG,
             "Line on the plot: in-flight PaO2 below which in-flight oxygen is advised",
             "6.6 kPa (49.5 mmHg)",
-            INFLIGHT_PO2_THRESHOLD_MMHG,
             "bts2011_inflight_threshold",
-            output="po2_threshold",
             pressure=True,
         )
     _altitude_outputs(
@@ -1318,100 +1306,99 @@ def oxygen_supply(inputs: Inputs, report: Report) -> None:
         residual_bar=residual,
     )
 
-    report.quantity("litres_per_cylinder", plan.litres_per_cylinder, "L", decimals=0)
-    report.step(
+    report.computed(
+        "litres_per_cylinder",
+        plan.litres_per_cylinder,
         "Free oxygen in one cylinder (ideal gas)",
         f"V = water capacity x (P - P_residual) / 1.01325 = {wc:g} L x ({pressure:.1f} - {residual:.1f}) "
         "bar / "
         "1.01325 bar; real O2 holds about 6-7 % more at 137-230 bar (Z about 0.93), so this is conservative",
-        plan.litres_per_cylinder,
         ("cylinder_ideal_gas", "coolprop2014"),
-        output="litres_per_cylinder",
         unit="L",
+        decimals=0,
     )
-    report.quantity("available_litres", plan.available_litres, "L", decimals=0)
-    report.step(
+    report.computed(
+        "available_litres",
+        plan.available_litres,
         "Oxygen available",
         f"{n} cylinder(s) x {plan.litres_per_cylinder:.0f} L",
-        plan.available_litres,
         "cylinder_ideal_gas",
-        output="available_litres",
         unit="L",
+        decimals=0,
     )
-    report.put("reserve_fraction", reserve, decimals=2)
-    report.step(
+    report.computed(
+        "reserve_fraction",
+        reserve,
         "Reserve fraction of the contents held back",
         "as given"
         if inputs.given("reserve_fraction")
         else "default 0 (the safety factor is the default margin)",
-        reserve,
         "transport_reserve",
-        output="reserve_fraction",
+        decimals=2,
     )
-    report.quantity("usable_litres", plan.usable_litres, "L", decimals=0)
-    report.step(
+    report.computed(
+        "usable_litres",
+        plan.usable_litres,
         "Oxygen usable after the reserve",
         f"available x (1 - reserve fraction {reserve:g}); default 0: the margin is the safety factor "
         "(e.g. 0.25 keeps a quarter of the contents)",
-        plan.usable_litres,
         "transport_reserve",
-        output="usable_litres",
         unit="L",
+        decimals=0,
     )
-    report.quantity("planned_litres", plan.planned_litres, "L", decimals=0)
-    report.step(
+    report.computed(
+        "planned_litres",
+        plan.planned_litres,
         "Oxygen for the planned time",
         f"flow x duration = {flow:.2f} L/min x {duration:g} min",
-        plan.planned_litres,
         "transport_reserve",
-        output="planned_litres",
         unit="L",
+        decimals=0,
     )
-    report.put("safety_factor", safety, decimals=2)
-    report.step(
+    report.computed(
+        "safety_factor",
+        safety,
         "Safety factor on the planned oxygen",
         "as given" if inputs.given("safety_factor") else "default 1.5 (common practice: carry 1.5-2 x)",
-        safety,
         "transport_reserve",
-        output="safety_factor",
+        decimals=2,
     )
-    report.quantity("required_litres", plan.required_litres, "L", decimals=0)
-    report.step(
+    report.computed(
+        "required_litres",
+        plan.required_litres,
         "Oxygen required with the safety factor",
         f"flow x duration x safety factor {safety:g} (default 1.5; common practice 1.5-2)",
-        plan.required_litres,
         "transport_reserve",
-        output="required_litres",
         unit="L",
+        decimals=0,
     )
-    report.quantity("minutes_available", plan.minutes_available, "min", decimals=0)
-    report.step(
+    report.computed(
+        "minutes_available",
+        plan.minutes_available,
         "Minutes of oxygen available",
         f"usable / flow = {plan.usable_litres:.0f} L / {flow:.2f} L/min",
-        plan.minutes_available,
         "cylinder_ideal_gas",
-        output="minutes_available",
         unit="min",
+        decimals=0,
     )
     report.put("sufficient", plan.sufficient)
     margin = plan.usable_litres - plan.required_litres
-    report.quantity("margin_litres", margin, "L", decimals=0)
-    report.step(
+    report.computed(
+        "margin_litres",
+        margin,
         "Sufficient when usable >= required",
         "margin = usable - required; sufficient when the margin is 0 or more",
-        margin,
         "transport_reserve",
-        output="margin_litres",
         unit="L",
+        decimals=0,
     )
-    report.put("cylinders_needed", plan.cylinders_needed)
-    report.step(
+    report.computed(
+        "cylinders_needed",
+        plan.cylinders_needed,
         "Cylinders of this size and pressure needed",
         f"ceil(required / usable per cylinder) = ceil({plan.required_litres:.0f} / "
         f"{plan.usable_litres / n:.0f})",
-        plan.cylinders_needed,
         "transport_reserve",
-        output="cylinders_needed",
     )
 
     if not plan.sufficient:

@@ -1285,51 +1285,51 @@ def _core(w: _Work) -> None:
     s, r, d = w.s, w.r, w.d
     hh = ("henderson1908", "nccls1994")
     hco3_calc = d.hco3_computed
-    r.quantity("hco3_computed", hco3_calc, "mmol/L", decimals=1)
-    r.step(
+    r.computed(
+        "hco3_computed",
+        hco3_calc,
         "HCO3 from pH and PCO2 (Henderson-Hasselbalch)",
         "HCO3 = 0.0307 x PCO2 [mmHg] x 10^(pH - 6.1)",
-        hco3_calc,
         hh,
-        output="hco3_computed",
         unit="mmol/L",
+        decimals=1,
     )
     h_measured = d.h_measured
-    r.quantity("h_nmol_l_measured", h_measured, "nmol/L", decimals=1)
-    r.step(
+    r.computed(
+        "h_nmol_l_measured",
+        h_measured,
         "[H+] from the pH",
         "[H+] = 10^(9 - pH)",
-        h_measured,
         "kassirer1965",
-        output="h_nmol_l_measured",
         unit="nmol/L",
+        decimals=1,
     )
     if s.hco3 is not None:
         r.put("consistency", d.consistency)
-        r.put("ph_computed", d.ph_computed, decimals=3)
-        r.step(
+        r.computed(
+            "ph_computed",
+            d.ph_computed,
             "pH from the reported PCO2 and HCO3",
             "pH = 6.1 + log10(HCO3 / (0.0307 x PCO2))",
-            d.ph_computed,
             hh,
-            output="ph_computed",
+            decimals=3,
         )
-        r.put("ph_difference", d.ph_difference, decimals=3)
-        r.step(
+        r.computed(
+            "ph_difference",
+            d.ph_difference,
             "Consistency: computed minus reported pH",
             "difference = pH_computed - pH_reported; consistent when |difference| <= 0.03",
-            d.ph_difference,
             "consistency_band",
-            output="ph_difference",
+            decimals=3,
         )
-        r.quantity("h_nmol_l_kassirer", d.h_kassirer, "nmol/L", decimals=1)
-        r.step(
+        r.computed(
+            "h_nmol_l_kassirer",
+            d.h_kassirer,
             "[H+] by Kassirer-Bleich",
             "[H+] = 24 x PCO2 [mmHg] / HCO3 [mmol/L]",
-            d.h_kassirer,
             "kassirer1965",
-            output="h_nmol_l_kassirer",
             unit="nmol/L",
+            decimals=1,
         )
         if w.fires("inconsistent_triple"):
             r.finding(
@@ -1376,14 +1376,14 @@ def _core(w: _Work) -> None:
     r.quantity("hco3", w.hco3_out, "mmol/L", decimals=1)
 
     # standard base excess (CLSI form) and the variants
-    r.quantity("standard_base_excess", w.sbe, "mmol/L", decimals=1)
-    r.step(
+    r.computed(
+        "standard_base_excess",
+        w.sbe,
         "Standard base excess (CLSI form, the default)",
         "SBE = HCO3 - 24.8 + 16.2 x (pH - 7.40)",
-        w.sbe,
         "nccls1994",
-        output="standard_base_excess",
         unit="mmol/L",
+        decimals=1,
     )
     variants = {
         "clsi": {"value": d.sbe, "unit": "mmol/L"},
@@ -1430,14 +1430,14 @@ def _core(w: _Work) -> None:
         )
     r.put("sbe_variants", variants, decimals=1)
     if s.base_excess is not None:
-        r.quantity("base_excess_difference", d.be_difference, "mmol/L", decimals=1)
-        r.step(
+        r.computed(
+            "base_excess_difference",
+            d.be_difference,
             "Reported base excess minus computed SBE",
             "BE_reported - SBE_CLSI",
-            d.be_difference,
             "nccls1994",
-            output="base_excess_difference",
             unit="mmol/L",
+            decimals=1,
         )
         if w.fires("base_excess_differs"):
             r.finding(
@@ -1521,23 +1521,16 @@ def _metabolic_expected(w: _Work, *, acidosis: bool):
     r.step(
         f"Expected PaCO2 ({formula}; {alt})", formula, e.value, sources, output="expected_pco2", pressure=True
     )
-    r.pressure("expected_pco2_centre", e.value)
-    r.step(
-        "Expected PaCO2, centre of the band",
-        formula,
-        e.value,
-        sources,
-        output="expected_pco2_centre",
-        pressure=True,
+    r.computed(
+        "expected_pco2_centre", e.value, "Expected PaCO2, centre of the band", formula, sources, pressure=True
     )
     if acidosis:
-        r.pressure("expected_pco2_winters", e.value)
-        r.step(
+        r.computed(
+            "expected_pco2_winters",
+            e.value,
             "Winters' formula",
             "1.5 x HCO3 + 8",
-            e.value,
             "albert1967",
-            output="expected_pco2_winters",
             pressure=True,
         )
     return e
@@ -1616,13 +1609,13 @@ def _respiratory_primary(w: _Work, code: str) -> None:
     margin = d.margin
     f_h, f_ph, f_b = none_if_nan(d.f_h), none_if_nan(d.f_ph), none_if_nan(d.f_b)
     if f_h is not None:
-        r.put("fraction_acute_hco3", f_h, decimals=2)
-        r.step(
+        r.computed(
+            "fraction_acute_hco3",
+            f_h,
             "Fraction acute by the HCO3 rules",
             "f = (HCO3_chronic - HCO3) / (HCO3_chronic - HCO3_acute), default slopes",
-            f_h,
             ("fraction_acute_bands", "narins1980"),
-            output="fraction_acute_hco3",
+            decimals=2,
         )
     if acid:
         pr = d.ph_rules
@@ -1652,13 +1645,13 @@ def _respiratory_primary(w: _Work, code: str) -> None:
                 output="expected_ph_hh",
             )
         if f_ph is not None:
-            r.put("fraction_acute_ph", f_ph, decimals=2)
-            r.step(
+            r.computed(
+                "fraction_acute_ph",
+                f_ph,
                 "Fraction acute by the pH rules",
                 "f = [(7.40 - pH) - 0.003 x dPaCO2] / [(0.008 - 0.003) x dPaCO2]",
-                f_ph,
                 ("fraction_acute_bands", "berend2014"),
-                output="fraction_acute_ph",
+                decimals=2,
             )
         if w.fires("ph_rule_drift"):
             r.finding(
@@ -1670,23 +1663,23 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             )
     if f_b is not None:
         exp_b = d.hco3_on_baseline
-        r.quantity("expected_hco3_on_baseline", exp_b, "mmol/L", decimals=1)
-        r.step(
+        r.computed(
+            "expected_hco3_on_baseline",
+            exp_b,
             "HCO3 expected on the known baseline",
             "24 + 3.5 x (baseline - 40)/10 + 1 x (PaCO2 - baseline)/10 (or - 2 x (baseline - PaCO2)/10 "
             "below it)",
-            exp_b,
             ("narins1980", "berend2014"),
-            output="expected_hco3_on_baseline",
             unit="mmol/L",
+            decimals=1,
         )
-        r.put("fraction_acute_baseline", f_b, decimals=2)
-        r.step(
+        r.computed(
+            "fraction_acute_baseline",
+            f_b,
             "Fraction acute from the known baseline",
             "f = (PaCO2 - baseline) / (PaCO2 - 40), limited to 0-1",
-            f_b,
             "fraction_acute_bands",
-            output="fraction_acute_baseline",
+            decimals=2,
         )
     low_ref, high_ref = d.low_ref, d.high_ref
     chronicity = _code(d.chronicity)
@@ -1767,13 +1760,13 @@ def _concurrent_respiratory_chronicity(w: _Work, d: dict) -> None:
     r = w.r
     if w.d.concurrent_from_baseline:
         f = d["fraction_acute"]
-        r.put("fraction_acute_baseline", f, decimals=2)
-        r.step(
+        r.computed(
+            "fraction_acute_baseline",
+            f,
             "Fraction acute of the concurrent respiratory acidosis, from the known baseline",
             "f = (PaCO2 - baseline) / (PaCO2 - 40), limited to 0-1",
-            f,
             "fraction_acute_bands",
-            output="fraction_acute_baseline",
+            decimals=2,
         )
         return
     r.finding(
@@ -1795,62 +1788,62 @@ def _gap_values(w: _Work) -> dict | None:
         return None
     out = {}
     ag = d.anion_gap
-    r.quantity("anion_gap", ag, "mmol/L", decimals=1)
-    r.step(
+    r.computed(
+        "anion_gap",
+        ag,
         "Anion gap",
         "AG = Na - (Cl + HCO3); normal about 12",
-        ag,
         ("oh1977", "kraut2007"),
-        output="anion_gap",
         unit="mmol/L",
+        decimals=1,
     )
     out["ag"] = ag
     if s.k is not None:
         agk = d.anion_gap_with_k
-        r.quantity("anion_gap_with_k", agk, "mmol/L", decimals=1)
-        r.step(
+        r.computed(
+            "anion_gap_with_k",
+            agk,
             "Anion gap with potassium",
             "AG_K = Na + K - (Cl + HCO3); normal about 16",
-            agk,
             ("oh1977", "kraut2007"),
-            output="anion_gap_with_k",
             unit="mmol/L",
+            decimals=1,
         )
     if s.albumin is not None:
         agc = d.anion_gap_corrected
-        r.quantity("anion_gap_corrected", agc, "mmol/L", decimals=1)
-        r.step(
+        r.computed(
+            "anion_gap_corrected",
+            agc,
             f"Anion gap corrected for albumin (normal albumin {s.normal_albumin:.1f} g/dL)",
             "AG_corr = AG + 2.5 x (normal albumin - albumin) [g/dL]",
-            agc,
             ("figge1998", "kraut2007"),
-            output="anion_gap_corrected",
             unit="mmol/L",
+            decimals=1,
         )
     used = d.ag_used
     out["used"] = used
     which = "albumin-corrected AG" if s.albumin is not None else "AG"
     if d.dr_given:
         dr = d.delta_ratio
-        r.put("delta_ratio", dr, decimals=2)
-        r.step(
+        r.computed(
+            "delta_ratio",
+            dr,
             f"Delta ratio (from the {which})",
             "delta ratio = (AG - 12) / (24 - HCO3)",
-            dr,
             "brandis",
-            output="delta_ratio",
+            decimals=2,
         )
         r.put("delta_ratio_band", d.delta_ratio_band)
         out["dr"], out["band"] = dr, d.delta_ratio_band
     dg = d.delta_gap
-    r.quantity("delta_gap", dg, "mmol/L", decimals=1)
-    r.step(
+    r.computed(
+        "delta_gap",
+        dg,
         f"Delta gap (from the {which})",
         "delta gap = (AG - 12) - (24 - HCO3)",
-        dg,
         "brandis",
-        output="delta_gap",
         unit="mmol/L",
+        decimals=1,
     )
     r.put("delta_gap_reading", d.delta_gap_reading)
     out["dg"] = dg
@@ -1870,26 +1863,26 @@ def _osmolality(w: _Work) -> None:
     if not d.osm_calc_given:
         return
     calc = d.osmolality_calculated
-    r.quantity("osmolality_calculated", calc, "mOsm/kg", decimals=0)
-    r.step(
+    r.computed(
+        "osmolality_calculated",
+        calc,
         "Calculated osmolality (SI)",
         "2 x Na + glucose + urea (mmol/L)" + (" (urea from BUN)" if s.urea_from == "bun" else ""),
-        calc,
         "ccjm_osmol",
-        output="osmolality_calculated",
         unit="mOsm/kg",
+        decimals=0,
     )
     if not d.osm_gap_given:
         return
     gap = d.osmolar_gap
-    r.quantity("osmolar_gap", gap, "mOsm/kg", decimals=0)
-    r.step(
+    r.computed(
+        "osmolar_gap",
+        gap,
         "Osmolar gap",
         "measured - calculated osmolality; normal below 10",
-        gap,
         "ccjm_osmol",
-        output="osmolar_gap",
         unit="mOsm/kg",
+        decimals=0,
     )
     if w.fires("osmolar_gap_raised"):
         r.finding(
@@ -1946,25 +1939,24 @@ def _gaps(w: _Work) -> None:
         return
     if d.winters_concurrent:
         e = d.winters
-        r.pressure("expected_pco2_winters", e.value)
-        r.step(
+        r.computed(
+            "expected_pco2_winters",
+            e.value,
             f"Winters' formula for the concurrent metabolic acidosis (band {w.p(e.low)} to {w.p(e.high)})",
             "1.5 x HCO3 + 8 +/- 2",
-            e.value,
             "albert1967",
-            output="expected_pco2_winters",
             pressure=True,
         )
     before = d.hco3_before_gap
     if d.before_shown:
-        r.quantity("hco3_before_anion_gap", before, "mmol/L", decimals=1)
-        r.step(
+        r.computed(
+            "hco3_before_anion_gap",
+            before,
             "HCO3 before the unmeasured acid",
             "HCO3 + (AG - 12)",
-            before,
             "brandis",
-            output="hco3_before_anion_gap",
             unit="mmol/L",
+            decimals=1,
         )
     kind = d.alkalosis_from_gap
     if kind == "hco3_before_gap":
@@ -2012,23 +2004,21 @@ def _copenhagen(w: _Work) -> None:
     if not d.copenhagen:
         return
     if w.primary == MET_ACID:
-        r.pressure("expected_pco2_copenhagen", d.cph_pco2)
-        r.step(
+        r.computed(
+            "expected_pco2_copenhagen",
+            d.cph_pco2,
             "Expected PaCO2 by the SBE rule (metabolic acidosis)",
             "PaCO2 = 40 + SBE",
-            d.cph_pco2,
             ("schlichtig1998", "berend2018"),
-            output="expected_pco2_copenhagen",
             pressure=True,
         )
     elif w.primary == MET_ALK:
-        r.pressure("expected_pco2_copenhagen", d.cph_pco2)
-        r.step(
+        r.computed(
+            "expected_pco2_copenhagen",
+            d.cph_pco2,
             "Expected PaCO2 by the SBE rule (metabolic alkalosis)",
             "PaCO2 = 40 + 0.6 x SBE",
-            d.cph_pco2,
             ("schlichtig1998", "berend2018"),
-            output="expected_pco2_copenhagen",
             pressure=True,
         )
     if w.resp:
@@ -2110,24 +2100,24 @@ def _stewart(w: _Work) -> None:
         )
     else:
         na_cl = d.na_cl_effect
-        r.quantity("na_cl_effect", na_cl, mq, decimals=1)
-        r.step(
+        r.computed(
+            "na_cl_effect",
+            na_cl,
             "Na-Cl effect (Story 2016; albumin not given, so no full partition)",
             "Na - Cl - 35",
-            na_cl,
             "story2016",
-            output="na_cl_effect",
             unit=mq,
+            decimals=1,
         )
         if s.lactate is not None:
-            r.quantity("lactate_effect", -s.lactate, mq, decimals=1)
-            r.step(
+            r.computed(
+                "lactate_effect",
+                -s.lactate,
                 "Lactate effect (Story 2016)",
                 "- lactate",
-                -s.lactate,
                 "story2016",
-                output="lactate_effect",
                 unit=mq,
+                decimals=1,
             )
     if d.sig_given:
         assumed = []
@@ -2333,13 +2323,12 @@ def _ventilation(w: _Work) -> None:
             if retainer
             else "about 75 mmHg in previously normal people (no chronic retention evident)"
         )
-    r.pressure("pco2_consciousness_threshold", threshold)
-    r.step(
+    r.computed(
+        "pco2_consciousness_threshold",
+        threshold,
         "PaCO2 above which consciousness commonly falls",
         formula,
-        threshold,
         "co2_narcosis",
-        output="pco2_consciousness_threshold",
         pressure=True,
     )
     if w.fires("pco2_above_consciousness_threshold"):
@@ -2363,13 +2352,12 @@ def _pco2_target(w: _Work) -> None:
     p, h = s.pco2, w.hco3
     floor = none_if_nan(d.floor)
     if floor is not None:
-        r.pressure("pco2_alkalaemia_floor", floor)
-        r.step(
+        r.computed(
+            "pco2_alkalaemia_floor",
+            floor,
             "PaCO2 at which a quick fall would bring the pH to 7.45 (present HCO3, acute rule)",
             "P = (HCO3 - 0.1 x PaCO2) / (0.0307 x 10^(7.45 - 6.1) - 0.1)",
-            floor,
             ("henderson1908", "narins1980", "posthypercapnic_alkalosis"),
-            output="pco2_alkalaemia_floor",
             pressure=True,
         )
     target, basis, source = d.pco2_target, d.pco2_target_basis, d.baseline_pco2_source
@@ -2396,14 +2384,13 @@ def _pco2_target(w: _Work) -> None:
         src = ("albert1967",) if w.primary == MET_ACID else ("berend2014",)
     else:
         est, lo, hi = d.baseline_estimated, d.baseline_low, d.baseline_high
-        r.pressure("baseline_pco2_estimated", est)
-        r.step(
+        r.computed(
+            "baseline_pco2_estimated",
+            est,
             "Usual (chronic) PaCO2 estimated from the HCO3 (an estimate)",
             "B = 40 + (HCO3 - 24 - (PaCO2 - 40)/10) / 0.25, limited to 40..PaCO2 (chronic 3.5 and acute 1 "
             "per 10 mmHg inverted)",
-            est,
             ("narins1980", "fraction_acute_bands"),
-            output="baseline_pco2_estimated",
             pressure=True,
         )
         r.pressure_range("baseline_pco2_range", lo, hi)
@@ -2446,8 +2433,7 @@ def _pco2_target(w: _Work) -> None:
             formula = "target = 45 mmHg (no chronic retention evident)"
         src = ("posthypercapnic_alkalosis", "narins1980")
     w.pco2_target, w.target_basis = target, basis
-    r.pressure("pco2_target", target)
-    r.step("Safe PaCO2 target for ventilation", formula, target, src, output="pco2_target", pressure=True)
+    r.computed("pco2_target", target, "Safe PaCO2 target for ventilation", formula, src, pressure=True)
     r.put("baseline_pco2_source", source)
     r.put("pco2_target_basis", basis)
     label = "estimated" if source == "estimated" and basis != "metabolic_compensation" else ""
@@ -2520,38 +2506,34 @@ def _oxygenation(w: _Work) -> None:
             pressure=True,
         )
     pio2 = d.pio2
-    r.pressure("pio2", pio2)
-    r.step("Inspired PO2", "PIO2 = FiO2 x (PB - 47)", pio2, "alveolar_gas_1946", output="pio2", pressure=True)
+    r.computed("pio2", pio2, "Inspired PO2", "PIO2 = FiO2 x (PB - 47)", "alveolar_gas_1946", pressure=True)
     pao2_a = d.pao2_alveolar
     pao2_full = oxygenation.alveolar_po2_full(fio2_fraction=s.fio2, paco2_mmhg=s.pco2, pb_mmhg=pb, rq=s.rq)
-    r.pressure("pao2_alveolar", pao2_a)
-    r.step(
+    r.computed(
+        "pao2_alveolar",
+        pao2_a,
         f"Alveolar PO2 (simplified equation, R {s.rq:g})",
         "PAO2 = FiO2 x (PB - 47) - PaCO2 / R",
-        pao2_a,
         "alveolar_gas_1946",
-        output="pao2_alveolar",
         pressure=True,
     )
-    r.pressure("pao2_alveolar_full", pao2_full)
-    r.step(
+    r.computed(
+        "pao2_alveolar_full",
+        pao2_full,
         "Alveolar PO2 (full equation)",
         "PAO2 = PIO2 - PaCO2 x (FiO2 + (1 - FiO2) / R)",
-        pao2_full,
         "alveolar_gas_1946",
-        output="pao2_alveolar_full",
         pressure=True,
     )
     aa = d.a_a_gradient
-    r.pressure("a_a_gradient", aa)
-    r.step("A-a gradient", "A-a = PAO2 - PaO2", aa, "alveolar_gas_1946", output="a_a_gradient", pressure=True)
+    r.computed("a_a_gradient", aa, "A-a gradient", "A-a = PAO2 - PaO2", "alveolar_gas_1946", pressure=True)
     ratio = none_if_nan(d.a_over_A)
     if ratio is not None:
-        r.put("a_over_A", ratio, decimals=2)
-        r.step("a/A ratio", "PaO2 / PAO2 (normal above 0.75)", ratio, "gilbert1974", output="a_over_A")
+        r.computed(
+            "a_over_A", ratio, "a/A ratio", "PaO2 / PAO2 (normal above 0.75)", "gilbert1974", decimals=2
+        )
     pf = d.pf_ratio
-    r.quantity("pf_ratio", pf, "mmHg", decimals=0)
-    r.step("P/F ratio", "PaO2 [mmHg] / FiO2", pf, "berlin2012", output="pf_ratio", unit="mmHg")
+    r.computed("pf_ratio", pf, "P/F ratio", "PaO2 [mmHg] / FiO2", "berlin2012", unit="mmHg", decimals=0)
     if w.fires("po2_above_alveolar"):
         r.finding(
             "po2_above_alveolar",
@@ -2562,13 +2544,12 @@ def _oxygenation(w: _Work) -> None:
     # age-expected upper limit and category
     if s.age is not None:
         upper = d.a_a_expected_upper
-        r.pressure("a_a_expected_upper", upper)
-        r.step(
+        r.computed(
+            "a_a_expected_upper",
+            upper,
             "Upper limit of the A-a gradient for age (breathing air)",
             "age / 4 + 4 mmHg",
-            upper,
             "aa_age_rule",
-            output="a_a_expected_upper",
             pressure=True,
         )
     category = d.a_a_category
@@ -2652,33 +2633,31 @@ def _temperature(w: _Work) -> None:
     t = s.temperature
     ph_t = temperature.ph_at_temperature_rosenthal(ph=s.ph, temperature_c=t)
     pco2_t = temperature.pco2_at_temperature(pco2_mmhg=s.pco2, temperature_c=t)
-    r.put("ph_at_temperature", ph_t, decimals=2)
-    r.step(
+    r.computed(
+        "ph_at_temperature",
+        ph_t,
         f"pH at {t:.1f} degC (Rosenthal)",
         "pH_T = pH37 + (T - 37) x (-0.0147 + 0.0065 x (7.40 - pH37))",
-        ph_t,
         "rosenthal1948",
-        output="ph_at_temperature",
+        decimals=2,
     )
-    r.pressure("pco2_at_temperature", pco2_t)
-    r.step(
+    r.computed(
+        "pco2_at_temperature",
+        pco2_t,
         f"PCO2 at {t:.1f} degC",
         "PCO2_T = PCO2_37 x 10^(0.019 x (T - 37))",
-        pco2_t,
         "bradley1956",
-        output="pco2_at_temperature",
         pressure=True,
     )
     po2_t = None
     if s.po2 is not None:
         po2_t = temperature.po2_at_temperature_severinghaus(po2_mmhg=s.po2, temperature_c=t)
-        r.pressure("po2_at_temperature", po2_t)
-        r.step(
+        r.computed(
+            "po2_at_temperature",
+            po2_t,
             f"PO2 at {t:.1f} degC (Severinghaus 1979 eq 3, single step)",
             "PO2_T = PO2_37 x exp((T - 37) x (0.058 / (0.243 x (PO2/100)^3.88 + 1) + 0.013))",
-            po2_t,
             "severinghaus1979",
-            output="po2_at_temperature",
             pressure=True,
         )
     ph_ok = PH_LOW <= ph_t <= PH_HIGH

@@ -102,6 +102,29 @@ class Report:
             entry["inputs"] = inputs
         self.steps.append(entry)
 
+    def computed(
+        self,
+        name: str,
+        value,
+        label: str,
+        formula: str,
+        source: str | tuple[str, ...],
+        *,
+        unit: str | None = None,
+        pressure: bool = False,
+        decimals: int | None = None,
+        inputs: dict | None = None,
+    ) -> None:
+        """Put output ``name`` and the step that explains it, the usual pair: a pressure in mmHg
+        (``pressure=True``), a quantity (``unit``) or a plain value."""
+        if pressure:
+            self.pressure(name, value, decimals=decimals)
+        elif unit is not None:
+            self.quantity(name, value, unit, decimals=decimals)
+        else:
+            self.put(name, value, decimals=decimals)
+        self.step(label, formula, value, source, output=name, pressure=pressure, unit=unit, inputs=inputs)
+
     def finding(self, code: str, severity: str, text: str) -> None:
         if not _CODE.match(code):
             raise ValueError(f"finding code {code!r} is not snake_case")
