@@ -11,6 +11,9 @@
 ``given``           True where a value is present (not NaN; ``None`` counts as absent)
 ``not_``            logical not for a bool or a boolean array
 ``is_array``        True when any argument is a numpy array
+``require``         ``errors.require_number`` for a scalar; the same check on every element of an array
+``elementwise``     marks a validated function that takes arrays, so ``each`` calls it once
+``each``            a validated function where a mask holds, NaN elsewhere (scalars or arrays)
 ``NAN``             the "not given" marker of the array-polymorphic rules
 ==================  ====================================================================================
 
@@ -40,6 +43,8 @@ from __future__ import annotations
 
 import math
 import sys
+
+from .errors import require_number
 
 NAN = math.nan
 
@@ -134,21 +139,69 @@ def not_(x):
     return not x
 
 
-def each(func, mask, **kwargs):
-    """``func(**kwargs)`` where ``mask`` holds and NaN elsewhere; row by row when anything is an array.
+def elementwise(func):
+    """Mark a validated domain function as element-wise: it takes numpy arrays as well as floats.
 
-    For the scalar, validated domain functions of other modules (alveolar gas, A-a limit by age): with arrays
-    they are called with Python floats, once per distinct set of arguments, so the batch path runs exactly
-    the scalar code.
+    Such a function checks its arguments with :func:`require` and computes with operators only, so
+    :func:`each` calls it once on all the rows it applies to instead of once per row.
+    """
+    func.elementwise = True
+    return func
+
+
+def require(field, value, *, low, high, unit="", hint=""):
+    """:func:`tidewell.errors.require_number` for a scalar; for an array, the same check of every element.
+
+    An array passes unchanged (as floats) when every element is a finite number in ``[low, high]``; else the
+    first element that fails raises the very error the scalar check gives for it.
+
+    >>> require("rq", 0.8, low=0.5, high=1.5)
+    0.8
+    """
+    if not is_array(value):
+        return require_number(field, value, low=low, high=high, unit=unit, hint=hint)
+    np = _numpy()
+    if value.dtype.kind not in "fiu":
+        bad = np.ones(value.shape, dtype=bool)
+    else:
+        value = value.astype(float, copy=False)
+        bad = ~((low <= value) & (value <= high))  # NaN and infinities fail too
+    if bad.any():
+        first = value.reshape(-1)[np.flatnonzero(bad.reshape(-1))[0]]
+        require_number(
+            field, first.item() if hasattr(first, "item") else first, low=low, high=high, unit=unit, hint=hint
+        )
+    return value
+
+
+def each(func, mask, **kwargs):
+    """``func(**kwargs)`` where ``mask`` holds and NaN elsewhere.
+
+    For the validated domain functions of other modules (alveolar gas, A-a limit by age), which raise on
+    input outside their range, so they must only see the rows ``mask`` selects. With arrays, a function
+    marked :func:`elementwise` is called once on the selected elements (its checks and its formula run on
+    arrays, with the same float arithmetic as the scalar call); any other function is called with Python
+    floats, once per distinct set of arguments, so the batch path runs exactly the scalar code.
     """
     if not is_array(mask, *kwargs.values()):
         return func(**kwargs) if mask else NAN
     np = _numpy()
     shape = np.broadcast_shapes(*(np.shape(v) for v in (mask, *kwargs.values())))
-    rows = np.flatnonzero(np.broadcast_to(mask, shape)).tolist()
+    rows = np.flatnonzero(np.broadcast_to(mask, shape))
+    out = np.full(shape, np.nan)
+    if not len(rows):
+        return out
+    if getattr(func, "elementwise", False):
+        selected = {
+            name: np.broadcast_to(v, shape).reshape(-1)[rows] if isinstance(v, np.ndarray) else v
+            for name, v in kwargs.items()
+        }
+        out.reshape(-1)[rows] = func(**selected)
+        return out
+    rows = rows.tolist()
     names = list(kwargs)
     columns = [
-        np.broadcast_to(v, shape)[rows].tolist() if isinstance(v, np.ndarray) else [v] * len(rows)
+        np.broadcast_to(v, shape).reshape(-1)[rows].tolist() if isinstance(v, np.ndarray) else [v] * len(rows)
         for v in kwargs.values()
     ]
     results = []
@@ -158,8 +211,7 @@ def each(func, mask, **kwargs):
         if value is None:
             value = cache[key] = func(**dict(zip(names, key, strict=True)))
         results.append(value)
-    out = np.full(shape, np.nan)
-    out[rows] = results
+    out.reshape(-1)[rows] = results
     return out
 
 

@@ -38,6 +38,7 @@ import sys
 import time
 from collections import Counter
 from dataclasses import dataclass, field
+from itertools import compress, repeat
 from types import SimpleNamespace
 
 import numpy as np
@@ -88,7 +89,11 @@ class TableError(ValueError):
 
 @dataclass
 class Column:
-    """One input column: the cell texts, and per cell its state, number and unit (the column's by default)."""
+    """One input column: the cell texts, and per cell its state, number and unit (the column's by default).
+
+    Cells are read once per distinct text: ``code[i]`` is the index of row ``i``'s text in ``distinct``, and
+    the state, number and unit of each distinct text are looked up through it.
+    """
 
     key: str
     header: str
@@ -97,7 +102,10 @@ class Column:
     state: np.ndarray = None
     number: np.ndarray = None
     own_units: dict = None  #: row -> the unit written in that cell (where it differs from none)
-    unit_array: np.ndarray = None
+    unit_array: np.ndarray = None  #: per row, the cell's unit, else the column's ("" for none); str
+    code: np.ndarray = None  #: per row, the index of its text in ``distinct``
+    distinct: list = None  #: the distinct cell texts, in the order first seen
+    typed: list = None  #: per distinct text, its value as a request carries it (filled as rows need it)
 
 
 @dataclass
@@ -105,18 +113,25 @@ class Table:
     """A CSV file of samples: input columns by key, every column's text, and where each row came from."""
 
     header: list[str]
-    rows: list[list[str]]
     columns: dict[str, Column]
     units_row: list[str] | None = None
     line: list[int] = field(default_factory=list)
     warnings: list[str] = field(default_factory=list)
-    #: every column's cells (tuples), as read
+    #: every column's cells (lists), as read
     by_column: list = field(default_factory=list)
     #: True when no cell can hold a comma, a quote or a line break (a comma-separated file without quotes)
     plain: bool = False
+    #: for a plain file, each row's line as it was (its cells joined by commas); else None
+    texts: list[str] | None = None
+    n: int = 0
 
     def __len__(self) -> int:
-        return len(self.rows)
+        return self.n
+
+    @property
+    def rows(self) -> list[list[str]]:
+        """Every row's cells (built on request: the batch itself works on columns)."""
+        return [list(row) for row in zip(*self.by_column, strict=True)] if self.n else []
 
 
 def read_table(text: str) -> Table:
@@ -132,39 +147,107 @@ def read_table(text: str) -> Table:
         return _read_table(text)
 
 
+def _kept(cells) -> bool:
+    """The csv reader's rows worth reading: not empty and not only blanks."""
+    return any(cells) and bool(cells[0].strip() or "".join(cells).strip())
+
+
+#: a line that starts with a blank or a comma, or is empty (``\s`` is ``str.isspace``)
+_STARTS_BLANK = re.compile(r"^[\s,]", re.MULTILINE).search
+
+
+def _plain_lines(text: str, dialect):
+    """(line numbers, lines) of a comma-separated text without quotes whose rows all have as many cells as
+    its first; None for any other text (the csv module reads it). Each line is then its cells joined by
+    commas, exactly as the csv reader would split it."""
+    if dialect.delimiter != "," or dialect.skipinitialspace or '"' in text:
+        return None
+    if "\r" in text:
+        text = text.replace("\r\n", "\n")
+        if "\r" in text:
+            return None
+    lines = text.split("\n")
+    # the rows the csv reader keeps: a line that starts with a comma or a blank is checked in full
+    if _STARTS_BLANK(text):
+        numbers = [
+            n
+            for n, line in enumerate(lines, 1)
+            if line and (not (line[0] == "," or line[0].isspace()) or line.replace(",", "").strip())
+        ]
+    else:  # no line starts with one (nor is empty), except an end after the last line break
+        numbers = list(range(1, len(lines) + (0 if lines[-1] else -1) + 1))
+    if not numbers:
+        return [], []
+    kept = [lines[n - 1] for n in numbers]
+    commas = kept[0].count(",")
+    if list(map(str.count, kept, repeat(","))).count(commas) != len(kept):
+        return None
+    return numbers, kept
+
+
 def _read_table(text: str) -> Table:
     sample = text[:20_000]
     try:
         dialect = csv.Sniffer().sniff(sample, delimiters=",;\t")
     except csv.Error:
         dialect = csv.excel
-    reader = csv.reader(io.StringIO(text), dialect)
-    lines = [
-        (reader.line_num, row) for row in reader if any(row) and (row[0].strip() or "".join(row).strip())
-    ]
-    if not lines:
-        raise TableError("the file is empty: the first line must name the columns (ph, pco2[kPa], ...)")
-    header = [cell.strip() for cell in lines[0][1]]
-    body = lines[1:]
+    plain_lines = _plain_lines(text, dialect)
+    warnings_: list[str] = []
+    if plain_lines is not None:
+        numbers, kept = plain_lines
+        if not kept:
+            raise TableError("the file is empty: the first line must name the columns (ph, pco2[kPa], ...)")
+        header_cells = kept[0].split(",")
+        first = kept[1].split(",") if len(kept) > 1 else None
+    else:
+        reader = csv.reader(io.StringIO(text), dialect)
+        try:
+            lines = [(reader.line_num, row) for row in reader if _kept(row)]
+        except csv.Error as exc:  # e.g. a carriage return alone inside a line
+            raise TableError(
+                f"line {reader.line_num} cannot be read as CSV ({exc}); save the file again as CSV"
+            ) from None
+        if not lines:
+            raise TableError("the file is empty: the first line must name the columns (ph, pco2[kPa], ...)")
+        header_cells = lines[0][1]
+        first = lines[1][1] if len(lines) > 1 else None
+    header = [cell.strip() for cell in header_cells]
+    width = len(header)
     keys, head_units, bases, warnings = _header(header)
     units_row = None
-    if body and _is_units_row(body[0][1], keys):
-        units_row = [c.strip() for c in body[0][1]]
-        body = body[1:]
+    skip = 1
+    if first is not None and _is_units_row(first, keys):
+        units_row = [c.strip() for c in first]
+        skip = 2
         for i, cell in enumerate(units_row):
             if i < len(keys) and keys[i] is not None and cell and head_units[i] is None:
                 head_units[i] = canonical_unit(cell)
-    width = len(header)
-    rows = [row if len(row) == width else (row + [""] * (width - len(row)))[:width] for _, row in body]
-    for n, row in body:
-        if len(row) > width and any(c.strip() for c in row[width:]):
-            warnings.append(f"line {n}: {len(row) - width} cell(s) beyond the last named column are ignored")
-    by_column = list(zip(*rows, strict=False)) if rows else [()] * width
+    if plain_lines is not None:
+        texts = kept[skip:]
+        line_numbers = numbers[skip:]
+        n = len(texts)
+        cells = ",".join(texts).split(",") if n else []
+        by_column = [cells[j::width] for j in range(width)] if n else [[] for _ in range(width)]
+    else:
+        body = lines[skip:]
+        texts = None
+        line_numbers = [number for number, _ in body]
+        n = len(body)
+        rows = [row if len(row) == width else (row + [""] * (width - len(row)))[:width] for _, row in body]
+        for number, row in body:
+            if len(row) > width and any(c.strip() for c in row[width:]):
+                warnings_.append(
+                    f"line {number}: {len(row) - width} cell(s) beyond the last named column are ignored"
+                )
+        by_column = (
+            [list(column) for column in zip(*rows, strict=True)] if rows else [[] for _ in range(width)]
+        )
+    warnings.extend(warnings_)
     columns = {}
     for i, key in enumerate(keys):
         if key is None:
             continue
-        columns[key] = Column(key, header[i], head_units[i], list(by_column[i]))
+        columns[key] = Column(key, header[i], head_units[i], by_column[i])
     for required in ("ph", "pco2"):
         if required not in columns:
             close = difflib.get_close_matches(required, bases, n=1, cutoff=0.6)
@@ -173,13 +256,13 @@ def _read_table(text: str) -> Table:
                 f"the file has no '{required}' column{hint}; columns found: {', '.join(header) or 'none'}"
             )
     plain = dialect.delimiter == "," and '"' not in text
-    table = Table(header, rows, columns, units_row, [n for n, _ in body], warnings, by_column, plain)
+    table = Table(header, columns, units_row, line_numbers, warnings, by_column, plain, texts, n)
     for column in columns.values():
         if column.unit is None:
             column.unit = IMPLIED_UNITS.get(column.key)
         _parse_column(column)
         f = FIELDS[column.key]
-        if f.kind in ("quantity", "concentration") and column.unit is None and rows:
+        if f.kind in ("quantity", "concentration") and column.unit is None and n:
             if not column.own_units and (column.state == _OK).any():
                 example = f.options.get("unit", "mmol/L")
                 raise TableError(
@@ -241,46 +324,54 @@ def _is_units_row(row: list[str], keys: list) -> bool:
 _BARE_UNITS = {"age": {"years", "year", "yrs", "yr", "y"}}
 
 
+def _factorize(cells: list[str]) -> tuple[np.ndarray, list[str]]:
+    """(per cell the index of its text among the distinct texts, the distinct texts in first-seen order)."""
+    index = {text: i for i, text in enumerate(dict.fromkeys(cells))}
+    code = np.fromiter(map(index.__getitem__, cells), dtype=np.intp, count=len(cells))
+    return code, list(index)
+
+
+def _read_cell(text: str) -> tuple[int, float, str | None]:
+    """(state, number or NaN, unit written in the cell or None) of one number cell."""
+    if not text:
+        return _ABSENT, math.nan, None
+    try:
+        x = float(text)
+    except ValueError:
+        s, x, u = split_cell(text)
+        return s, (math.nan if x is None else x), u
+    if math.isfinite(x):
+        return _OK, x, None
+    return (_ABSENT if text.strip().casefold() in EMPTY else _BAD), math.nan, None
+
+
 def _parse_column(column: Column) -> None:
-    n = len(column.cells)
+    """Each distinct cell text read once (a column of 100,000 gases holds a few thousand at most)."""
     kind = FIELDS[column.key].kind
     if column.unit is not None and column.unit.casefold() in _BARE_UNITS.get(column.key, ()):
         column.unit = None
-    state = np.zeros(n, dtype=np.int8)
-    number = np.full(n, np.nan)
-    own: dict[int, str] = {}
+    code, distinct = _factorize(column.cells)
+    column.code, column.distinct = code, distinct
+    default_unit = column.unit or ""
     if kind in ("choice", "flag"):
-        for i, text in enumerate(column.cells):
-            state[i] = _ABSENT if text.strip().casefold() in EMPTY else _OK
-        column.state, column.number, column.own_units = state, number, {}
-        return
-    try:  # the common case: every cell a plain number or empty
-        number[:] = [float(c) if c else math.nan for c in column.cells]
-        given = ~np.isnan(number)  # not empty, and not "nan" (which means "not given")
-        if not np.isfinite(number[given]).all():
-            raise ValueError
-        state[given] = _OK
-    except (ValueError, TypeError):
-        state[:] = _ABSENT
-        number[:] = np.nan
-        for i, text in enumerate(column.cells):
-            if not text:
-                continue
-            try:
-                x = float(text)
-            except ValueError:
-                s, x, u = split_cell(text)
-                state[i] = s
-                if x is not None:
-                    number[i] = x
-                if u is not None:
-                    own[i] = u
-                continue
-            if math.isfinite(x):
-                state[i], number[i] = _OK, x
-            else:
-                state[i] = _ABSENT if text.strip().casefold() in EMPTY else _BAD
-    column.state, column.number, column.own_units = state, number, own
+        states = [_ABSENT if text.strip().casefold() in EMPTY else _OK for text in distinct]
+        numbers = [math.nan] * len(distinct)
+        cell_units = [None] * len(distinct)
+    else:
+        read = [_read_cell(text) for text in distinct]
+        states = [s for s, _, _ in read]
+        numbers = [x for _, x, _ in read]
+        cell_units = [u for _, _, u in read]
+    column.state = np.array(states, dtype=np.int8)[code] if distinct else np.zeros(0, dtype=np.int8)
+    column.number = np.array(numbers, dtype=float)[code] if distinct else np.zeros(0)
+    own: dict[int, str] = {}
+    with_unit = [k for k, u in enumerate(cell_units) if u is not None]
+    unit_text = np.array([default_unit if u is None else u for u in cell_units] or [""], dtype=str)
+    column.unit_array = unit_text[code] if distinct else np.zeros(0, dtype=str)
+    if with_unit:
+        rows = np.flatnonzero(np.isin(code, with_unit)).tolist()
+        own = dict(zip(rows, column.unit_array[rows].tolist(), strict=True))
+    column.own_units = own
 
 
 # -- one row as a request ---------------------------------------------------------------------------------
@@ -288,7 +379,14 @@ def _parse_column(column: Column) -> None:
 
 def _cell_value(column: Column, i: int):
     """The value of one cell as a blood_gas request carries it (None when not given)."""
-    return typed_value(column.key, column.cells[i], column.unit)
+    if column.typed is None:
+        column.typed = [None] * len(column.distinct)
+    k = int(column.code[i])
+    value = column.typed[k]
+    if value is None:
+        value = column.typed[k] = (typed_value(column.key, column.cells[i], column.unit),)
+    value = value[0]
+    return dict(value) if isinstance(value, dict) else value
 
 
 def row_inputs(table: Table, i: int) -> dict:
@@ -316,30 +414,26 @@ def _read_arrays(table: Table, rows: np.ndarray):
         if column is None:
             state = np.zeros(n, dtype=np.int8)
             number = np.full(n, np.nan)
-            cell_units = np.full(n, "", dtype=object)
-            texts = None
+            unit_of[f.key] = np.full(n, "", dtype=str)
+            code, words = np.zeros(n, dtype=np.intp), [""]
         else:
             state, number = column.state[rows], column.number[rows]
-            if column.unit_array is None:
-                column.unit_array = np.full(len(column.cells), column.unit or "", dtype=object)
-                for i, u in column.own_units.items():
-                    column.unit_array[i] = u
-            cell_units = column.unit_array[rows]
-            texts = [column.cells[i] for i in rows.tolist()] if f.kind in ("choice", "flag") else None
+            unit_of[f.key] = column.unit_array[rows]
+            code = column.code[rows]
+            if f.kind in ("choice", "flag"):
+                words = [t.strip().casefold() for t in column.distinct] or [""]
         present, okcell = state != _ABSENT, state == _OK
         ok &= state != _BAD
-        unit_of[f.key] = cell_units.astype(str)
         default = o.get("default")
         if f.kind == "choice":
-            words = np.array([t.strip().casefold() if t is not None else "" for t in texts or [""] * n])
-            good = np.isin(words, o["choices"])
+            # each distinct text once, then per row through its code
+            good = np.array([w in o["choices"] for w in words])[code]
             ok &= ~present | good
-            value = np.where(present, words, default)
+            value = np.where(present, np.array(words)[code], default)
         elif f.kind == "flag":
-            words = [t.strip().casefold() if t is not None else "" for t in texts or [""] * n]
-            truth = np.array([w in TRUE for w in words])
-            good = np.array([w in TRUE or w in FALSE for w in words])
-            present = np.array([w not in EMPTY for w in words])
+            truth = np.array([w in TRUE for w in words])[code]
+            good = np.array([w in TRUE or w in FALSE for w in words])[code]
+            present = np.array([w not in EMPTY for w in words])[code]
             ok &= ~present | good
             value = present & truth
         else:
@@ -593,20 +687,35 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     urgent = np.full(m, "", dtype=object)
     if slots:
         matrix = np.stack([at for _, _, at in slots], axis=1)  # rows x slots
-        names = [code for code, _, _ in slots]
-        is_urgent = [u for _, u, _ in slots]
-        # rows share few combinations of findings: build each combination's text once
-        combos, which = np.unique(np.packbits(matrix, axis=1), axis=0, return_inverse=True)
-        texts, urgent_texts = [], []
-        for packed in combos:
-            chosen = np.flatnonzero(np.unpackbits(packed)[: len(names)]).tolist()
-            texts.append(" ".join(names[k] for k in chosen))
-            urgent_texts.append(" ".join(names[k] for k in chosen if is_urgent[k]))
-        which = which.reshape(-1)
-        listed = np.array(texts, dtype=object)[which]
-        urgent = np.array(urgent_texts, dtype=object)[which]
+        listed[:] = _joined(matrix, [code for code, _, _ in slots])
+        chosen = [k for k, (_, is_urgent, _) in enumerate(slots) if is_urgent]
+        if chosen:
+            urgent[:] = _joined(matrix[:, chosen], [slots[k][0] for k in chosen])
     put("findings", listed)
     put("urgent_findings", urgent)
+
+
+def _joined(matrix: np.ndarray, names: list[str], group: int = 16) -> list[str]:
+    """Per row of the boolean ``matrix`` (rows x names), the names it marks, space separated, in order.
+
+    Rows rarely share a whole combination, but within a group of 16 names they do: each group's distinct
+    combinations are joined once (keyed by their bits), then each row joins its few group texts.
+    """
+    m, k = matrix.shape
+    if not m:
+        return []
+    parts = []
+    for start in range(0, k, group):
+        block = np.zeros((m, 64), dtype=bool)
+        block[:, : min(group, k - start)] = matrix[:, start : start + group]
+        key = np.packbits(block, axis=1, bitorder="little").view(np.uint64).reshape(-1)
+        _, first, which = np.unique(key, return_index=True, return_inverse=True)
+        chunk = names[start : start + group]
+        texts = [" ".join(compress(chunk, row)) for row in matrix[first, start : start + group].tolist()]
+        parts.append(np.array(texts, dtype=object)[which.reshape(-1)].tolist())
+    if len(parts) == 1:
+        return parts[0]
+    return [" ".join(filter(None, texts)) for texts in zip(*parts, strict=True)]
 
 
 def interpret_table(table: Table, *, pressure_unit: str = "mmHg", progress=None) -> Audit:
@@ -646,16 +755,23 @@ def _unit_label(unit: str | None, pressure_unit: str) -> str | None:
 def _format(values: np.ndarray, present: np.ndarray, unit, decimals, pressure_unit: str, full: bool) -> list:
     if unit == "pressure" and decimals is None:
         decimals = 2 if pressure_unit == "kPa" else 1
+    if decimals is None:  # words: the value where present, else an empty cell
+        return np.where(present, values, "").tolist()
     out = np.full(len(values), "", dtype=object)
     at = np.flatnonzero(present)
     if not len(at):
         return out.tolist()
     shown = values[at]
-    if decimals is None:
-        out[at] = shown
+    numbers = shown.astype(float)
+    # ``"%.1f" % x`` is ``f"{x:.1f}"`` (the same float formatting), and quicker; each distinct value once
+    # when the values repeat (inputs copied through, values of a few categories)
+    text = repr if full else f"%.{decimals}f".__mod__
+    distinct, which = np.unique(numbers, return_inverse=True)
+    signed_zero = np.signbit(numbers[numbers == 0.0]).any()  # np.unique takes -0.0 for 0.0
+    if len(distinct) * 2 < len(numbers) and not signed_zero:
+        out[at] = np.array(list(map(text, distinct.tolist())), dtype=object)[which.reshape(-1)]
     else:
-        text = repr if full else f"{{:.{decimals}f}}".format
-        out[at] = list(map(text, shown.astype(float).tolist()))
+        out[at] = list(map(text, numbers.tolist()))
     return out.tolist()
 
 
@@ -678,7 +794,12 @@ def _write_csv(table: Table, audit: Audit, stream, full_precision: bool) -> None
         writer.writerow([*table.units_row, *("" if u == "1" else u for u in units_out), ""])
     if not len(table):
         return
-    inputs = table.by_column if table.plain else [_quoted(list(column)) for column in table.by_column]
+    if table.texts is not None:  # a plain file: each row's cells are its line as read
+        inputs = [table.texts]
+    elif table.plain:
+        inputs = table.by_column
+    else:
+        inputs = [_quoted(list(column)) for column in table.by_column]
     # the output columns hold codes, words and numbers: only the error messages can need quotes
     outputs = [
         _format(audit.values[name], audit.present[name], unit, decimals, pu, full_precision)
@@ -690,16 +811,14 @@ def _write_csv(table: Table, audit: Audit, stream, full_precision: bool) -> None
 
 
 _SPECIAL = (",", '"', "\n", "\r")
+_NEEDS_QUOTES = re.compile(r'[,"\n\r]').search
 
 
 def _quoted(column: list[str]) -> list[str]:
     """A column's cells as csv.writer writes them (quoted only where a comma, quote or line break is)."""
-    joined = "\x00".join(column)
-    if not any(ch in joined for ch in _SPECIAL):
+    if not _NEEDS_QUOTES("\x00".join(column)):
         return column
-    return [
-        '"' + cell.replace('"', '""') + '"' if any(ch in cell for ch in _SPECIAL) else cell for cell in column
-    ]
+    return ['"' + cell.replace('"', '""') + '"' if _NEEDS_QUOTES(cell) else cell for cell in column]
 
 
 # -- summary -------------------------------------------------------------------------------------------------
@@ -710,19 +829,31 @@ def _count(values: np.ndarray, present: np.ndarray) -> dict:
     return dict(Counter(words).most_common())
 
 
+def _count_words(texts: list[str]) -> Counter:
+    """``Counter(" ".join(texts).split())``, counted once per distinct text (the same counts, and the words
+    in the same first-seen order)."""
+    counts: Counter = Counter()
+    for text, k in Counter(texts).items():
+        for word in text.split():
+            counts[word] += k
+    return counts
+
+
 def summary(audit: Audit) -> dict:
     """Counts over the rows: rows, rows with errors, per disorder (and as primary), per chronicity of the
     respiratory disorder, per finding code, NIV criteria and SpO2 against its target."""
     ok = np.array([not e for e in audit.errors], dtype=bool)
     v, p = audit.values, audit.present
     listed = v["disorders"][ok].tolist()
-    disorders = Counter(" ".join(listed).split())
-    if any(not text for text in listed):
-        disorders["none"] = sum(1 for text in listed if not text)
-    primary = Counter(
-        x or "none" for x in np.where(p["primary_disorder"][ok], v["primary_disorder"][ok], "none")
-    )
-    findings = Counter(" ".join(v["findings"][ok & p["findings"]].tolist()).split())
+    disorders = _count_words(listed)
+    if "" in listed:
+        disorders["none"] = listed.count("")
+    primary = Counter()
+    for name, count in Counter(
+        np.where(p["primary_disorder"][ok], v["primary_disorder"][ok], "none").tolist()
+    ).items():
+        primary[name or "none"] += count
+    findings = _count_words(v["findings"][ok & p["findings"]].tolist())
     return {
         "rows": audit.n,
         "interpreted": int(ok.sum()),

@@ -285,7 +285,7 @@ def implied_hco3_survivable(value):
 
 def inspired_po2(fio2, pb_mmhg):
     """PIO2 = FiO2 x (PB - 47), as the PO2 plausibility checks use it [mmHg]."""
-    return fio2 * (pb_mmhg - oxygenation.PH2O_37_MMHG)
+    return oxygenation._inspired(fio2, pb_mmhg)
 
 
 def po2_above_inspired(po2, pio2):
@@ -1097,7 +1097,7 @@ def decide(x) -> Decision:
     has_po2 = given(po2)
     f["venous_po2_not_interpreted"] = has_po2 & venous
     d.oxygenation = ox = has_po2 & not_(venous)
-    d.pio2 = fio2 * (x.pb_value - oxygenation.PH2O_37_MMHG)
+    d.pio2 = oxygenation._inspired(fio2, x.pb_value)
     d.pao2_alveolar = pao2_a = each(
         oxygenation.alveolar_po2_simple, ox, fio2_fraction=fio2, paco2_mmhg=p, pb_mmhg=x.pb_value, rq=x.rq
     )

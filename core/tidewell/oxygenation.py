@@ -37,6 +37,10 @@ Decisions where the sources leave a choice (REFERENCE.md sections 7 and 13):
 - Dissociation curve: Severinghaus 1979 eq 1 is the standard curve; its inverse is solved exactly
   (Cardano root of the cubic, polished by one Newton step); eq 2 is kept as the published
   approximation. Hill and Kelman are for comparison only.
+
+``inspired_po2``, ``alveolar_po2_simple``, ``alveolar_po2_full`` and ``aa_gradient_upper_by_age`` also take
+numpy arrays (marked ``tidewell.arrays.elementwise``): the batch and uncertainty paths call them once for all
+rows or draws, with the same checks and the same formula as a single value. numpy is never imported here.
 """
 
 from __future__ import annotations
@@ -44,12 +48,14 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
+from .arrays import elementwise, require
 from .errors import InputError, require_number
 
 #: water vapour pressure at 37 degC used by convention [mmHg]
 PH2O_37_MMHG = 47.0
 
 
+@elementwise
 def inspired_po2(*, fio2_fraction: float, pb_mmhg: float = 760.0, ph2o_mmhg: float = PH2O_37_MMHG) -> float:
     """Inspired PO2 of humidified gas at body temperature.
 
@@ -73,12 +79,18 @@ def inspired_po2(*, fio2_fraction: float, pb_mmhg: float = 760.0, ph2o_mmhg: flo
     >>> round(inspired_po2(fio2_fraction=0.21), 2)
     149.73
     """
-    fio2 = require_number("fio2_fraction", fio2_fraction, low=0.05, high=1.0)
-    pb = require_number("pb_mmhg", pb_mmhg, low=150.0, high=1100.0, unit="mmHg")
-    ph2o = require_number("ph2o_mmhg", ph2o_mmhg, low=0.0, high=100.0, unit="mmHg")
-    return fio2 * (pb - ph2o)
+    fio2, pb, ph2o = _inspired_inputs(fio2_fraction, pb_mmhg, ph2o_mmhg)
+    return _inspired(fio2, pb, ph2o)
 
 
+def _inspired_inputs(fio2_fraction, pb_mmhg, ph2o_mmhg):
+    fio2 = require("fio2_fraction", fio2_fraction, low=0.05, high=1.0)
+    pb = require("pb_mmhg", pb_mmhg, low=150.0, high=1100.0, unit="mmHg")
+    ph2o = require("ph2o_mmhg", ph2o_mmhg, low=0.0, high=100.0, unit="mmHg")
+    return fio2, pb, ph2o
+
+
+@elementwise
 def alveolar_po2_simple(
     *,
     fio2_fraction: float,
@@ -94,11 +106,13 @@ def alveolar_po2_simple(
     >>> round(alveolar_po2_simple(fio2_fraction=0.21, paco2_mmhg=40.0), 2)
     99.73
     """
-    paco2 = require_number("paco2_mmhg", paco2_mmhg, low=1.0, high=300.0, unit="mmHg")
-    r = require_number("rq", rq, low=0.5, high=1.5)
-    return inspired_po2(fio2_fraction=fio2_fraction, pb_mmhg=pb_mmhg, ph2o_mmhg=ph2o_mmhg) - paco2 / r
+    paco2 = require("paco2_mmhg", paco2_mmhg, low=1.0, high=300.0, unit="mmHg")
+    r = require("rq", rq, low=0.5, high=1.5)
+    fio2, pb, ph2o = _inspired_inputs(fio2_fraction, pb_mmhg, ph2o_mmhg)
+    return _alveolar_simple(fio2, paco2, pb, r, ph2o)
 
 
+@elementwise
 def alveolar_po2_full(
     *,
     fio2_fraction: float,
@@ -114,12 +128,13 @@ def alveolar_po2_full(
     >>> round(alveolar_po2_full(fio2_fraction=0.21, paco2_mmhg=40.0), 2)
     101.83
     """
-    paco2 = require_number("paco2_mmhg", paco2_mmhg, low=1.0, high=300.0, unit="mmHg")
-    r = require_number("rq", rq, low=0.5, high=1.5)
-    pio2 = inspired_po2(fio2_fraction=fio2_fraction, pb_mmhg=pb_mmhg, ph2o_mmhg=ph2o_mmhg)
-    return pio2 - paco2 * (fio2_fraction + (1.0 - fio2_fraction) / r)
+    paco2 = require("paco2_mmhg", paco2_mmhg, low=1.0, high=300.0, unit="mmHg")
+    r = require("rq", rq, low=0.5, high=1.5)
+    fio2, pb, ph2o = _inspired_inputs(fio2_fraction, pb_mmhg, ph2o_mmhg)
+    return _alveolar_full(fio2, paco2, pb, r, ph2o)
 
 
+@elementwise
 def aa_gradient_upper_by_age(*, age_years: float) -> float:
     """Upper limit of the A-a gradient breathing air at sea level: age / 4 + 4 [mmHg].
 
@@ -130,7 +145,35 @@ def aa_gradient_upper_by_age(*, age_years: float) -> float:
     >>> aa_gradient_upper_by_age(age_years=60)
     19.0
     """
-    age = require_number("age_years", age_years, low=0.0, high=120.0, unit="years")
+    age = require("age_years", age_years, low=0.0, high=120.0, unit="years")
+    return _aa_upper(age)
+
+
+# -- the rules themselves: array-polymorphic cores ----------------------------------------------------------
+#
+# The validated functions above check their arguments (floats or numpy arrays, tidewell.arrays.require) and
+# call these, the only implementation of each formula: operators only, so a Python float and a numpy array
+# take the same arithmetic (IEEE double, the same operations in the same order) and the batch and Monte
+# Carlo paths give the scalar bridge's numbers exactly. They never validate and never import numpy.
+
+
+def _inspired(fio2, pb, ph2o=PH2O_37_MMHG):
+    """PIO2 = FiO2 x (PB - PH2O) [mmHg]."""
+    return fio2 * (pb - ph2o)
+
+
+def _alveolar_simple(fio2, paco2, pb=760.0, rq=0.8, ph2o=PH2O_37_MMHG):
+    """PAO2 = PIO2 - PaCO2 / R [mmHg]."""
+    return _inspired(fio2, pb, ph2o) - paco2 / rq
+
+
+def _alveolar_full(fio2, paco2, pb=760.0, rq=0.8, ph2o=PH2O_37_MMHG):
+    """PAO2 = PIO2 - PaCO2 x (FiO2 + (1 - FiO2) / R) [mmHg]."""
+    return _inspired(fio2, pb, ph2o) - paco2 * (fio2 + (1.0 - fio2) / rq)
+
+
+def _aa_upper(age):
+    """Upper limit of the A-a gradient breathing air: age / 4 + 4 [mmHg]."""
     return age / 4.0 + 4.0
 
 

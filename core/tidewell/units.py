@@ -35,6 +35,7 @@ nist811 : NIST Special Publication 811 (2008), Guide for the Use of the SI: 1 ft
 
 from __future__ import annotations
 
+import functools
 import math
 
 from .errors import NOTHING, InputError
@@ -254,6 +255,7 @@ def _from_celsius(value: float, unit: str) -> float:
     return value + ZERO_C_K
 
 
+@functools.lru_cache(maxsize=256)
 def units_for(target_unit: str, *, substance: str | None = None) -> tuple[str, ...]:
     """Units that :func:`convert` can turn into ``target_unit`` (for this ``substance``).
 

@@ -15,6 +15,7 @@ import io
 import json
 import math
 import random
+from collections import Counter
 from pathlib import Path
 
 import numpy as np
@@ -641,3 +642,89 @@ def test_written_csv_quotes_like_the_csv_module():
     reference = io.StringIO()
     csv.writer(reference, lineterminator="\n").writerows(parsed)
     assert out.getvalue() == reference.getvalue()
+
+
+# -- the quick paths of the reader and the writer give what the csv module and the plain loops give ----------
+
+
+PLAIN_TEXTS = [
+    "id,ph,pco2[kPa],hco3[mmol/L]\na,7.24,9.3,29.7\nb,7.40,5.3,24\n",
+    "id,ph,pco2[kPa],hco3[mmol/L]\r\na,7.24,9.3,29.7\r\n\r\nb,7.40,5.3,24\r\n",  # CRLF, a blank line
+    "id,ph,pco2[kPa],hco3[mmol/L]\n,,,\n  ,  , ,\na,7.24,9.3,29.7\n,7.30,8.0,30\n b ,7.4 , 5.3,24",  # blanks
+    "id,ph,pco2,hco3\n,,kPa,mmol/L\na,7.24,9.3,29.7\n",  # a units row
+    "id,ph,pco2[kPa]\na,7.24\nb,7.40,5.3,extra\n",  # short and long rows: the csv module's business
+    "\n\nid,ph,pco2[kPa]\n\u00a0,7.24,9.3\nc,-nan,9.3\nd,7.3,+inf\ne,NaN,9.3\n",
+]
+
+
+@pytest.mark.parametrize("text", PLAIN_TEXTS)
+def test_plain_reader_is_the_csv_module_reader(text, monkeypatch):
+    quick = batch.read_table(text)
+    quick_out = io.StringIO()
+    quick_audit = batch.interpret_table(quick)
+    batch.write_csv(quick, quick_audit, quick_out)
+    monkeypatch.setattr(batch, "_plain_lines", lambda text, dialect: None)
+    slow = batch.read_table(text)
+    slow_out = io.StringIO()
+    batch.write_csv(slow, batch.interpret_table(slow), slow_out)
+    assert quick.rows == slow.rows and quick.line == slow.line and quick.units_row == slow.units_row
+    assert quick.warnings == slow.warnings and quick_out.getvalue() == slow_out.getvalue()
+    assert_rows_equal_scalar(quick, quick_audit)
+
+
+def test_a_carriage_return_inside_a_line_is_a_file_problem():
+    with pytest.raises(batch.TableError, match="line 2 cannot be read as CSV"):
+        batch.read_table("id,ph,pco2[kPa]\na,7.24\rb,7.40,5.3\n")
+
+
+def test_nan_and_infinite_cells_are_refused_like_the_scalar_bridge():
+    # "nan" (any case) means not given; "-nan" and "inf" are not numbers the bridge takes
+    table, audit = _audit(
+        "ph,pco2[kPa],hco3[mmol/L]\n7.24,9.3,NaN\n7.24,9.3,-nan\n7.24,9.3,inf\n7.24,9.3,29\n"
+    )
+    assert audit.errors[0] == [] and audit.errors[3] == []
+    assert audit.errors[1] and audit.errors[2]
+    assert_rows_equal_scalar(table, audit)
+
+
+def test_number_cells_are_read_once_per_distinct_text_as_each_cell_alone():
+    cells = ["7.24", "", " 7.4 ", "NA", "7,4", "9.3kPa", "9.3 kpa", "1e1", "-0", "7.24", "nan", "x", "1_0"]
+    column = batch.Column("pco2", "pco2", "mmHg", cells)
+    batch._parse_column(column)
+    for i, text in enumerate(cells):
+        state, number, unit = batch._read_cell(text)
+        assert column.state[i] == state and (column.number[i] == number or math.isnan(number)), text
+        assert column.unit_array[i] == (unit or "mmHg") and column.own_units.get(i) == unit, text
+    assert column.distinct == list(dict.fromkeys(cells))
+
+
+def test_number_formatting_is_python_formatting():
+    rng = random.Random(3)
+    values = [rng.choice([-0.0, 0.0, 0.05, 0.25, 2.5, -1.25, 1e12, math.nan, 7.1]) for _ in range(300)]
+    values += [rng.uniform(-50, 50) for _ in range(100)]
+    arr = np.array(values, dtype=object)
+    present = np.array([rng.random() < 0.9 for _ in values])
+    for decimals in (0, 1, 2):
+        text = batch._format(arr, present, "1", decimals, "mmHg", False)
+        assert text == [f"{v:.{decimals}f}" if p else "" for v, p in zip(values, present, strict=True)]
+    full = batch._format(arr, present, "1", 1, "mmHg", True)
+    assert full == [repr(v) if p else "" for v, p in zip(values, present, strict=True)]
+
+
+@pytest.mark.parametrize("width", [3, 16, 17, 70])
+def test_finding_lists_are_joined_as_row_by_row(width):
+    rng = np.random.default_rng(width)
+    names = [f"code_{k}" for k in range(width)]
+    matrix = rng.random((500, width)) < rng.uniform(0.02, 0.5, width)
+    matrix[:250] = matrix[rng.integers(0, 10, 250)]  # repeated combinations, as findings have
+    want = [" ".join(name for name, on in zip(names, row, strict=True) if on) for row in matrix.tolist()]
+    assert batch._joined(matrix, names) == want
+    assert batch._joined(matrix[:0], names) == []
+
+
+def test_word_counts_are_counter_of_all_words():
+    rng = random.Random(4)
+    texts = [" ".join(rng.sample(["a", "b", "c", "d", "e"], rng.randint(0, 3))) for _ in range(300)]
+    want = Counter(" ".join(texts).split())
+    got = batch._count_words(texts)
+    assert list(got.most_common()) == list(want.most_common()) and list(got) == list(want)

@@ -254,3 +254,85 @@ def test_no_nan_from_curve_edges():
         assert math.isfinite(ox.saturation_severinghaus1979(po2_mmhg=p))
         assert math.isfinite(ox.saturation_kelman1966(po2_mmhg=p))
         assert math.isfinite(ox.saturation_hill(po2_mmhg=p))
+
+
+# -- one implementation for one value and for arrays (batch, uncertainty) ------------------------------------
+# derived: no outside number here; the same equations (alveolar_gas_1946, common-practice A-a limit) must
+# give exactly the scalar result on numpy arrays, element by element (the batch and Monte Carlo use them).
+
+
+def _grid(n=400, seed=11):
+    np = pytest.importorskip("numpy")
+    rng = np.random.default_rng(seed)
+    return {
+        "fio2_fraction": rng.uniform(0.05, 1.0, n),
+        "paco2_mmhg": rng.uniform(1.0, 300.0, n),
+        "pb_mmhg": rng.uniform(150.0, 1100.0, n),
+        "rq": rng.uniform(0.5, 1.5, n),
+        "ph2o_mmhg": rng.choice([ox.PH2O_37_MMHG, 35.7, 0.0, 100.0], n),
+    }
+
+
+@pytest.mark.parametrize("func", [ox.alveolar_po2_simple, ox.alveolar_po2_full])
+def test_alveolar_gas_on_arrays_is_the_scalar_result_bit_for_bit(func):
+    grid = _grid()
+    arrays = func(**grid)
+    for i in range(len(arrays)):
+        one = {k: float(v[i]) for k, v in grid.items()}
+        assert arrays[i] == func(**one), one
+    pio2 = ox.inspired_po2(**{k: grid[k] for k in ("fio2_fraction", "pb_mmhg", "ph2o_mmhg")})
+    assert pio2.tolist() == [
+        ox.inspired_po2(fio2_fraction=f, pb_mmhg=p, ph2o_mmhg=w)
+        for f, p, w in zip(
+            grid["fio2_fraction"].tolist(), grid["pb_mmhg"].tolist(), grid["ph2o_mmhg"].tolist(), strict=True
+        )
+    ]
+
+
+def test_a_a_limit_on_arrays_and_mixed_scalars():
+    np = pytest.importorskip("numpy")
+    ages = np.arange(0.0, 120.5, 0.5)
+    assert ox.aa_gradient_upper_by_age(age_years=ages).tolist() == [
+        ox.aa_gradient_upper_by_age(age_years=a) for a in ages.tolist()
+    ]
+    # scalars broadcast against arrays, as the batch passes a default R or PB
+    many = ox.alveolar_po2_simple(fio2_fraction=np.array([0.21, 0.4]), paco2_mmhg=40.0)
+    assert many.tolist() == [ox.alveolar_po2_simple(fio2_fraction=f, paco2_mmhg=40.0) for f in (0.21, 0.4)]
+
+
+@pytest.mark.parametrize(
+    ("field", "bad"),
+    [("fio2_fraction", 1.2), ("paco2_mmhg", 0.5), ("rq", 2.0), ("pb_mmhg", math.nan), ("pb_mmhg", math.inf)],
+)
+def test_arrays_are_refused_with_the_scalar_message(field, bad):
+    np = pytest.importorskip("numpy")
+    good = {"fio2_fraction": 0.3, "paco2_mmhg": 40.0, "pb_mmhg": 760.0, "rq": 0.8}
+    with pytest.raises(InputError) as scalar:
+        ox.alveolar_po2_simple(**{**good, field: bad})
+    arrays = {k: np.full(5, v) for k, v in good.items()}
+    arrays[field][3] = bad
+    with pytest.raises(InputError) as array:
+        ox.alveolar_po2_simple(**arrays)
+    assert str(array.value) == str(scalar.value) and array.value.field == field
+
+
+def test_each_calls_an_elementwise_function_once_on_the_selected_rows():
+    np = pytest.importorskip("numpy")
+    from tidewell.arrays import NAN, each, elementwise
+
+    calls = []
+
+    @elementwise
+    def limit(*, age_years):
+        calls.append(np.shape(age_years))
+        return ox.aa_gradient_upper_by_age(age_years=age_years)
+
+    ages = np.array([30.0, NAN, 80.0, 200.0, 44.0])  # NaN and 200 are outside the mask: never checked
+    mask = np.array([True, False, True, False, True])
+    out = each(limit, mask, age_years=ages)
+    assert calls == [(3,)]
+    assert out[mask].tolist() == [ox.aa_gradient_upper_by_age(age_years=a) for a in (30.0, 80.0, 44.0)]
+    assert np.isnan(out[~mask]).all()
+    assert math.isnan(each(limit, False, age_years=30.0)) and each(limit, True, age_years=30.0) == 11.5
+    assert np.isnan(each(limit, np.zeros(3, dtype=bool), age_years=np.full(3, NAN))).all()
+    assert calls == [(3,), ()]

@@ -283,3 +283,32 @@ def test_uncertainty_needs_numpy_only_when_asked():
     )
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert done.returncode == 0 and done.stdout.strip() == "ok", done.stderr
+
+
+def test_every_draw_gets_the_scalar_alveolar_gas_and_a_a_limit():
+    # derived: the draws go through the same alveolar gas equation (alveolar_gas_1946) and age rule (common
+    # practice) as one sample; on arrays, in one call, each draw's number is the scalar function's, exactly
+    import numpy as np
+
+    from tidewell import oxygenation
+    from tidewell.fields import Inputs
+
+    raw = {**AB05, "po2": q(7.1, "kPa"), "fio2": 0.28, "age": 71}
+    sample = interpret._Sample(Inputs(raw))
+    errors = {key: (kind, value, "default") for key, (kind, value) in sureness.DEFAULT_ERRORS.items()}
+    values, _ = sureness.draw_inputs(sample, errors, 500, 5)
+    _, cloud, _ = sureness.simulate(sample, errors, 500, 5)
+    alveolar = [
+        oxygenation.alveolar_po2_simple(fio2_fraction=f, paco2_mmhg=p, pb_mmhg=b, rq=r)
+        for f, p, b, r in zip(
+            values.fio2.tolist(),
+            values.pco2.tolist(),
+            values.pb_value.tolist(),
+            values.rq.tolist(),
+            strict=True,
+        )
+    ]
+    assert len(set(alveolar)) > 100  # the draws really differ
+    assert np.asarray(cloud.pao2_alveolar).tolist() == alveolar
+    limits = [oxygenation.aa_gradient_upper_by_age(age_years=a) for a in values.age.tolist()]
+    assert np.broadcast_to(cloud.a_a_expected_upper, (500,)).tolist() == limits
