@@ -15,6 +15,7 @@ function ``f(inputs: Inputs, report: Report) -> None`` imported only when first 
 from __future__ import annotations
 
 import importlib
+import importlib.util
 import json
 import math
 import sys
@@ -63,8 +64,16 @@ def _resolve(name: str):
 
 
 def available() -> list[str]:
-    """Names of the calculations this build can answer."""
-    return [name for name in CALCULATIONS if _resolve(name) is not None]
+    """Names of the calculations this build can answer.
+
+    Found without importing the modules: an error message must not load numpy (uncertainty needs it).
+    """
+    present = {}
+    for target in CALCULATIONS.values():
+        module_name = target.partition(":")[0]
+        if module_name not in present:
+            present[module_name] = importlib.util.find_spec(module_name) is not None
+    return [name for name, target in CALCULATIONS.items() if present[target.partition(":")[0]]]
 
 
 def _failure(calc, errors: list[dict]) -> dict:

@@ -313,6 +313,21 @@ def test_import_is_cheap_and_numpy_free():
     assert out.stdout.strip() == "False"
 
 
+def test_an_unknown_calculation_lists_every_name_without_loading_numpy():
+    # the message lists the calculations found, without importing their modules (the uncertainty module
+    # would load numpy: seconds in the browser, for an error message)
+    code = (
+        "import sys, json, tidewell.bridge as b;"
+        "r = b.handle_obj({'calc': 'nope', 'inputs': {}});"
+        "print(json.dumps([r['errors'][0]['message'], 'numpy' in sys.modules]))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    message, numpy_loaded = json.loads(out.stdout)
+    assert numpy_loaded is False
+    assert all(name in message for name in bridge.CALCULATIONS), message
+    assert bridge.available() == list(bridge.CALCULATIONS)
+
+
 json_leaf = st.one_of(st.none(), st.booleans(), st.integers(), st.floats(), st.text(max_size=20))
 json_value = st.recursive(
     json_leaf,
