@@ -1,47 +1,137 @@
 // The case log: saved cases in IndexedDB on this device only. Export as JSON (our own format, with a
 // schema version) and CSV; import JSON all-or-nothing after checking every case. Labels are text only.
+//
+// Import rules: at most 5 MB and 5,000 cases a file; every case is checked against the panel it came
+// from (known calculation, its screen, its field names, units and words, no markup in any stored value
+// but the label, which is only ever shown as text); nothing is written unless everything passes, and
+// then everything is written in one transaction, so a write that fails half way leaves the log as it
+// was. A failed write (a full disk, storage refused) rejects with the browser's reason: never swallowed.
+//
+// Export is deterministic: the same log gives the same bytes, except for `exported`, the time of the
+// export (clock.now(), which a test may freeze). Export, import, export gives the file back exactly.
+
+import { PANELS } from "./forms/specs.js";
 
 export const FORMAT = "tidewell-case-log";
 export const SCHEMA = 1;
+export const MAX_IMPORT_BYTES = 5 * 1024 * 1024;
+export const MAX_IMPORT_CASES = 5_000;
+export const LIMIT_TEXT = "Tidewell imports case logs of up to 5 MB and 5,000 cases";
 const DB = "tidewell";
 const STORE = "cases";
-const CALCS = new Set(["blood_gas", "ventilation", "alveolar_gas", "altitude", "oxygen_supply"]);
+// each calculation that can be saved, and the screen that shows it (index.html)
+const SCREEN_OF = {
+  blood_gas: "gas",
+  ventilation: "breathing",
+  alveolar_gas: "breathing",
+  altitude: "flight",
+  oxygen_supply: "flight",
+};
+const CALCS = new Set(Object.keys(SCREEN_OF));
+const CASE_KEYS = new Set(["id", "time", "label", "screen", "calc", "fields", "pressure_unit", "outputs", "summary", "engine"]);
+const FILE_KEYS = new Set(["format", "schema", "exported", "cases"]);
+const MAX_TIME = 8.64e15; // the last moment a JavaScript Date can hold
+const MAX_DEPTH = 8;
+
+// the export time; a test freezes it to compare two exports byte for byte
+export const clock = { now: () => new Date() };
 
 function open() {
   return new Promise((resolve, reject) => {
     const req = indexedDB.open(DB, 1);
     req.onupgradeneeded = () => req.result.createObjectStore(STORE, { keyPath: "id" });
-    req.onsuccess = () => resolve(req.result);
+    req.onsuccess = () => {
+      const db = req.result;
+      db.onversionchange = () => db.close(); // another tab deletes all data: let it
+      resolve(db);
+    };
     req.onerror = () => reject(req.error);
+    req.onblocked = () => reject(new Error("another Tidewell tab is holding the case log; close it and try again"));
   });
 }
 
+// One transaction. It settles only when the browser has committed it (complete) or thrown it away
+// (abort): then nothing of it was kept, and the promise rejects with the first error seen.
 async function run(mode, work) {
   const db = await open();
   return new Promise((resolve, reject) => {
-    const tx = db.transaction(STORE, mode);
-    const store = tx.objectStore(STORE);
+    let tx;
+    try {
+      tx = db.transaction(STORE, mode);
+    } catch (err) {
+      db.close();
+      reject(err);
+      return;
+    }
     let result;
-    Promise.resolve(work(store)).then((r) => { result = r; });
-    tx.oncomplete = () => { db.close(); resolve(result); };
-    tx.onerror = () => { db.close(); reject(tx.error); };
-    tx.onabort = () => { db.close(); reject(tx.error || new Error("aborted")); };
+    let failure = null;
+    const abort = (err) => {
+      failure = failure || err;
+      try {
+        tx.abort();
+      } catch {
+        // already aborting: the abort event still comes
+      }
+    };
+    tx.oncomplete = () => {
+      db.close();
+      resolve(result);
+    };
+    tx.onerror = (event) => {
+      failure = failure || event.target.error; // the abort that follows rejects
+    };
+    tx.onabort = () => {
+      db.close();
+      reject(failure || tx.error || new DOMException("The browser cancelled the write.", "AbortError"));
+    };
+    try {
+      Promise.resolve(work(tx.objectStore(STORE))).then((r) => {
+        result = r;
+      }, abort);
+    } catch (err) {
+      abort(err); // e.g. put() threw: none of this transaction's writes are kept
+    }
   });
 }
 
-const asPromise = (req) => new Promise((resolve, reject) => {
-  req.onsuccess = () => resolve(req.result);
-  req.onerror = () => reject(req.error);
-});
+const asPromise = (req) =>
+  new Promise((resolve, reject) => {
+    req.onsuccess = () => resolve(req.result);
+    req.onerror = () => reject(req.error);
+  });
 
 export async function list() {
   const all = await run("readonly", (store) => asPromise(store.getAll()));
   return all.sort((a, b) => b.time - a.time || (a.id < b.id ? -1 : 1));
 }
 
-export const put = (record) => run("readwrite", (store) => { store.put(record); });
-export const remove = (id) => run("readwrite", (store) => { store.delete(id); });
-export const clear = () => run("readwrite", (store) => { store.clear(); });
+export const count = () => run("readonly", (store) => asPromise(store.count()));
+export const put = (record) => run("readwrite", (store) => void store.put(record));
+export const remove = (id) => run("readwrite", (store) => void store.delete(id));
+export const clear = () => run("readwrite", (store) => void store.clear());
+
+// "Delete all data": empty the store, then delete the database itself.
+export async function deleteAll() {
+  await clear(); // empty even if another tab keeps the database open
+  await new Promise((resolve) => {
+    const req = indexedDB.deleteDatabase(DB);
+    // blocked: another tab has it open; the store is already empty and the deletion waits for that tab
+    req.onsuccess = req.onerror = req.onblocked = () => resolve();
+  });
+}
+
+// What to tell the user when the browser refused to store something.
+export function writeProblem(err) {
+  const name = (err && err.name) || "Error";
+  if (name === "QuotaExceededError") {
+    return "the browser refused to store it because storage for this site is full (export the log and delete old cases, or free space on the device)";
+  }
+  if (name === "AbortError" || name === "TransactionInactiveError") {
+    return `the browser cancelled the write before it was complete (${name})`;
+  }
+  const detail = err && err.message ? `: ${err.message}` : "";
+  return `the browser refused to store it (${name}${detail})`;
+}
 
 export function newId() {
   const bytes = crypto.getRandomValues(new Uint8Array(8));
@@ -49,7 +139,8 @@ export function newId() {
 }
 
 export async function exportJson() {
-  return JSON.stringify({ format: FORMAT, schema: SCHEMA, exported: new Date().toISOString(), cases: await list() }, null, 1);
+  const cases = await list();
+  return JSON.stringify({ format: FORMAT, schema: SCHEMA, exported: clock.now().toISOString(), cases }, null, 1);
 }
 
 const csvCell = (v) => {
@@ -68,38 +159,112 @@ export async function exportCsv() {
   return rows.map((r) => r.map(csvCell).join(",")).join("\r\n") + "\r\n";
 }
 
+// typed text of a field: short, no markup, no control characters
+const TYPED = /^[^<>&"'`\u0000-\u001f\u007f]{1,40}$/;
+const isObject = (v) => v !== null && typeof v === "object" && !Array.isArray(v);
+
+function fieldProblem(calc, name, value) {
+  const spec = PANELS[calc].fields.find((f) => f[0] === name);
+  if (!spec) return `"${name.slice(0, 40)}" is not a field of ${calc}`;
+  const kind = spec[2];
+  if (kind === "yes") return value === true ? "" : `field "${name}" must be true (a ticked box)`;
+  if (typeof kind === "string" && kind.startsWith("w:")) {
+    return kind.slice(2).split(",").includes(value) ? "" : `field "${name}" must be one of ${kind.slice(2)}`;
+  }
+  const units = kind === "P" ? ["kPa", "mmHg"] : kind === "fio2" ? ["fraction", "%"] : Array.isArray(kind) ? kind : null;
+  if (typeof value === "string") return TYPED.test(value) ? "" : `field "${name}" must be a short typed value without markup`;
+  if (units && Array.isArray(value) && value.length === 2 && typeof value[0] === "string" && TYPED.test(value[0])) {
+    return units.includes(value[1]) ? "" : `field "${name}" has the unit ${JSON.stringify(String(value[1]).slice(0, 20))}, not one of ${units.join(", ")}`;
+  }
+  return `field "${name}" is not a typed value`;
+}
+
+// stored outputs: plain JSON, at most MAX_DEPTH deep, keys of letters, digits and underscores
+function outputsProblem(value, depth = 0) {
+  if (depth > MAX_DEPTH) return `"outputs" is nested more than ${MAX_DEPTH} levels deep`;
+  if (value === null || typeof value === "boolean" || Number.isFinite(value)) return "";
+  // texts of the core (never shown from the log, and only ever as text)
+  if (typeof value === "string") return value.length <= 2_000 ? "" : '"outputs" holds a text longer than 2,000 characters';
+  if (Array.isArray(value)) {
+    for (const v of value) {
+      const why = outputsProblem(v, depth + 1);
+      if (why) return why;
+    }
+    return "";
+  }
+  if (isObject(value)) {
+    for (const [k, v] of Object.entries(value)) {
+      if (!/^\w{1,80}$/.test(k)) return `"outputs" has a key that is not a name (${JSON.stringify(k.slice(0, 20))})`;
+      const why = outputsProblem(v, depth + 1);
+      if (why) return why;
+    }
+    return "";
+  }
+  return '"outputs" holds something that is not a number, text or list';
+}
+
 // Why a case is not acceptable, or "" when it is.
 export function problem(c, index) {
   const at = `case ${index + 1}`;
-  if (!c || typeof c !== "object" || Array.isArray(c)) return `${at} is not an object`;
+  if (!isObject(c)) return `${at} is not an object`;
+  const extra = Object.keys(c).find((k) => !CASE_KEYS.has(k));
+  if (extra !== undefined) return `${at} has an unknown entry "${extra.slice(0, 40)}"`;
   if (typeof c.id !== "string" || !/^[\w-]{1,80}$/.test(c.id)) return `${at}: "id" must be a short text of letters, digits and dashes`;
-  if (!Number.isFinite(c.time) || c.time < 0) return `${at}: "time" must be a number (milliseconds since 1970)`;
+  if (!Number.isFinite(c.time) || c.time < 0 || c.time > MAX_TIME) return `${at}: "time" must be a number (milliseconds since 1970)`;
   if (typeof c.label !== "string" || c.label.length > 200) return `${at}: "label" must be a text of at most 200 characters`;
   if (!CALCS.has(c.calc)) return `${at}: "calc" must be one of ${[...CALCS].join(", ")}`;
-  if (typeof c.screen !== "string") return `${at}: "screen" is missing`;
-  if (!c.fields || typeof c.fields !== "object" || Array.isArray(c.fields)) return `${at}: "fields" must be an object`;
+  if (c.screen !== SCREEN_OF[c.calc]) return `${at}: "screen" must be "${SCREEN_OF[c.calc]}" for ${c.calc}`;
+  if (!isObject(c.fields)) return `${at}: "fields" must be an object`;
   for (const [k, v] of Object.entries(c.fields)) {
-    const ok = v === true || typeof v === "string" || (Array.isArray(v) && v.length === 2 && v.every((x) => typeof x === "string"));
-    if (!ok || !/^[a-z0-9_]{1,40}$/.test(k)) return `${at}: field "${k.slice(0, 40)}" is not a typed value`;
+    const why = fieldProblem(c.calc, k, v);
+    if (why) return `${at}: ${why}`;
   }
-  if (!c.outputs || typeof c.outputs !== "object") return `${at}: "outputs" must be an object`;
-  if (c.summary !== undefined && !(Array.isArray(c.summary) && c.summary.every((s) => typeof s === "string"))) {
+  if (c.pressure_unit !== undefined && c.pressure_unit !== "kPa" && c.pressure_unit !== "mmHg") {
+    return `${at}: "pressure_unit" must be kPa or mmHg`;
+  }
+  if (!isObject(c.outputs)) return `${at}: "outputs" must be an object`;
+  const why = outputsProblem(c.outputs);
+  if (why) return `${at}: ${why}`;
+  if (c.summary !== undefined && !(Array.isArray(c.summary) && c.summary.length <= 50 && c.summary.every((s) => typeof s === "string" && s.length <= 2_000))) {
     return `${at}: "summary" must be a list of texts`;
+  }
+  if (c.engine !== undefined && !(typeof c.engine === "string" && /^[\w.+-]{1,40}$/.test(c.engine))) {
+    return `${at}: "engine" must be a version number`;
   }
   return "";
 }
 
-// Import: parse and check everything first; only then write, in one transaction. Returns the count.
+const megabytes = (n) => `${(n / 1024 / 1024).toFixed(1)} MB`;
+
+// Import: parse and check everything first; only then write, in one transaction. Returns
+// {imported, replaced}: how many cases the file held, and how many of them replaced a saved case with
+// the same id. Throws an Error whose message says why nothing was imported.
 export async function importJson(text) {
+  if (typeof text !== "string") throw new Error("Nothing was imported: the file could not be read.");
+  if (text.length > MAX_IMPORT_BYTES) {
+    throw new Error(`Nothing was imported: the file is larger than ${megabytes(MAX_IMPORT_BYTES)}; ${LIMIT_TEXT}.`);
+  }
   let data;
   try {
     data = JSON.parse(text);
   } catch {
-    throw new Error("The file is not JSON.");
+    throw new Error("Nothing was imported: the file is not JSON (it may be cut short).");
   }
-  if (!data || data.format !== FORMAT) throw new Error(`The file is not a Tidewell case log (format should be "${FORMAT}").`);
-  if (data.schema !== SCHEMA) throw new Error(`The file uses schema ${JSON.stringify(data.schema)}; this version reads schema ${SCHEMA}.`);
-  if (!Array.isArray(data.cases)) throw new Error('The file has no list of "cases".');
+  if (!isObject(data) || data.format !== FORMAT) {
+    throw new Error(`Nothing was imported: the file is not a Tidewell case log (format should be "${FORMAT}").`);
+  }
+  if (data.schema !== SCHEMA) {
+    throw new Error(`Nothing was imported: the file uses schema ${JSON.stringify(data.schema)}; this version reads schema ${SCHEMA}.`);
+  }
+  const extra = Object.keys(data).find((k) => !FILE_KEYS.has(k));
+  if (extra !== undefined) throw new Error(`Nothing was imported: the file has an unknown entry "${extra.slice(0, 40)}".`);
+  if (data.exported !== undefined && typeof data.exported !== "string") {
+    throw new Error('Nothing was imported: "exported" must be a date text.');
+  }
+  if (!Array.isArray(data.cases)) throw new Error('Nothing was imported: the file has no list of "cases".');
+  if (data.cases.length > MAX_IMPORT_CASES) {
+    throw new Error(`Nothing was imported: the file holds ${data.cases.length.toLocaleString("en")} cases; ${LIMIT_TEXT}.`);
+  }
   const ids = new Set();
   for (const [i, c] of data.cases.entries()) {
     const why = problem(c, i);
@@ -107,6 +272,16 @@ export async function importJson(text) {
     if (ids.has(c.id)) throw new Error(`Nothing was imported: case ${i + 1} repeats the id ${c.id}.`);
     ids.add(c.id);
   }
-  await run("readwrite", (store) => { for (const c of data.cases) store.put(c); });
-  return data.cases.length;
+  let replaced = 0;
+  try {
+    replaced = await run("readwrite", (store) =>
+      asPromise(store.getAllKeys()).then((keys) => {
+        for (const c of data.cases) store.put(c);
+        return keys.filter((k) => ids.has(k)).length;
+      }),
+    );
+  } catch (err) {
+    throw new Error(`Nothing was imported: ${writeProblem(err)}.`);
+  }
+  return { imported: data.cases.length, replaced };
 }

@@ -9,7 +9,7 @@ const $ = (selector) => document.querySelector(selector);
 
 import { PANELS, EXAMPLES } from "./forms/specs.js";
 import { Panel } from "./forms/panel.js";
-import { settings } from "./settings.js";
+import { settings, localeUnit } from "./settings.js";
 import * as caselog from "./caselog.js";
 
 // -- screens --
@@ -119,7 +119,8 @@ async function saveCase(panel, label, status) {
     status.textContent = "Saved to the case log on this device.";
     if (navigator.storage && navigator.storage.persist) navigator.storage.persist().then(showPersist, () => {});
   } catch (err) {
-    status.textContent = `Not saved: ${err.message}`;
+    // a full disk or refused storage is said, never swallowed; the values stay in the form
+    status.textContent = `Not saved: ${caselog.writeProblem(err)}. Your values are kept in the form.`;
   }
 }
 
@@ -170,8 +171,12 @@ async function renderLog() {
     del.textContent = "Delete";
     del.setAttribute("aria-label", `Delete case ${c.label || "(no label)"}`);
     del.addEventListener("click", async () => {
-      await caselog.remove(c.id);
-      say("Case deleted.");
+      try {
+        await caselog.remove(c.id);
+        say("Case deleted.");
+      } catch (err) {
+        say(`Not deleted: ${caselog.writeProblem(err)}.`);
+      }
       renderLog();
     });
     const row = document.createElement("div");
@@ -193,16 +198,46 @@ function offerDownload(text, type, name) {
   a.click();
 }
 const stamp = () => new Date().toISOString().slice(0, 10);
-$("#log-export-json").addEventListener("click", async () => {
-  offerDownload(await caselog.exportJson(), "application/json", `tidewell-cases-${stamp()}.json`);
-});
-$("#log-export-csv").addEventListener("click", async () => {
-  offerDownload(await caselog.exportCsv(), "text/csv", `tidewell-cases-${stamp()}.csv`);
-});
+async function exportLog(make, type, name) {
+  try {
+    offerDownload(await make(), type, name);
+  } catch (err) {
+    say(`Not exported: the case log could not be read (${err.name || "Error"}).`);
+  }
+}
+$("#log-export-json").addEventListener("click", () =>
+  exportLog(caselog.exportJson, "application/json", `tidewell-cases-${stamp()}.json`),
+);
+$("#log-export-csv").addEventListener("click", () => exportLog(caselog.exportCsv, "text/csv", `tidewell-cases-${stamp()}.csv`));
+
+// "Delete all data": every saved case and every setting Tidewell keeps (localStorage and
+// sessionStorage entries named tidewell:*). The offline copy of the app itself stays: it holds no data.
+async function deleteAllData() {
+  await caselog.deleteAll();
+  for (const storage of [localStorage, sessionStorage]) {
+    for (const key of Object.keys(storage)) if (key.startsWith("tidewell:")) storage.removeItem(key);
+  }
+  // back to the defaults in this page too, without writing them down again
+  settings.pressureUnit = localeUnit();
+  settings.theme = "auto";
+  settings.applyTheme();
+  for (const r of document.querySelectorAll('input[name="pressure-unit"]')) r.checked = r.value === settings.pressureUnit;
+  for (const r of document.querySelectorAll('input[name="theme"]')) r.checked = r.value === settings.theme;
+  settings.dispatchEvent(new Event("pressure"));
+}
 $("#log-delete-all").addEventListener("click", async () => {
-  if (!confirm("Delete every saved case on this device? This cannot be undone.")) return;
-  await caselog.clear();
-  say("All cases deleted.");
+  const question =
+    "Delete all data: every saved case and your settings (pressure unit, night mode) on this device? " +
+    "The offline copy of the app stays. This cannot be undone.";
+  if (!confirm(question)) return;
+  try {
+    await deleteAllData();
+    say("All data deleted: every saved case and the settings on this device.");
+    document.documentElement.dataset.deleteState = "done";
+  } catch (err) {
+    say(`Not everything was deleted: ${caselog.writeProblem(err)}.`);
+    document.documentElement.dataset.deleteState = "failed";
+  }
   renderLog();
 });
 $("#log-import").addEventListener("change", async (event) => {
@@ -210,8 +245,19 @@ $("#log-import").addEventListener("change", async (event) => {
   event.target.value = "";
   if (!file) return;
   try {
-    const n = await caselog.importJson(await file.text());
-    say(`Imported ${n} case(s).`);
+    if (file.size > caselog.MAX_IMPORT_BYTES) {
+      const mb = (file.size / 1024 / 1024).toFixed(1);
+      throw new Error(`Nothing was imported: the file is ${mb} MB; ${caselog.LIMIT_TEXT}.`);
+    }
+    let text;
+    try {
+      text = await file.text();
+    } catch {
+      throw new Error("Nothing was imported: the file could not be read.");
+    }
+    const { imported, replaced } = await caselog.importJson(text);
+    const also = replaced ? ` (${replaced} of them replaced a saved case with the same id)` : "";
+    say(`Imported ${imported} case(s)${also}.`);
     document.documentElement.dataset.importState = "done";
   } catch (err) {
     say(`${err.message} The case log is unchanged.`);
@@ -234,8 +280,14 @@ function renderEngine() {
     text =
       `Engine: ready (tidewell ${info.engine}, Python ${info.python}, Pyodide ${info.pyodide}; ` +
       `started in ${(info.timings_ms.total / 1000).toFixed(1)} s).`;
+    if (engine.restarts) {
+      const times = engine.restarts === 1 ? "once" : `${engine.restarts} times`;
+      text += ` Restarted ${times} after a fault (last: ${engine.lastFault}).`;
+    }
   } else if (state === "failed") {
     text = `Engine: failed. ${engine.failure}`;
+  } else if (engine.restarting) {
+    text = `Engine: restarting (${engine.lastFault}). Your values are kept; results follow when it is back.`;
   } else {
     text = `Engine: loading (${engine.progress || "starting"}). The form below already takes values.`;
   }
@@ -285,11 +337,19 @@ async function registerServiceWorker() {
     return;
   }
   let accepted = false;
+  // read before register(): on a first visit there is no controller, and the first controllerchange is the
+  // offline copy becoming ready
+  const hadController = Boolean(navigator.serviceWorker.controller);
   navigator.serviceWorker.addEventListener("controllerchange", () => {
     if (sessionStorage.getItem("tidewell:update-accepted") && !accepted) {
       accepted = true;
       sessionStorage.removeItem("tidewell:update-accepted");
       location.reload();
+    } else if (hadController) {
+      // another tab accepted an update: this page is the old version under the new service worker
+      $("#update").hidden = false;
+      $("#update span").textContent = "Tidewell was updated in another tab - reload to use the new version.";
+      $("#update-reload").onclick = () => location.reload();
     } else {
       setOffline("ready", "Offline use: ready. This version is stored on this device.");
     }
