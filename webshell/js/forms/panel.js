@@ -3,7 +3,7 @@
 
 import { formatValue, parseNumber } from "../format.js";
 import { settings } from "../settings.js";
-import { drawPictures } from "./pictures.js";
+import { drawPictures, shareBar } from "./pictures.js";
 
 const el = (tag, props = {}, ...children) => {
   const node = document.createElement(tag);
@@ -87,6 +87,9 @@ export class Panel {
     this.hooks = hooks;
     this.sequence = 0;
     this.last = null;
+    this.sure = null; // the "How sure" line of the report shown (blood gas only): see showSure()
+    this.sureInFlight = false; // at most one uncertainty calculation in the worker at a time
+    this.surePending = null; // the newest report's sample, waiting for the one in flight
     this.inputs = {};
     const id = `p-${name}`;
     this.id = id;
@@ -225,6 +228,7 @@ export class Panel {
   soon() {
     this.report.dataset.busy = "1";
     clearTimeout(this.timer);
+    clearTimeout(this.sureTimer); // an edit cancels the how-sure run that was about to start
     this.timer = setTimeout(() => this.calculate(), 250);
   }
 
@@ -241,6 +245,7 @@ export class Panel {
 
   async calculate() {
     clearTimeout(this.timer);
+    clearTimeout(this.sureTimer);
     const mine = ++this.sequence;
     this.report.dataset.busy = "1";
 
@@ -259,24 +264,131 @@ export class Panel {
         : "Your values are kept; the reading appears as soon as the engine is ready."));
       if (this.engine.state === "failed") return;
     }
+    let response;
     try {
-      const extra = this.hooks.extraRequests ? this.hooks.extraRequests(this.name, request) : [];
-      const [response, ...more] = await Promise.all([request, ...extra].map((r) => this.engine.compute(r)));
-      if (mine !== this.sequence) return;
-      this.render(request, response, more);
-      delete this.report.dataset.busy;
-      if (this.saveRow) this.saveRow.hidden = !response.ok;
+      response = await this.engine.compute(request);
     } catch (err) {
       if (mine !== this.sequence) return;
       this.report.dataset.state = "waiting";
+      this.report.dataset.engineError = "1"; // an engine fault, not the ordinary wait for start-up
       delete this.report.dataset.busy;
-      this.report.replaceChildren(el("p", { class: "muted" }, `${err.message} Your values are kept.`));
+      this.report.replaceChildren(el("p", { class: "report-engine-error", role: "alert" },
+        `${err.message} Your values are kept.`));
+      return;
+    }
+    if (mine !== this.sequence) return;
+    // The main report is shown first, alone. The pictures' calculations (the curve, the profile) and the
+    // how-sure line need numpy, which the worker loads on first use: they are only asked for in a later
+    // task, once this report is on the screen, so numpy never sits on the path to the first reading.
+    this.render(request, response);
+    if (this.saveRow) this.saveRow.hidden = !response.ok;
+    if (!response.ok) {
+      delete this.report.dataset.busy;
+      return;
+    }
+    await new Promise((resolve) => setTimeout(resolve, 0));
+    if (mine !== this.sequence) return;
+    const extra = this.hooks.extraRequests ? this.hooks.extraRequests(this.name, request) : [];
+    if (extra.length) {
+      // a picture that cannot be drawn is left out; it never takes the report down with it
+      const more = await Promise.all(extra.map((r) => this.engine.compute(r).catch(() => null)));
+      if (mine !== this.sequence) return;
+      this.showPictures(request, response, more);
+    }
+    delete this.report.dataset.busy;
+    if (this.spec.howSure) {
+      this.sureTimer = setTimeout(() => this.askSure(mine, request), this.spec.howSure.delayMs);
     }
   }
 
-  render(request, response, more) {
+  // -- the "How sure" line (blood gas) --
+  // Decision (docs/screens.md, "How sure"): run automatically, in the background, after each report,
+  // rather than behind a button. Why: the line matters most exactly when nobody thinks to ask (a reading
+  // near a threshold), and it costs no extra download: the curve picture has loaded numpy by then. What
+  // keeps it from slowing the report: (1) it is asked for only after the report and its pictures are
+  // shown, so numpy is never loaded before the first reading; (2) it waits a further quiet spell
+  // (spec.howSure.delayMs) that any edit cancels, so typing does not queue Monte Carlo runs in the
+  // worker; (3) at most one runs at a time (0.15 to 0.6 s of worker time in Pyodide, measured): a newer
+  // report's request waits for it and only the newest is sent; (4) an answer whose report has been
+  // replaced is dropped (the panel's sequence counter), so a stale line never overwrites a newer one.
+  askSure(mine, request) {
+    if (mine !== this.sequence || !this.sure) return;
+    if (this.sureInFlight) {
+      this.surePending = { mine, request };
+      return;
+    }
+    this.sureInFlight = true;
+    const spec = this.spec.howSure;
+    // the uncertainty calculation takes the blood_gas inputs object unchanged as its `sample`; draws and
+    // seed are left to the core's defaults (10,000 draws, a fixed seed), so the same sample always gives
+    // the same line
+    const sureRequest = { calc: spec.calc, inputs: { sample: request.inputs }, options: request.options };
+    this.showSure(mine, "working");
+    this.engine.compute(sureRequest).then(
+      (answer) => this.showSure(mine, answer.ok ? "done" : "error", answer),
+      (err) => this.showSure(mine, "error", { errors: [{ message: err.message }] }),
+    ).catch((err) => {
+      // a response the line cannot show: a quiet line, never a broken report
+      this.showSure(mine, "error", { errors: [{ message: String((err && err.message) || err) }] });
+    }).finally(() => {
+      this.sureInFlight = false;
+      const next = this.surePending;
+      this.surePending = null;
+      if (next) this.askSure(next.mine, next.request);
+    });
+  }
+
+  showSure(mine, state, answer) {
+    const box = this.sure;
+    if (mine !== this.sequence || !box) return; // a newer report has replaced this one: drop the answer
+    const spec = this.spec.howSure;
+    box.dataset.state = state;
+    delete box.dataset.probability;
+    const parts = [];
+    if (state === "working") {
+      parts.push(el("p", { class: "sure-line muted" }, spec.working));
+    } else if (state === "error") {
+      const first = (answer.errors || [])[0];
+      parts.push(el("p", { class: "sure-line muted" },
+        `${spec.unavailable}${first && first.message ? ` (${first.message})` : ""}. ${spec.unaffected}`));
+    } else {
+      const o = answer.outputs;
+      const reading = o.reading || {};
+      if (typeof reading.probability === "number") {
+        box.dataset.probability = String(reading.probability);
+        parts.push(shareBar(reading.probability));
+      }
+      parts.push(el("p", { class: "sure-line" }, String(o.how_sure || `${spec.unavailable}.`)));
+      for (const f of answer.findings || []) {
+        if (!spec.findings.includes(f.code)) continue;
+        const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
+        parts.push(el("p", { class: `sure-flag ${cls}`, "data-code": f.code, "data-severity": f.severity },
+          el("strong", {}, `${word}: `), f.text));
+      }
+      parts.push(el("p", { class: "sure-note muted" }, spec.note));
+      if ((answer.cautions || []).length) {
+        const more = el("details", { class: "sure-more" }, el("summary", {}, spec.moreTitle));
+        const ul = el("ul");
+        for (const c of answer.cautions) ul.append(el("li", {}, c));
+        more.append(ul);
+        parts.push(more);
+      }
+    }
+    box.replaceChildren(...parts);
+  }
+
+  showPictures(request, response, more) {
+    const pics = drawPictures(this.spec.pictures || [], response, more, request);
+    const old = this.report.querySelector(":scope > .pictures, :scope > .pictures-slot");
+    if (!old) return;
+    old.replaceWith(pics || el("div", { class: "pictures-slot", hidden: true }));
+  }
+
+  render(request, response, more = []) {
+    delete this.report.dataset.engineError;
     this.clearErrors();
     const out = [];
+    this.sure = null;
     if (!response.ok) {
       this.last = null;
       const loose = el("ul", { class: "errors" });
@@ -331,6 +443,14 @@ export class Panel {
     summary.append(tools);
     out.push(summary);
 
+    // 1b. how sure the reading is, filled in later by showSure(); its own polite live region, read whole
+    if (this.spec.howSure) {
+      this.sure = el("section", { class: "how-sure", "data-state": "waiting", "aria-label": this.spec.howSure.title,
+        "aria-live": "polite", "aria-atomic": "true" },
+      el("p", { class: "sure-line muted" }, this.spec.howSure.working));
+      out.push(this.sure);
+    }
+
     // 2. findings by severity: a word and a shape, never colour alone
     if (response.findings.length) {
       const list = el("ul", { class: "findings", "aria-label": "Findings" });
@@ -353,8 +473,9 @@ export class Panel {
     }
 
     // 4. pictures drawn from the core's arrays
+    // (those from other calculations come in later through showPictures(), into this slot)
     const pics = drawPictures(this.spec.pictures || [], response, more, request);
-    if (pics) out.push(pics);
+    out.push(pics || el("div", { class: "pictures-slot", hidden: true }));
 
     // 5. the numbers, in sections; a tap shows the step behind each
     const used = new Set();

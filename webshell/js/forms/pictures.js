@@ -133,6 +133,20 @@ function profile(prof, response) {
   return figure("profile", root, `Solid: ${which} on the FiO2 now; dashed: on the FiO2 that keeps today's alveolar PO2. Dotted line: the lowest acceptable PaO2; upright line: the cabin altitude.`);
 }
 
+// A thin bar for the "How sure" line: the filled part is the core's share of draws (0 to 1) that give the
+// same reading. Decorative (aria-hidden): the sentence beside it says the same in words and numbers.
+export function shareBar(share) {
+  const BW = 320, BH = 14;
+  const root = svg("svg", { viewBox: `0 0 ${BW} ${BH}`, class: "share-bar", "aria-hidden": "true",
+    focusable: "false", preserveAspectRatio: "none" });
+  const part = Math.min(1, Math.max(0, share));
+  root.append(svg("rect", { x: 0, y: 0, width: BW, height: BH, rx: 3, class: "share-track" }));
+  root.append(svg("rect", { x: 0, y: 0, width: (BW * part).toFixed(1), height: BH, rx: 3, class: "share-fill" }));
+  // a tick at half way, so "about half" reads at a glance
+  root.append(svg("line", { x1: BW / 2, x2: BW / 2, y1: 0, y2: BH, class: "share-tick" }));
+  return root;
+}
+
 export function drawPictures(names, response, more, request) {
   const figs = [];
   for (const name of names) {

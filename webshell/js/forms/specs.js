@@ -40,6 +40,20 @@ export const PANELS = {
         "respiratory_failure", "spo2_target", "pio2", "pb"]],
     ],
     pictures: ["acidbase", "odc"],
+    // The "How sure" line under the summary: the core's `uncertainty` calculation on the same sample,
+    // asked for in the background once the report and its pictures are shown (panel.js, askSure).
+    howSure: {
+      calc: "uncertainty",
+      delayMs: 400, // a quiet spell after the report before the Monte Carlo run starts; an edit cancels it
+      title: "How sure",
+      working: "How sure: working…",
+      unavailable: "How sure: not available",
+      unaffected: "The reading above does not depend on it.",
+      findings: ["reading_uncertain"], // the core's findings shown on the line (the rest are in its summary)
+      note: "Counts the analyser's usual measurement error only, not sampling problems (air in the syringe, " +
+        "a delay, venous blood). A share of draws, not the chance of a diagnosis.",
+      moreTitle: "About this line",
+    },
   },
   ventilation: {
     title: "Ventilation and CO2 target",
