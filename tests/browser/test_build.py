@@ -172,3 +172,58 @@ def test_wheels_that_fail_the_lock_are_refused(tmp_path, damage):
     assert "micropip-0.9.0-py3-none-any.whl" in proc.stderr
     assert ("sha256" in proc.stderr) if damage == "corrupt" else ("missing" in proc.stderr)
     assert not (tmp_path / "site").exists()
+
+
+# CPython's magic number for 3.12 bytecode (Lib/importlib/_bootstrap_external.py: "Python 3.12b1 3531"),
+# the version Pyodide 0.27.7 runs (pyodide-lock.json info.python = 3.12.7)
+MAGIC_312 = (3531).to_bytes(2, "little") + b"\r\n"
+
+CHECK_PYC_IN_PYODIDE = r"""
+import { readFileSync } from "fs";
+const [pyodideDir, wheelPath] = process.argv.slice(2);
+const { loadPyodide } = await import(pyodideDir + "/pyodide.mjs");
+const pyodide = await loadPyodide({ indexURL: pyodideDir + "/", stdout: () => {} });
+const site = pyodide.runPython("import site; site.getsitepackages()[0]");
+pyodide.unpackArchive(new Uint8Array(readFileSync(wheelPath)), "wheel", { extractDir: site });
+process.stdout.write(pyodide.runPython(`
+import importlib, json, pathlib, site
+importlib.invalidate_caches()
+# every source now fails if it is read: the import must come from the compiled files alone
+for path in pathlib.Path(site.getsitepackages()[0], "tidewell").rglob("*.py"):
+    path.write_text("raise ImportError('the source was compiled at start-up')\\n")
+import tidewell.bridge, tidewell.interpret
+json.dumps({"convert": json.loads(tidewell.bridge.handle(json.dumps(
+    {"calc": "convert", "inputs": {"quantity": {"value": 1, "unit": "kPa"}, "to": "mmHg"}})))["ok"]})
+`));
+"""
+
+
+def test_wheel_carries_modules_compiled_for_the_runtime(dist):
+    wheel = next((dist / "pyodide").glob("tidewell-*-py3-none-any.whl"))
+    with zipfile.ZipFile(wheel) as z:
+        names = set(z.namelist())
+        sources = {n for n in names if n.endswith(".py")}
+        compiled = {n for n in names if n.endswith(".pyc")}
+        expected = {
+            f"{n.rpartition('/')[0]}/__pycache__/{n.rpartition('/')[2][:-3]}.cpython-312.pyc" for n in sources
+        }
+        assert compiled == expected
+        for name in sorted(compiled):
+            header = z.read(name)[:16]
+            # PEP 552: magic, flags = 0b01 (hash-based, source not checked), then the source hash
+            assert header[:4] == MAGIC_312, name
+            assert int.from_bytes(header[4:8], "little") == 0b01, name
+
+
+def test_runtime_imports_the_compiled_modules_without_reading_sources(dist, tmp_path):
+    wheel = next((dist / "pyodide").glob("tidewell-*-py3-none-any.whl"))
+    script = tmp_path / "check.mjs"
+    script.write_text(CHECK_PYC_IN_PYODIDE)
+    proc = subprocess.run(
+        ["node", str(script), str(dist / "pyodide"), str(wheel)],
+        capture_output=True,
+        text=True,
+        timeout=600,
+    )
+    assert proc.returncode == 0, proc.stderr[-2000:]
+    assert json.loads(proc.stdout) == {"convert": True}

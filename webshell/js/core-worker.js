@@ -9,7 +9,7 @@
 // loaded the first time a calculation imports them (then the calculation runs once more).
 
 import { loadPyodide } from "../pyodide/pyodide.mjs";
-import { VERSION, TIDEWELL_WHEEL, TIDEWELL_WHEEL_SHA256, LOADABLE } from "./build-info.js";
+import { VERSION, TIDEWELL_WHEEL, TIDEWELL_WHEEL_SHA256, LOADABLE, BUILD_LABEL } from "./build-info.js";
 
 const INDEX_URL = new URL("../pyodide/", import.meta.url).href;
 
@@ -60,8 +60,9 @@ async function loadPackages(names) {
 
 const hex = (buffer) => Array.from(new Uint8Array(buffer), (b) => b.toString(16).padStart(2, "0")).join("");
 
-// Fetch the wheel, check its sha256 against the build's, unpack it into site-packages.
-async function unpackTidewell() {
+// Fetch the wheel and check its sha256 against the build's. Started before loadPyodide, so it runs
+// while the runtime loads (measured in docs/performance.md).
+async function fetchTidewell() {
   const response = await fetch(new URL(TIDEWELL_WHEEL, INDEX_URL));
   if (!response.ok) throw new Error(`${TIDEWELL_WHEEL}: HTTP ${response.status}`);
   const buffer = await response.arrayBuffer();
@@ -72,6 +73,12 @@ async function unpackTidewell() {
         `expected ${TIDEWELL_WHEEL_SHA256.slice(0, 16)}...); reload to fetch it again`,
     );
   }
+  return buffer;
+}
+
+// Unpack the checked wheel into site-packages.
+async function unpackTidewell(wheel) {
+  const buffer = await wheel;
   const site = pyodide.runPython("import site; site.getsitepackages()[0]");
   pyodide.unpackArchive(buffer, "wheel", { extractDir: site });
   // Only site-packages' finder needs to see the new files. importlib.invalidate_caches() would do it
@@ -85,9 +92,9 @@ async function unpackTidewell() {
 
 // Three measured routes (docs/hosting.md): "unpack" (the default, fastest), "loadPackage" through the
 // trimmed lock file, "micropip" from the local wheel.
-async function installTidewell(method) {
+async function installTidewell(method, wheel) {
   if (method === "unpack") {
-    await unpackTidewell();
+    await unpackTidewell(wheel);
   } else if (method === "micropip") {
     await loadPackages(["micropip"]);
     const micropip = pyodide.pyimport("micropip");
@@ -103,6 +110,10 @@ async function installTidewell(method) {
 
 async function start(config) {
   const t0 = performance.now();
+  let method = ["micropip", "loadPackage"].includes(config.install) ? config.install : "unpack";
+  if (method === "unpack" && !(self.crypto && crypto.subtle)) method = "loadPackage"; // not a secure context
+  const wheel = method === "unpack" ? fetchTidewell() : null;
+  wheel?.catch(() => {}); // a failure is reported where the wheel is awaited, not as unhandled
   progress("Loading the Python runtime");
   pyodide = await loadPyodide({
     indexURL: INDEX_URL,
@@ -111,10 +122,8 @@ async function start(config) {
     stderr: (line) => console.warn(`[engine] ${line}`), // Python warnings, if any, stay visible
   });
   const t1 = performance.now();
-  let method = ["micropip", "loadPackage"].includes(config.install) ? config.install : "unpack";
-  if (method === "unpack" && !(self.crypto && crypto.subtle)) method = "loadPackage"; // not a secure context
   progress("Installing tidewell");
-  await installTidewell(method);
+  await installTidewell(method, wheel);
   const t2 = performance.now();
   let pyVersion;
   try {
@@ -131,10 +140,16 @@ async function start(config) {
   const t3 = performance.now();
   return {
     engine: pyVersion,
+    // which build the worker's own files came from: the page compares it with its own (never a mixed state)
+    label: BUILD_LABEL,
+    wheel_sha256: TIDEWELL_WHEEL_SHA256,
     pyodide: pyodide.version,
     python: pyodide.runPython("import sys; sys.version.split()[0]"),
     install: method,
+    // the worker's clock starts when the page creates it: the benchmark places it on the page's clock
+    time_origin: performance.timeOrigin,
     timings_ms: {
+      before_start: Math.round(t0), // loading this module and its imports, and the init message
       runtime: Math.round(t1 - t0),
       install: Math.round(t2 - t1),
       import: Math.round(t3 - t2),
