@@ -282,12 +282,17 @@ pyodide.globals.set("SOURCES", pyodide.toPy(JSON.parse(Buffer.concat(chunks).toS
 process.stdout.write(pyodide.runPython(`
 import base64, importlib.util, json, sys
 from importlib._bootstrap_external import _code_to_hash_pyc
-out = {}
+out, failed = {}, {}
 for name, text in sorted(SOURCES.items()):
     data = text.encode()
-    code = compile(data, name, "exec", dont_inherit=True)
+    try:
+        code = compile(data, name, "exec", dont_inherit=True)
+    except SyntaxError as exc:
+        failed[name] = str(exc)
+        continue
     out[name] = base64.b64encode(_code_to_hash_pyc(code, importlib.util.source_hash(data), False)).decode()
-json.dumps({"python": sys.version.split()[0], "cache_tag": sys.implementation.cache_tag, "pyc": out})
+json.dumps({"python": sys.version.split()[0], "cache_tag": sys.implementation.cache_tag, "pyc": out,
+            "failed": failed})
 `));
 """
 
@@ -295,43 +300,123 @@ json.dumps({"python": sys.version.split()[0], "cache_tag": sys.implementation.ca
 def compile_modules(
     sources: list[tuple[str, bytes]], runtime: dict[str, bytes], cache: Path
 ) -> dict[str, bytes]:
-    """archive name of each .pyc -> its bytes, compiled by the runtime's own Python (cached)."""
+    """archive name of each .pyc (in __pycache__/) -> its bytes, compiled by the runtime's own Python."""
     modules = {name: data.decode() for name, data in sources if name.endswith(".py")}
+    got = compile_in_pyodide(modules, runtime, cache)
+    if got["failed"]:
+        raise BuildError(f"these modules do not compile: {got['failed']}")
+    out = {}
+    for name, text in got["pyc"].items():
+        folder, _, module = name.rpartition("/")
+        out[f"{folder}/__pycache__/{module[:-3]}.{got['cache_tag']}.pyc"] = base64.b64decode(text)
+    return out
+
+
+#: run by node: load the pinned Pyodide from argv[2], put the tidewell sources read as JSON on stdin
+#: ({archive name: source}) on sys.path, import every tidewell module that imports without numpy and
+#: answer one blood_gas request; print the standard-library modules then loaded (names in the zip).
+STDLIB_PROBE = r"""
+import { loadPyodide } from "./pyodide.mjs";
+const chunks = [];
+for await (const chunk of process.stdin) chunks.push(chunk);
+const pyodide = await loadPyodide({ indexURL: process.argv[2] + "/", stdout: () => {},
+  stderr: (line) => console.error(line) });
+pyodide.globals.set("SOURCES", pyodide.toPy(JSON.parse(Buffer.concat(chunks).toString())));
+process.stdout.write(pyodide.runPython(`
+import importlib, json, os, sys
+for name, text in SOURCES.items():
+    path = "/tmp/probe/" + name
+    os.makedirs(os.path.dirname(path), exist_ok=True)
+    with open(path, "w") as f:
+        f.write(text)
+sys.path.insert(0, "/tmp/probe")
+import tidewell.bridge
+tidewell.bridge.handle(json.dumps({"calc": "blood_gas", "inputs": {"ph": 7.3, "pco2": 60, "hco3": 29}}))
+for name in sorted(SOURCES):
+    if name.endswith("__main__.py"):
+        continue
+    try:
+        importlib.import_module(name[:-3].replace("/", ".").removesuffix(".__init__"))
+    except ImportError:
+        pass  # needs numpy: loaded only when a calculation asks for it
+prefix = next(p for p in sys.path if p.endswith(".zip")) + "/"
+json.dumps(sorted({m.__file__[len(prefix):] for m in list(sys.modules.values())
+                   if (getattr(m, "__file__", None) or "").startswith(prefix)}))
+`));
+"""
+
+
+def compiled_stdlib(runtime: dict[str, bytes], cache: Path) -> bytes:
+    """Pyodide's python_stdlib.zip with the modules a start imports compiled (``name.pyc`` for ``name.py``).
+
+    The stock archive holds sources only, so every start compiles each standard-library module it
+    imports: about 120 for Pyodide's own start, then json and difflib for tidewell (130 ms of an engine
+    start under node). Which modules: those loaded once Pyodide has started, tidewell's modules are
+    imported and a blood_gas request answered, found by running exactly that under node. The rest stay
+    source (compiling all of them would add 1.6 MB to the download). zipimport loads a ``.pyc`` that stands
+    alone in an archive, as in CPython's own embeddable distribution; an unchecked-hash .pyc needs no
+    source beside it. Deterministic: members sorted, one fixed date.
+    """
+    with zipfile.ZipFile(io.BytesIO(runtime["python_stdlib.zip"])) as z:
+        members = {info.filename: z.read(info) for info in z.infolist() if not info.is_dir()}
+    tidewell = {name: data.decode() for name, data in package_files() if name.endswith(".py")}
+    imported = json.loads(run_in_pyodide(STDLIB_PROBE, tidewell, runtime, cache))
+    modules = {name: members[name].decode() for name in imported if name.endswith(".py") and name in members}
+    got = compile_in_pyodide(modules, runtime, cache)
+    for name, text in got["pyc"].items():
+        del members[name]
+        members[name[:-3] + ".pyc"] = base64.b64decode(text)
+    date = _zip_date()
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w") as z:
+        for arcname, data in sorted(members.items()):
+            info = zipfile.ZipInfo(arcname, date_time=date)
+            info.compress_type = zipfile.ZIP_DEFLATED
+            info.external_attr = 0o644 << 16
+            info.create_system = 3
+            z.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED, compresslevel=9)
+    return buf.getvalue()
+
+
+def compile_in_pyodide(modules: dict[str, str], runtime: dict[str, bytes], cache: Path) -> dict:
+    """{python, cache_tag, pyc: {name: base64}, failed: {name: error}} from the runtime's Python (cached)."""
+    return json.loads(run_in_pyodide(PYC_SCRIPT, modules, runtime, cache))
+
+
+def run_in_pyodide(script: str, sources: dict[str, str], runtime: dict[str, bytes], cache: Path) -> str:
+    """What ``script`` (a node module, given the runtime's folder) prints for ``sources`` (cached)."""
     key = sha256_bytes(
-        json.dumps([PYODIDE_TGZ_SHA256, PYC_SCRIPT, sorted(modules.items())], separators=(",", ":")).encode()
+        json.dumps([PYODIDE_TGZ_SHA256, script, sorted(sources.items())], separators=(",", ":")).encode()
     )
     stored = cache / "pyc" / f"{key}.json"
     if stored.exists():
-        got = json.loads(stored.read_text())
+        out = stored.read_text()
     else:
         node = shutil.which("node")
         if node is None:
             raise BuildError(
-                "node is needed to compile the wheel's modules (apt-get install nodejs), or --no-pyc"
+                "node is needed to compile the Python modules (apt-get install nodejs), or --no-pyc"
             )
         with tempfile.TemporaryDirectory(dir=cache) as tmp:
             for name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip"):
                 (Path(tmp) / name).write_bytes(runtime[name])
             (Path(tmp) / "pyodide-lock.json").write_bytes(runtime["pyodide-lock.json"])
-            (Path(tmp) / "compile.mjs").write_text(PYC_SCRIPT)
+            (Path(tmp) / "compile.mjs").write_text(script)
             proc = subprocess.run(
                 [node, str(Path(tmp) / "compile.mjs"), tmp],
-                input=json.dumps(modules),
+                input=json.dumps(sources),
                 capture_output=True,
                 text=True,
                 timeout=600,
             )
         if proc.returncode != 0:
-            raise BuildError(f"compiling the modules in Pyodide failed:\n{proc.stderr[-2000:]}")
-        got = json.loads(proc.stdout)
+            raise BuildError(f"running Python in Pyodide under node failed:\n{proc.stderr[-2000:]}")
+        out = proc.stdout
+        json.loads(out)  # whole, or an error here rather than a broken cache entry
         stored.parent.mkdir(exist_ok=True)
         part = stored.with_suffix(".part")
-        part.write_text(json.dumps(got, sort_keys=True))
+        part.write_text(out)
         os.replace(part, stored)
-    out = {}
-    for name, text in got["pyc"].items():
-        folder, _, module = name.rpartition("/")
-        out[f"{folder}/__pycache__/{module[:-3]}.{got['cache_tag']}.pyc"] = base64.b64decode(text)
     return out
 
 
@@ -443,6 +528,11 @@ def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bo
         f"wheel: {wheel_name} ({len(wheel):,} bytes, {len(package_files())} modules, "
         + (f"{len(compiled)} compiled by Pyodide's Python)" if pyc else "not compiled: --no-pyc)")
     )
+    if pyc:
+        stock = len(runtime["python_stdlib.zip"])
+        runtime["python_stdlib.zip"] = compiled_stdlib({**runtime, "pyodide-lock.json": lock_text}, cache)
+        size = len(runtime["python_stdlib.zip"])
+        step(f"standard library: the modules a start imports compiled ({stock:,} -> {size:,} bytes)")
 
     files: dict[str, bytes] = {}
     for rel, data in shell_files():

@@ -4,10 +4,11 @@
     python3 bench/startup.py [--runs 5] [--rates 1,4] [--quick] [--warm-plus] [--routes]
                              [--dist DIR] [--json FILE]
 
-Two pages are served from one copy of the build (so they share the very same runtime files):
-  bare  bench/bare/ copied to <dist>/bare/: a module worker loads ../pyodide/ exactly as the engine does
-        and runs ``1+1``; its page marks ``bare:engine-ready`` when the answer arrives. It has a service
-        worker of the same shape as the app's (precache, cache first), holding only what it needs;
+Two pages are served from one copy of the build:
+  bare  bench/bare/ copied to <dist>/bare/: a module worker loads Pyodide as released (bare/pyodide/,
+        from the pinned npm package, with the build's lock file) with the engine's options and runs
+        ``1+1``; its page marks ``bare:engine-ready`` when the answer arrives. It has a service worker
+        of the same shape as the app's (precache, cache first), holding only what it needs;
   app   the app to ``tidewell:first-result``: a ``blood_gas`` request is sent at engine-ready.
 Each *series* is one fresh headless Chromium profile and one server, visiting one page in turn:
   cold     the first visit (nothing cached, no service worker);
@@ -57,6 +58,9 @@ sys.path.insert(0, str(ROOT / "tests" / "browser"))
 
 from harness import CHROMIUM, Browser, Server, build  # noqa: E402
 
+sys.path.insert(0, str(ROOT))
+from build import cache_dir, fetch_runtime, read_runtime  # noqa: E402
+
 BARE = Path(__file__).resolve().parent / "bare"
 # An invented teaching gas (not a patient): chronic CO2 retention with an acute rise.
 BLOOD_GAS = {
@@ -96,6 +100,14 @@ SPIN = (
     " return performance.now() - t0; })()"
 )
 VISITS = ("cold", "warm", "warm+", "offline")
+# the parts of a start shown for the warm and offline visits (the worker's own timings, ms)
+PARTS = {
+    "worker_created": "worker created",
+    "before_start": "worker module loading",
+    "runtime": "loadPyodide",
+    "install": "install tidewell",
+    "import": "import tidewell",
+}
 ROUTES = ("unpack", "loadPackage", "micropip")
 
 
@@ -456,10 +468,21 @@ def series(dist: Path, arm: str, rate: float, *, warm_plus: bool, routes: bool) 
 
 
 def with_bare(dist: Path, into: Path) -> Path:
-    """A copy of the build with bench/bare/ as its bare/ folder (the app's own files untouched)."""
+    """A copy of the build with bench/bare/ as its bare/ folder (the app's own files untouched).
+
+    bare/pyodide/ holds the runtime as released in the pinned npm package: the build ships its own
+    python_stdlib.zip (start-up modules compiled), and the baseline is Pyodide without that. The
+    lock file is the build's (trimmed to the packages shipped), as the baseline always had.
+    """
     target = into / "site"
     shutil.copytree(dist, target)
     shutil.copytree(BARE, target / "bare")
+    runtime = target / "bare" / "pyodide"
+    runtime.mkdir()
+    for name, data in read_runtime(fetch_runtime(cache_dir())).items():
+        if name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip"):
+            (runtime / name).write_bytes(data)
+    shutil.copy(dist / "pyodide" / "pyodide-lock.json", runtime / "pyodide-lock.json")
     return target
 
 
@@ -475,9 +498,7 @@ def summarise(pairs: list[tuple[dict, dict]], rate: float) -> dict:
         *VISITS,
         "warm:shell",
         "warm+:shell",
-        "warm:worker_created",
-        "warm:before_start",
-        "warm:runtime",
+        *(f"{visit}:{part}" for visit in ("warm", "offline") for part in PARTS),
         "spin:page",
         "spin:worker",
         "factor:page",
@@ -511,12 +532,11 @@ def show(summary: dict) -> None:
         bare = f"{row['bare']:{f}}" if row["bare"] is not None else "-"
         ratio = f"{row['ratio']:.3f}" if row["ratio"] is not None else ""
         spread = f"{row['app_min']:{f}}-{row['app_max']:{f}}"
+        visit, _, part = key.partition(":")
         label = {
             "warm:shell": "warm: app shell-ready",
             "warm+:shell": "warm+: app shell-ready",
-            "warm:worker_created": "warm: worker created",
-            "warm:before_start": "warm: worker module loading",
-            "warm:runtime": "warm: loadPyodide",
+            **({key: f"{visit}: {PARTS[part]}"} if part in PARTS else {}),
             "spin:page": "CPU loop in the page",
             "spin:worker": "CPU loop in the worker",
             "factor:page": "factor applied, page",

@@ -1,5 +1,5 @@
-// The baseline page of bench/startup.py: start a module worker that loads the app's own Pyodide
-// runtime (../pyodide/) and runs 1+1; mark bare:engine-ready when the answer comes back. Registers a
+// The baseline page of bench/startup.py: start a module worker that loads Pyodide as released
+// (./pyodide/) and runs 1+1; mark bare:engine-ready when the answer comes back. Registers a
 // service worker of the same shape as the app's (precache, cache first), so warm and offline visits
 // are served from the Cache API exactly as the app's are.
 

@@ -1,6 +1,6 @@
 // The baseline's service worker: the same shape as the app's (webshell/sw.js): precache on install,
 // awaited; activate takes control; fetch answers cache first, navigations get ./index.html. It stores
-// only what bare Pyodide needs: this page and the runtime files the app ships.
+// only what bare Pyodide needs: this page and the runtime as released.
 
 const CACHE = "bare-pyodide";
 const PRECACHE = [
@@ -9,11 +9,11 @@ const PRECACHE = [
   "./bare.js",
   "./worker.js",
   "../icons/icon-192.png",
-  "../pyodide/pyodide.mjs",
-  "../pyodide/pyodide.asm.js",
-  "../pyodide/pyodide.asm.wasm",
-  "../pyodide/python_stdlib.zip",
-  "../pyodide/pyodide-lock.json",
+  "./pyodide/pyodide.mjs",
+  "./pyodide/pyodide.asm.js",
+  "./pyodide/pyodide.asm.wasm",
+  "./pyodide/python_stdlib.zip",
+  "./pyodide/pyodide-lock.json",
 ];
 
 self.addEventListener("install", (event) => {

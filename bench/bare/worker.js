@@ -1,9 +1,9 @@
-// Bare Pyodide in a module worker: load the runtime exactly as the app's engine does (same files,
-// same options), run 1+1, post the answer and how long loadPyodide took.
+// Bare Pyodide in a module worker: load the runtime as released (./pyodide/, copied there by
+// bench/startup.py) with the app's engine's options, run 1+1, post the answer and how long loadPyodide took.
 
-import { loadPyodide } from "../pyodide/pyodide.mjs";
+import { loadPyodide } from "./pyodide/pyodide.mjs";
 
-const INDEX_URL = new URL("../pyodide/", import.meta.url).href;
+const INDEX_URL = new URL("./pyodide/", import.meta.url).href;
 const t0 = performance.now();
 const pyodide = await loadPyodide({
   indexURL: INDEX_URL,
