@@ -16,6 +16,10 @@ const BUILD_ID = "__BUILD_ID__";
 const CACHE = `tidewell-${BUILD_ID}`;
 const PRECACHE = __PRECACHE__;
 
+// the build's cache, opened once per service-worker start rather than once per request
+let cacheOpened = null;
+const opened = () => (cacheOpened ||= caches.open(CACHE));
+
 const hex = (buffer) => Array.from(new Uint8Array(buffer), (b) => b.toString(16).padStart(2, "0")).join("");
 
 async function matches(cache, url) {
@@ -89,7 +93,7 @@ self.addEventListener("fetch", (event) => {
   }
   event.respondWith(
     (async () => {
-      const cache = await caches.open(CACHE);
+      const cache = await opened();
       const key = request.mode === "navigate" ? new URL("./index.html", self.location.href).href : request;
       const hit = await cache.match(key);
       return hit || fetch(request);

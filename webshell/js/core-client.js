@@ -81,6 +81,7 @@ class Engine extends EventTarget {
     this.attempt = 0;
     this.restarts = 0; // automatic restarts after a fault, for the status line and tests
     this.restarting = false;
+    this.begun = false;
     this.lastFault = "";
     this.faultTimes = [];
     this.requestTimeout = configured("request-timeout", REQUEST_TIMEOUT_MS);
@@ -137,6 +138,14 @@ class Engine extends EventTarget {
   stop() {
     this.terminate();
     this.rejectPending("The engine stopped before it answered.");
+  }
+
+  // the first start, once (later starts are restarts and retries)
+  begin() {
+    if (!this.begun) {
+      this.begun = true;
+      this.start();
+    }
   }
 
   retry() {
@@ -319,6 +328,7 @@ class Engine extends EventTarget {
   }
 
   send(envelope) {
+    this.begin();
     if (this.state === "failed" || !this.worker) {
       return Promise.reject(new EngineError(`The engine is not available: ${this.failure || "not started"}`));
     }
@@ -355,6 +365,7 @@ export function markShellReady() {
   if (performance.getEntriesByName("tidewell:shell-ready", "mark").length === 0) {
     performance.mark("tidewell:shell-ready");
   }
+  engine.begin();
 }
 
 window.tidewell = Object.freeze({
@@ -367,4 +378,9 @@ window.tidewell = Object.freeze({
   engine,
 });
 
-engine.start();
+// The engine starts once the shell works (main.js calls markShellReady()), so that building the screens
+// does not share the CPU with Python's start: started from the first script instead, the shell was ready
+// later (docs/performance.md). A page that never calls it starts the engine when the document has loaded,
+// and a request made before then starts it at once.
+if (document.readyState === "complete") engine.begin();
+else window.addEventListener("load", () => engine.begin(), { once: true });
