@@ -77,6 +77,25 @@ def wait_report(browser, calc: str, timeout: float = 90) -> str:
     )
 
 
+# An invented retrieval journey (not a patient): the flight screen's "retrieval" example, and a small
+# cylinder for the oxygen supply. Used by the screen test and the whole-session network test.
+JOURNEY_SUPPLY = {
+    "cylinder_water_capacity": ("2", "L"),
+    "cylinder_pressure": ("200", "bar"),
+    "cylinders": "1",
+    "flow": ("4", "L/min"),
+    "duration": ("90", "min"),
+}
+
+
+def fill_flight_journey(browser) -> None:
+    """On the flight screen: tap the retrieval example, fill the oxygen supply, wait for both reports."""
+    browser.driver.find_element(By.CSS_SELECTOR, "[data-example=retrieval]").click()
+    fill(browser, "oxygen_supply", JOURNEY_SUPPLY)
+    assert wait_report(browser, "altitude") == "done"
+    assert wait_report(browser, "oxygen_supply") == "done"
+
+
 def shown_numbers(browser, calc: str) -> dict:
     """data-out path -> [text shown, raw value] for every number button of the panel's report."""
     return dict(

@@ -11,7 +11,7 @@ from urllib.parse import urlsplit
 
 from harness import ROOT
 from offline_support import ask_service_worker, log_labels, save_case, watch, watched
-from screens_support import fill, tap, wait_report
+from screens_support import fill, fill_flight_journey, tap, wait_report
 from selenium.webdriver.common.by import By
 from selenium.webdriver.support.ui import Select
 
@@ -175,20 +175,7 @@ def full_session(browser) -> list[str]:
     visited.append("breathing")
     # Flight & O2: the altitude profile (numpy) and the oxygen supply
     _go(browser, "flight")
-    browser.driver.find_element(By.CSS_SELECTOR, "[data-example=retrieval]").click()
-    fill(
-        browser,
-        "oxygen_supply",
-        {
-            "cylinder_water_capacity": ("2", "L"),
-            "cylinder_pressure": ("200", "bar"),
-            "cylinders": "1",
-            "flow": ("4", "L/min"),
-            "duration": ("90", "min"),
-        },
-    )
-    assert wait_report(browser, "altitude") == "done"
-    assert wait_report(browser, "oxygen_supply") == "done"
+    fill_flight_journey(browser)
     assert browser.js("return !!document.querySelector('[data-picture=profile] path.line-pt')")
     visited.append("flight")
     # Case log: listed, exported both ways, reopened

@@ -8,6 +8,7 @@ from screens_support import (
     check_numbers,
     core,
     fill,
+    fill_flight_journey,
     no_horizontal_overflow,
     open_screen,
     phone,
@@ -207,21 +208,8 @@ def test_flight_screen_altitude_profile_and_oxygen_supply(browser, server):
     phone(browser)
     open_screen(browser, server.url, "flight")
     browser.wait_engine()
-    browser.driver.find_element(By.CSS_SELECTOR, "[data-example=retrieval]").click()
+    fill_flight_journey(browser)
     assert "Invented" in browser.js("return document.querySelector('#example-note-flight').textContent")
-    fill(
-        browser,
-        "oxygen_supply",
-        {
-            "cylinder_water_capacity": ("2", "L"),
-            "cylinder_pressure": ("200", "bar"),
-            "cylinders": "1",
-            "flow": ("4", "L/min"),
-            "duration": ("90", "min"),
-        },
-    )
-    assert wait_report(browser, "altitude") == "done"
-    assert wait_report(browser, "oxygen_supply") == "done"
     q = lambda v, u: {"value": v, "unit": u}  # noqa: E731
     inputs = {
         "altitude": q(8000, "ft"),
