@@ -19,6 +19,9 @@ from pathlib import Path
 import pytest
 from harness import BUILD_PY, ROOT, build
 
+sys.path.insert(0, str(ROOT))
+from build import cache_dir, fetch_runtime, read_runtime
+
 # pyodide@0.27.7's own pyodide-lock.json (the build checks against the copy inside the npm tarball)
 LOCK_SHA256 = {
     "numpy-2.0.2-cp312-cp312-pyodide_2024_0_wasm32.whl": (
@@ -183,6 +186,13 @@ import { readFileSync } from "fs";
 const [pyodideDir, wheelPath] = process.argv.slice(2);
 const { loadPyodide } = await import(pyodideDir + "/pyodide.mjs");
 const pyodide = await loadPyodide({ indexURL: pyodideDir + "/", stdout: () => {} });
+// the standard-library modules Pyodide's own start loaded, and whether each came from a .pyc
+const started = JSON.parse(pyodide.runPython(`
+import json, sys
+prefix = next(p for p in sys.path if p.endswith(".zip")) + "/"
+files = [getattr(m, "__file__", None) or "" for m in list(sys.modules.values())]
+json.dumps([f for f in files if f.startswith(prefix)])
+`));
 const site = pyodide.runPython("import site; site.getsitepackages()[0]");
 pyodide.unpackArchive(new Uint8Array(readFileSync(wheelPath)), "wheel", { extractDir: site });
 process.stdout.write(pyodide.runPython(`
@@ -191,10 +201,14 @@ importlib.invalidate_caches()
 # every source now fails if it is read: the import must come from the compiled files alone
 for path in pathlib.Path(site.getsitepackages()[0], "tidewell").rglob("*.py"):
     path.write_text("raise ImportError('the source was compiled at start-up')\\n")
-import tidewell.bridge, tidewell.interpret
+import sys, tidewell.bridge, tidewell.interpret
 json.dumps({"convert": json.loads(tidewell.bridge.handle(json.dumps(
-    {"calc": "convert", "inputs": {"quantity": {"value": 1, "unit": "kPa"}, "to": "mmHg"}})))["ok"]})
+    {"calc": "convert", "inputs": {"quantity": {"value": 1, "unit": "kPa"}, "to": "mmHg"}})))["ok"],
+    "json": sys.modules["json"].__file__, "difflib": sys.modules["difflib"].__file__})
 `));
+const sources = started.filter((file) => !file.endsWith(".pyc"));
+console.error(JSON.stringify({ started: started.length, from_source: sources }));
+if (sources.length || started.length < 50) process.exitCode = 3;
 """
 
 
@@ -225,5 +239,32 @@ def test_runtime_imports_the_compiled_modules_without_reading_sources(dist, tmp_
         text=True,
         timeout=600,
     )
+    # every standard-library module of Pyodide's own start came from a compiled file (stderr says which
+    # did not), and so did json and difflib, which tidewell imports
     assert proc.returncode == 0, proc.stderr[-2000:]
-    assert json.loads(proc.stdout) == {"convert": True}
+    assert json.loads(proc.stdout) == {
+        "convert": True,
+        "json": "/lib/python312.zip/json/__init__.pyc",
+        "difflib": "/lib/python312.zip/difflib.pyc",
+    }
+
+
+def test_standard_library_differs_from_the_release_only_by_compiled_modules(dist):
+    # the build's python_stdlib.zip against the pinned npm package's: the same members but for some
+    # name.py replaced by name.pyc, each an unchecked-hash .pyc for Python 3.12 (PEP 552)
+    released = read_runtime(fetch_runtime(cache_dir()))["python_stdlib.zip"]
+    with zipfile.ZipFile(io.BytesIO(released)) as z:
+        stock = {i.filename: z.read(i) for i in z.infolist() if not i.is_dir()}
+    with zipfile.ZipFile(dist / "pyodide" / "python_stdlib.zip") as z:
+        ours = {i.filename: z.read(i) for i in z.infolist()}
+    compiled = {name for name in ours if name.endswith(".pyc")}
+    assert len(compiled) >= 50
+    assert {name[:-1] for name in compiled} <= stock.keys()
+    assert not {name[:-1] for name in compiled} & ours.keys()  # the source is not shipped beside it
+    assert {name: data for name, data in ours.items() if name not in compiled} == {
+        name: data for name, data in stock.items() if name + "c" not in compiled
+    }
+    for name in sorted(compiled):
+        header = ours[name][:16]
+        assert header[:4] == MAGIC_312, name
+        assert int.from_bytes(header[4:8], "little") == 0b01, name
