@@ -271,16 +271,22 @@ def _record_hash(data: bytes) -> str:
     return "sha256=" + base64.urlsafe_b64encode(hashlib.sha256(data).digest()).rstrip(b"=").decode()
 
 
-#: run by node: load the pinned Pyodide from argv[2], compile every module it reads as JSON on stdin
-#: ({archive name: source}) into an unchecked-hash .pyc, print {python, cache_tag, pyc: {name: base64}}.
-PYC_SCRIPT = r"""
+#: the start of each script node runs: load the pinned Pyodide from argv[2], read JSON from stdin into
+#: the Python global SOURCES ({archive name: source})
+NODE_PRELUDE = r"""
 import { loadPyodide } from "./pyodide.mjs";
 const chunks = [];
 for await (const chunk of process.stdin) chunks.push(chunk);
 const pyodide = await loadPyodide({ indexURL: process.argv[2] + "/", stdout: () => {},
   stderr: (line) => console.error(line) });
 pyodide.globals.set("SOURCES", pyodide.toPy(JSON.parse(Buffer.concat(chunks).toString())));
-process.stdout.write(pyodide.runPython(`
+"""
+
+#: run by node: load the pinned Pyodide from argv[2], compile every module it reads as JSON on stdin
+#: ({archive name: source}) into an unchecked-hash .pyc, print {python, cache_tag, pyc: {name: base64}}.
+PYC_SCRIPT = (
+    NODE_PRELUDE
+    + r"""process.stdout.write(pyodide.runPython(`
 import base64, importlib.util, json, sys
 from importlib._bootstrap_external import _code_to_hash_pyc
 out, failed = {}, {}
@@ -296,6 +302,7 @@ json.dumps({"python": sys.version.split()[0], "cache_tag": sys.implementation.ca
             "failed": failed})
 `));
 """
+)
 
 
 def compile_modules(
@@ -316,14 +323,9 @@ def compile_modules(
 #: run by node: load the pinned Pyodide from argv[2], put the tidewell sources read as JSON on stdin
 #: ({archive name: source}) on sys.path, import every tidewell module that imports without numpy and
 #: answer one blood_gas request; print the standard-library modules then loaded (names in the zip).
-STDLIB_PROBE = r"""
-import { loadPyodide } from "./pyodide.mjs";
-const chunks = [];
-for await (const chunk of process.stdin) chunks.push(chunk);
-const pyodide = await loadPyodide({ indexURL: process.argv[2] + "/", stdout: () => {},
-  stderr: (line) => console.error(line) });
-pyodide.globals.set("SOURCES", pyodide.toPy(JSON.parse(Buffer.concat(chunks).toString())));
-process.stdout.write(pyodide.runPython(`
+STDLIB_PROBE = (
+    NODE_PRELUDE
+    + r"""process.stdout.write(pyodide.runPython(`
 import importlib, json, os, sys
 for name, text in SOURCES.items():
     path = "/tmp/probe/" + name
@@ -332,7 +334,8 @@ for name, text in SOURCES.items():
         f.write(text)
 sys.path.insert(0, "/tmp/probe")
 import tidewell.bridge
-tidewell.bridge.handle(json.dumps({"calc": "blood_gas", "inputs": {"ph": 7.3, "pco2": 60, "hco3": 29}}))
+gas = {"ph": 7.31, "pco2": {"value": 9.1, "unit": "kPa"}, "hco3": {"value": 33, "unit": "mmol/L"}}
+assert json.loads(tidewell.bridge.handle(json.dumps({"calc": "blood_gas", "inputs": gas})))["ok"]
 for name in sorted(SOURCES):
     if name.endswith("__main__.py"):
         continue
@@ -345,6 +348,7 @@ json.dumps(sorted({m.__file__[len(prefix):] for m in list(sys.modules.values())
                    if (getattr(m, "__file__", None) or "").startswith(prefix)}))
 `));
 """
+)
 
 
 def compiled_stdlib(runtime: dict[str, bytes], cache: Path) -> bytes:
