@@ -255,6 +255,20 @@ def _zip_date() -> tuple[int, int, int, int, int, int]:
     return (t.tm_year, t.tm_mon, t.tm_mday, t.tm_hour, t.tm_min, t.tm_sec - t.tm_sec % 2)
 
 
+def write_zip(members: list[tuple[str, bytes]]) -> bytes:
+    """A zip of ``members`` in the order given: deflate 9, one fixed date, mode 644 (reproducible)."""
+    date = _zip_date()
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w") as z:
+        for arcname, data in members:
+            info = zipfile.ZipInfo(arcname, date_time=date)
+            info.compress_type = zipfile.ZIP_DEFLATED
+            info.external_attr = 0o644 << 16
+            info.create_system = 3
+            z.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED, compresslevel=9)
+    return buf.getvalue()
+
+
 def package_files() -> list[tuple[str, bytes]]:
     """(archive name, bytes) of every shipped file of core/tidewell, sorted."""
     files = []
@@ -375,16 +389,7 @@ def compiled_stdlib(runtime: dict[str, bytes], cache: Path) -> bytes:
     for name, text in got["pyc"].items():
         del members[name]
         members[name[:-3] + ".pyc"] = base64.b64decode(text)
-    date = _zip_date()
-    buf = io.BytesIO()
-    with zipfile.ZipFile(buf, "w") as z:
-        for arcname, data in sorted(members.items()):
-            info = zipfile.ZipInfo(arcname, date_time=date)
-            info.compress_type = zipfile.ZIP_DEFLATED
-            info.external_attr = 0o644 << 16
-            info.create_system = 3
-            z.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED, compresslevel=9)
-    return buf.getvalue()
+    return write_zip(sorted(members.items()))
 
 
 def compile_in_pyodide(modules: dict[str, str], runtime: dict[str, bytes], cache: Path) -> dict:
@@ -460,16 +465,7 @@ def build_wheel(meta: dict, pyc: dict[str, bytes] | None = None) -> tuple[str, b
     record += f"{dist_info}/RECORD,,\n"
     members.append((f"{dist_info}/RECORD", record.encode()))
 
-    date = _zip_date()
-    buf = io.BytesIO()
-    with zipfile.ZipFile(buf, "w") as z:
-        for arcname, data in members:
-            info = zipfile.ZipInfo(arcname, date_time=date)
-            info.compress_type = zipfile.ZIP_DEFLATED
-            info.external_attr = 0o644 << 16
-            info.create_system = 3
-            z.writestr(info, data, compress_type=zipfile.ZIP_DEFLATED, compresslevel=9)
-    return f"{name}-{version}-py3-none-any.whl", buf.getvalue()
+    return f"{name}-{version}-py3-none-any.whl", write_zip(members)
 
 
 # -- 4 and 5. assemble the site --------------------------------------------------------------------
