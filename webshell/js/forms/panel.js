@@ -226,6 +226,8 @@ export class Panel {
   }
 
   soon() {
+    // an edit makes any calculation still in flight stale: it must neither draw its answer nor clear busy
+    this.sequence++;
     this.report.dataset.busy = "1";
     clearTimeout(this.timer);
     clearTimeout(this.sureTimer); // an edit cancels the how-sure run that was about to start
