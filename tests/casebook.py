@@ -86,6 +86,7 @@ AB_PATHS = {
     "ph_difference": ("ph_difference",),
     "h_kb_nmol_L": ("h_nmol_l_kassirer", "value"),
     "h_measured_nmol_L": ("h_nmol_l_measured", "value"),
+    "pco2_target_mmHg": ("pco2_target", "value"),
     "pao2_alv_mmHg": ("pao2_alveolar", "value"),
     "aa_gradient_mmHg": ("a_a_gradient", "value"),
     "aa_expected_age_mmHg": ("a_a_expected_upper", "value"),

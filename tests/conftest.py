@@ -381,10 +381,32 @@ def _blood_gas(inputs, outputs, response) -> None:
         _need(outputs, "expected_pco2", why="a metabolic disorder is primary")
     if disorders and codes[0].startswith("respiratory_"):
         _need(outputs, "expected_hco3", why="a respiratory disorder is primary")
-    if "respiratory_acidosis" in codes:
-        _need(outputs, "pco2_target", "baseline_pco2_source", why="respiratory acidosis")
+    site = inputs.get("sample") or "arterial"
+    if "respiratory_acidosis" in codes and site != "venous":
+        _need(
+            outputs,
+            "pco2_target",
+            "pco2_target_basis",
+            "baseline_pco2_source",
+            "pco2_alkalaemia_floor",
+            why="respiratory acidosis on an arterial or capillary sample",
+        )
+        # the PaCO2 aim (references.py pco2_aim, common practice on Henderson-Hasselbalch): with
+        # P(x) = PaCO2 x 10^(pH - x), never below P(7.45) nor above the present PaCO2; below it while
+        # pH < 7.35
+        paco2 = _mmhg(inputs["pco2"])
+        aim = _mmhg(outputs["pco2_target"])
+        floor = paco2 * 10 ** (ph - 7.45)
+        low = min(floor, paco2)  # alkalaemic already (pH > 7.45): hold the present PaCO2
+        assert low * (1 - 1e-9) <= aim <= paco2 * (1 + 1e-9), f"aim {aim} outside {low}..{paco2}"
+        if ph < 7.35:
+            assert aim < paco2, f"aim {aim} not below the present PaCO2 {paco2} at pH {ph}"
+    if site == "venous":
+        assert "pco2_target" not in outputs, "a venous sample gives no PaCO2 aim"
+        assert "respiratory_failure" not in outputs, "no respiratory failure type from a venous sample"
     if _given(inputs, "baseline_pco2") and "baseline_pco2_source" in outputs:
         assert outputs["baseline_pco2_source"] == "given"
+    assert outputs["fio2_source"] == ("given" if _given(inputs, "fio2") else "assumed_air")
     if _given(inputs, "na") and _given(inputs, "cl"):
         _need(outputs, "anion_gap", why="na and cl given")
         if _given(inputs, "albumin"):
@@ -396,10 +418,30 @@ def _blood_gas(inputs, outputs, response) -> None:
     urea = _given(inputs, "urea") or _given(inputs, "bun")
     if all(_given(inputs, k) for k in ("measured_osmolality", "na", "glucose")) and urea:
         _need(outputs, "osmolar_gap", why="measured osmolality, na, glucose and urea given")
-    if _given(inputs, "po2") and inputs.get("sample", "arterial") != "venous":
-        _need(outputs, "pao2_alveolar", "a_a_gradient", "pf_ratio", "respiratory_failure", why="po2 given")
-        if _given(inputs, "age"):
-            _need(outputs, "a_a_expected_upper", why="po2 and age given")
+    findings = {f["code"] for f in response["findings"]}
+    if _given(inputs, "po2") and site == "arterial":
+        if "oxygen_probably_given" not in findings:
+            _need(outputs, "pao2_alveolar", why="arterial po2 given")
+        if "oxygen_probably_given" in findings:
+            # FiO2 not recorded and PaO2 above the alveolar PO2 on air: not interpretable
+            assert not _given(inputs, "fio2")
+            if "pao2_alveolar" in outputs:
+                assert _mmhg(outputs["pao2_alveolar"]) < _mmhg(inputs["po2"])
+            for name in ("a_a_gradient", "pf_ratio", "a_a_category"):
+                assert name not in outputs, f"{name} although the oxygenation is not interpretable"
+        else:
+            _need(outputs, "a_a_gradient", "pf_ratio", "respiratory_failure", why="arterial po2 given")
+            if _given(inputs, "age"):
+                _need(outputs, "a_a_expected_upper", why="po2 and age given")
+    if site == "capillary":
+        for name in ("a_a_gradient", "pf_ratio"):
+            assert name not in outputs, f"{name} from an earlobe PO2"
+    if site != "venous" and "oxygen_probably_given" not in findings:
+        _need(outputs, "respiratory_failure", why="arterial or capillary sample")
+    if "respiratory_failure" in outputs:
+        # type 2 whenever a respiratory acidosis is named with PCO2 above 6.0 kPa (BTS 2017 clarification)
+        type_2 = "respiratory_acidosis" in codes and _mmhg(inputs["pco2"]) > 45.0
+        assert (outputs["respiratory_failure"] == "type_2") == type_2, outputs["respiratory_failure"]
 
 
 def _alveolar_gas(inputs, outputs, response) -> None:

@@ -425,6 +425,13 @@ def _read_arrays(table: Table, rows: np.ndarray):
         present, okcell = state != _ABSENT, state == _OK
         ok &= state != _BAD
         default = o.get("default")
+        if f.key == "fio2":
+            v.fio2_given = present
+        if f.kind == "range":
+            # a prescribed SpO2 range has no column form: such a row is read by the scalar path
+            ok &= ~present
+            v.spo2_rx_low = v.spo2_rx_high = np.full(n, np.nan)
+            continue
         if f.kind == "choice":
             # each distinct text once, then per row through its code
             good = np.array([w in o["choices"] for w in words])[code]
@@ -436,6 +443,8 @@ def _read_arrays(table: Table, rows: np.ndarray):
             present = np.array([w not in EMPTY for w in words])[code]
             ok &= ~present | good
             value = present & truth
+            if "default" in o:  # a flag that may be unknown: 1.0 true, 0.0 false, NaN not given
+                value = np.where(present, truth.astype(float), np.nan)
         else:
             if f.kind in ("ph", "number"):
                 unitless = unit_of[f.key] == ""
@@ -478,7 +487,7 @@ def _read_arrays(table: Table, rows: np.ndarray):
     )
     v.pb_value = np.where(has_pb, v.pb, np.where(has_alt, isa, 760.0))
     pio2 = interpret.inspired_po2(v.fio2, v.pb_value)
-    oxygen = ~np.isnan(v.po2) & (v.site != "venous")
+    oxygen = ~np.isnan(v.po2) & (v.site != "venous") & v.fio2_given
     ok &= ~(oxygen & interpret.po2_above_inspired(v.po2, pio2))
     ok &= ~(oxygen & interpret.no_alveolar_oxygen(pio2, v.pco2, v.rq))
     flags = interpret.mix_up_flags(
@@ -661,12 +670,12 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("metabolic_acidosis_type", d.acidosis_type, arr(d.acidosis_type) != "")
     put("osmolar_gap", d.osmolar_gap, d.osm_gap_given)
     put("strong_ion_gap", d.strong_ion_gap, ~arr(d.doubtful, bool) & arr(d.sig_given, bool))
-    put("pao2_alveolar", pressure(d.pao2_alveolar), d.oxygenation)
+    put("pao2_alveolar", pressure(d.pao2_alveolar), d.alveolar_given)
     put("a_a_gradient", pressure(d.a_a_gradient), d.oxygenation)
     put("a_a_category", d.a_a_category, d.oxygenation)
     put("pf_ratio", d.pf_ratio, d.oxygenation)
-    put("respiratory_failure", d.respiratory_failure, d.oxygenation)
-    low, high = arr(d.spo2_low).astype(str), arr(d.spo2_high).astype(str)
+    put("respiratory_failure", d.respiratory_failure, d.rf_given)
+    low, high = (np.array([f"{v:g}" for v in arr(x, float).tolist()]) for x in (d.spo2_low, d.spo2_high))
     put("spo2_target", np.char.add(np.char.add(low, "-"), high).astype(object))
     below, above = arr(d.finding["spo2_below_target"], bool), arr(d.finding["spo2_above_target"], bool)
     put("spo2_on_target", np.where(below, "below", np.where(above, "above", "within")), ~np.isnan(x.spo2))

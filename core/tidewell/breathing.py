@@ -1422,6 +1422,17 @@ def _to_target(
                 f"({te_min:.1f} s, {tau_used:g} s {tau_word}): risk of gas trapping and auto-PEEP.",
             )
     report.put("to_target", out, decimals=1)
+    # the settings asked for lead the summary, rounded to what a ventilator is set to (whole breaths, VT to
+    # 10 mL)
+    lead = f"To bring the PaCO2 to {report.pressure_text(target)}: VE about {ve_new:.1f} L/min"
+    if "rr_at_same_vt" in out:
+        lead += (
+            f"; a rate of about {round(out['rr_at_same_vt']):.0f}/min at the same VT "
+            f"({10 * round(vt / 10):.0f} mL), "
+            f"or a VT of about {10 * round(out['vt_at_same_rr']['value'] / 10):.0f} mL at the same rate "
+            f"({round(rr):.0f}/min)"
+        )
+    report.summary.insert(0, lead + ".")
     if target < pco2:
         report.caution(
             "If the patient has chronic hypercapnia, aim for their usual PaCO2 rather than 40 mmHg and lower "
@@ -1568,4 +1579,7 @@ def _mechanisms(
             "info",
             "VCO2 was measured and VD/VT derived from it, PaCO2 and VE: the shares rest on measurements.",
         )
-    report.say(f"The raised PaCO2 is mostly due to {_CAUSE_WORDS[main]} ({m.shares[main] * 100:.0f} %).")
+    report.say(
+        f"The raised PaCO2 is mostly due to {_CAUSE_WORDS[main]} ({m.shares[main] * 100:.0f} %)"
+        + (" by an estimated VCO2: indicative only." if vco2_source == "estimated" else ".")
+    )

@@ -110,6 +110,12 @@ def typed_value(key: str, text: str, default_unit: str | None = None):
     if kind == "flag":
         folded = text.strip().casefold()
         return True if folded in TRUE else False if folded in FALSE else text.strip()
+    if kind == "range":
+        low, _, high = text.strip().rstrip("%").partition("-")
+        try:
+            return {"low": float(low), "high": float(high)}
+        except ValueError:
+            return text.strip()
     state, number, unit = split_cell(text)
     unit = unit if unit is not None else default_unit
     value = number if state == NUMBER else text.strip()
@@ -191,6 +197,18 @@ SAMPLE_FLAGS = {
             "hypercapnia_risk",
             None,
             "the patient is at risk of hypercapnic respiratory failure (e.g. COPD)",
+        ),
+        (
+            "--previous-hypercapnic-failure",
+            "previous_hypercapnic_failure",
+            "YES|NO",
+            "has needed NIV or invasive ventilation for hypercapnic failure",
+        ),
+        (
+            "--spo2-target-prescribed",
+            "spo2_target_prescribed",
+            "LOW-HIGH",
+            "the patient's own SpO2 range (alert card), e.g. 88-92",
         ),
     ),
     "Settings": (

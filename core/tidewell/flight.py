@@ -968,6 +968,11 @@ def _trapped_gas_outputs(report: Report, f: _Flight, ph: _Physiology) -> None:
     report.computed("trapped_gas_expansion", ratio, "Expansion ratio", "V2 / V1", "boyle", decimals=2)
 
 
+#: the highest cabin altitude the summary speaks of [m] (the altitude profile's default ceiling, 3,000 m:
+#: above commercial cabins, AsMA 2008 <= 8,000 ft)
+CABIN_SUMMARY_CEILING_M = DEFAULT_CEILING_M
+
+
 def _summary(report: Report, f: _Flight, ph: _Physiology) -> None:
     change = "falls" if f.pb <= f.pb_origin else "rises"
     report.say(
@@ -982,10 +987,20 @@ def _summary(report: Report, f: _Flight, ph: _Physiology) -> None:
         )
     if ph.max_altitude is not None and ph.max_altitude.altitude_m is not None:
         lead = "at least " if ph.max_altitude.status == "holds_at_ceiling" else ""
-        report.say(
-            f"On FiO2 {f.fio2_max:.2f} the predicted PaO2 stays at or above {_p(report, f.target_po2)} up to "
-            f"{lead}{_alt_text(ph.max_altitude.altitude_m, f.unit)}."
-        )
+        target = _p(report, f.target_po2)
+        if ph.max_altitude.altitude_m > CABIN_SUMMARY_CEILING_M:
+            # a cabin far above any pressurised cabin is no plan: the summary stops at the highest cabin
+            # altitude considered (the profile's default ceiling); max_altitude keeps the number
+            report.say(
+                f"On FiO2 {f.fio2_max:.2f} the predicted PaO2 stays at or above {target} at "
+                f"every cabin altitude up to {_alt_text(CABIN_SUMMARY_CEILING_M, f.unit)}, the highest "
+                "considered here."
+            )
+        else:
+            report.say(
+                f"On FiO2 {f.fio2_max:.2f} the predicted PaO2 stays at or above {target} up "
+                f"to {lead}{_alt_text(ph.max_altitude.altitude_m, f.unit)}."
+            )
     if ph.volume_wet is not None:
         report.say(
             f"Trapped gas of {_g(units.convert(f.volume, 'mL', f.volume_unit))} {f.volume_unit} becomes "

@@ -123,8 +123,16 @@ NARCOSIS_NORMAL_MMHG, NARCOSIS_CHRONIC_MMHG = 75.0, 90.0
 NARCOSIS_RISE_MMHG = NARCOSIS_NORMAL_MMHG - ab.NORMAL_PCO2_MMHG
 #: hypoxaemia threshold for respiratory failure [mmHg] (8 kPa)
 HYPOXAEMIA_MMHG = 60.0
+#: P/F ratio bands [mmHg]: impaired oxygenation at or below 300, more severe at or below 200 and 100 (ARDS
+#: Definition Task Force 2012; named by the P/F only, as their ARDS label needs PEEP and imaging)
+PF_IMPAIRED, PF_MODERATE, PF_SEVERE = 300.0, 200.0, 100.0
 #: anion gap at or above which a high-AG acidosis is named whatever the HCO3 (Gabow 1980, from memory)
 AG_ALWAYS_ACIDOSIS = 20.0
+#: beside an acidaemic respiratory acidosis: the lactate [mmol/L] and the (albumin-corrected) anion gap
+#: [mmol/L] above which a concurrent metabolic acidosis is named (common practice; Cohen & Woods 1976)
+LACTATE_ACIDOSIS, AG_BESIDE_HYPERCAPNIA = 4.0, 16.0
+#: lactate above the upper reference limit [mmol/L] (common practice)
+LACTATE_RAISED = 2.0
 #: minimum margin beyond a compensation band before a second disorder is named [mmol/L]
 HCO3_MARGIN_MIN = 2.0
 #: SBE tolerance for the Copenhagen reading [mmol/L]
@@ -137,6 +145,7 @@ TYPICAL_CA_IONISED, TYPICAL_MG, TYPICAL_PHOSPHATE = 1.2, 0.9, 1.0
 FLOOR_PH = 7.45
 
 _CONVENTION = "tidewell_acid_base_conventions"
+INF = math.inf
 
 
 def _r9(x: float | None) -> float | None:
@@ -227,6 +236,18 @@ FIELDS: tuple[Field, ...] = (
     ),
     Field("hypercapnia_risk", "hypercapnia_risk", "flag", {"label": "hypercapnia_risk"}),
     Field(
+        "previous_hypercapnic_failure",
+        "previous_failure",
+        "flag",
+        {"label": "previous_hypercapnic_failure", "default": None},
+    ),
+    Field(
+        "spo2_target_prescribed",
+        "spo2_prescribed",
+        "range",
+        {"low": 80.0, "high": 100.0, "label": "prescribed SpO2 range"},
+    ),
+    Field(
         "ca_ionised",
         "ca_ionised",
         "quantity",
@@ -259,11 +280,37 @@ def _read(i: Inputs, f: Field):
         value = i.choice(f.key, o["choices"], default=o["default"], label=o["label"])
     elif f.kind == "percent":
         value = i.percent(f.key, **o)
+    elif f.kind == "range":
+        value = _read_range(i, f.key, o)
     elif f.kind == "number":
         value = i.number(f.key, **o)
     else:
         value = i.flag(f.key, **o)
     return _r9(value) if f.r9 else value
+
+
+def _read_range(i: Inputs, key: str, o: dict) -> tuple[float, float] | None:
+    """A ``{"low", "high"}`` range of percentages (SpO2), checked ``low`` <= low < high <= ``high``."""
+    raw = i.mapping(key, label=o["label"])
+    if raw is None:
+        return None
+    label = o["label"]
+    if sorted(raw) != ["high", "low"]:
+        i.fail(key, raw, f"{label} needs a low and a high value, in %", code="bad_request")
+        return None
+    low, high = (i._check_number(key, raw[end], label) for end in ("low", "high"))
+    if low is None or high is None:
+        return None
+    if not (o["low"] <= low < high <= o["high"]):
+        i.fail(
+            key,
+            raw,
+            f"{label} {low:g}-{high:g} % is not a range within {o['low']:g} to {o['high']:g} %",
+            "Give the lower value first, for example 88 to 92 %.",
+            code="out_of_range",
+        )
+        return None
+    return (low, high)
 
 
 # -- cross-field checks, written once for one sample and for arrays of samples ----------------------------
@@ -325,6 +372,7 @@ class _Sample:
         self.mix_ups: list[str] = []
         self.unusual: list[str] = []
         i = inputs
+        self.fio2_given = i.given("fio2")
         for f in FIELDS:
             setattr(self, f.attr, _read(i, f))
 
@@ -354,7 +402,9 @@ class _Sample:
                 hint = "One of pH or PCO2 is probably mistyped or sent in the wrong unit."
                 i.fail("ph", i.raw.get("ph"), message, hint, code="inconsistent")
                 i.fail("pco2", i.raw.get("pco2"), message, hint, code="inconsistent")
-        if self.po2 is not None and self.fio2 is not None and self.site != "venous":
+        # a PO2 that breathing air cannot give is refused only when the FiO2 was given; without it the
+        # reading says that oxygen was probably given (decide: ``oxygen_probably_given``)
+        if self.po2 is not None and self.fio2_given and self.fio2 is not None and self.site != "venous":
             pb = self.pb_value()
             pio2 = inspired_po2(self.fio2, pb) if pb is not None else None
             if pio2 is not None and po2_above_inspired(self.po2, pio2):
@@ -363,7 +413,7 @@ class _Sample:
                     i.raw.get("po2"),
                     f"PO2 {self.po2:.1f} mmHg is above the inspired PO2 ({pio2:.1f} mmHg at FiO2 "
                     f"{self.fio2:.2f}): impossible",
-                    "Was the patient breathing oxygen? Send fio2. Otherwise check the unit of PO2.",
+                    "Check the FiO2 given and the unit of PO2.",
                     code="inconsistent",
                 )
             elif pio2 is not None and self.pco2 is not None:
@@ -386,6 +436,10 @@ class _Sample:
         v = SimpleNamespace(**{name: _nan(getattr(self, name, None)) for name in NUMERIC_FIELDS})
         v.pb_value = self.pb_value()
         v.site, v.hypercapnia_risk = self.site, self.hypercapnia_risk
+        v.fio2_given = self.fio2_given
+        v.previous_failure = NAN if self.previous_failure is None else float(self.previous_failure)
+        rx = self.spo2_prescribed
+        v.spo2_rx_low, v.spo2_rx_high = (NAN, NAN) if rx is None else rx
         v.mix_up, v.unusual, v.pb_and_altitude = bool(self.mix_ups), bool(self.unusual), self.pb_and_altitude
         return v
 
@@ -556,7 +610,6 @@ FINDING_ORDER = (
     "chronicity_not_judged",
     "concurrent_metabolic_acidosis",
     "concurrent_metabolic_alkalosis",
-    "chronic_slope_uncertain",
     "chronicity_rules_disagree",
     "baseline_and_hco3_disagree",
     "anion_gap_low",
@@ -574,28 +627,31 @@ FINDING_ORDER = (
     "approaches_agree",
     "approaches_disagree",
     "boston_copenhagen_chronicity",
-    "baseline_estimate_unreliable",
     "pco2_target",
-    "target_below_alkalaemia_floor",
+    "baseline_estimate_unreliable",
     "pco2_below_baseline",
     "niv_criteria_need_arterial_sample",
     "niv_criteria_met",
+    "ventilation_failing_to_compensate",
+    "compensation_incomplete",
     "pco2_above_consciousness_threshold",
+    "respiratory_failure_type_2",
+    "respiratory_failure_type_1",
+    "hypoxaemia_masked_by_oxygen",
     "venous_po2_not_interpreted",
+    "capillary_po2",
+    "oxygen_probably_given",
+    "air_assumed",
     "po2_above_alveolar",
     "a_a_on_oxygen",
-    "hypoxaemia_masked_by_oxygen",
-    "respiratory_failure_type_1",
-    "respiratory_failure_type_2",
     "pure_hypoventilation",
     "gas_exchange_impaired",
     "low_inspired_oxygen",
     "a_a_needs_age",
-    "capillary_po2",
     "temperature_ph_stat_view",
     "spo2_target",
+    "spo2_target_needs_history",
     "hypercapnic_without_risk_flag",
-    "risk_flag_with_normal_pco2",
     "spo2_below_target",
     "spo2_above_target",
     "severe_acidaemia",
@@ -622,7 +678,6 @@ SEVERITY = {
     "chronicity_not_judged": "info",
     "concurrent_metabolic_acidosis": "notable",
     "concurrent_metabolic_alkalosis": "notable",
-    "chronic_slope_uncertain": "info",
     "chronicity_rules_disagree": "info",
     "baseline_and_hco3_disagree": "info",
     "anion_gap_low": "notable",
@@ -641,11 +696,15 @@ SEVERITY = {
     "boston_copenhagen_chronicity": "info",
     "baseline_estimate_unreliable": "notable",
     "pco2_target": "notable",
-    "target_below_alkalaemia_floor": "notable",
     "pco2_below_baseline": "notable",
     "niv_criteria_need_arterial_sample": "notable",
+    "niv_criteria_met": "urgent",
+    "ventilation_failing_to_compensate": "urgent",
+    "compensation_incomplete": "notable",
     "pco2_above_consciousness_threshold": "urgent",
     "venous_po2_not_interpreted": "notable",
+    "oxygen_probably_given": "notable",
+    "air_assumed": "info",
     "po2_above_alveolar": "notable",
     "a_a_on_oxygen": "info",
     "hypoxaemia_masked_by_oxygen": "notable",
@@ -659,7 +718,7 @@ SEVERITY = {
     "temperature_ph_stat_view": "info",
     "spo2_target": "info",
     "hypercapnic_without_risk_flag": "notable",
-    "risk_flag_with_normal_pco2": "info",
+    "spo2_target_needs_history": "notable",
     "spo2_below_target": "notable",
     "severe_acidaemia": "urgent",
     "severe_alkalaemia": "urgent",
@@ -743,6 +802,12 @@ def decide(x) -> Decision:
     d = Decision()
     ph, p, site, risk = x.ph, x.pco2, x.site, x.hypercapnia_risk
     venous, capillary = site == "venous", site == "capillary"
+    arterial = not_(venous | capillary)
+    # inputs of the CO2-retainer rules (absent on callers that predate them: FiO2 given, history unknown)
+    fio2_given = getattr(x, "fio2_given", True)
+    previous = getattr(x, "previous_failure", NAN)
+    rx_low, rx_high = getattr(x, "spo2_rx_low", NAN), getattr(x, "spo2_rx_high", NAN)
+    d.venous = venous
     f = {}
     sev = {}
     f["possible_unit_mix_up"] = x.mix_up
@@ -829,7 +894,13 @@ def decide(x) -> Decision:
     d.low_ref = low_ref = where(on_baseline, d.hco3_on_baseline, where(acid, ea, ec))
     d.high_ref = high_ref = where(on_baseline, d.hco3_on_baseline, where(acid, ec, ea))
     met_acid = resp0 & (h < low_ref - margin)
-    met_alk = resp0 & (h > high_ref + margin)
+    # beside a respiratory acidosis a metabolic alkalosis is named only above the steepest published chronic
+    # band (5 per 10 mmHg, Martinu 2003) with an SBE above the Copenhagen chronic expectation + 3 (Schlichtig
+    # 1998): a HCO3 inside the band the report prints as expected never names one
+    d.sbe_chronic_limit = 0.4 * delta + SBE_TOLERANCE
+    alk_limit = where(acid, maximum(high_ref + margin, e_acid.chronic.high), high_ref + margin)
+    d.alk_limit = alk_limit
+    met_alk = resp0 & (h > alk_limit) & where(acid, sbe > d.sbe_chronic_limit, True)
     by_h = where(given(f_h), ab._chronicity(f_h), "acute")
     by_b = ab._chronicity(f_b)
     judged_b = judge & given(f_b)
@@ -837,9 +908,7 @@ def decide(x) -> Decision:
     resp_chronicity = where(judged_b, by_b, where(judged_h, by_h, where(given(f_b), by_b, by_h)))
     resp_fraction = where(judged_b, f_b, where(judged_h, clamp(f_h, 0.0, 1.0), NAN))
     f["chronicity_not_judged"] = resp0 & not_(judge)
-    f["concurrent_metabolic_acidosis"] = met_acid
     f["concurrent_metabolic_alkalosis"] = met_alk
-    f["chronic_slope_uncertain"] = met_alk & acid & not_(given(f_b)) & (h <= e_acid.chronic.high + margin)
     d.by_ph = by_ph = ab._chronicity(f_ph)
     f["chronicity_rules_disagree"] = (
         resp0 & acid & not_(given(f_b)) & given(f_ph) & (by_ph != resp_chronicity)
@@ -876,7 +945,20 @@ def decide(x) -> Decision:
     d.osm_gap_given = d.osm_calc_given & given(x.osm)
     d.osmolar_gap = ab._osmolar_gap(x.osm, d.osmolality_calculated)
     f["osmolar_gap_raised"] = d.osm_gap_given & (d.osmolar_gap >= 10.0)
-    f["lactate_raised"] = sound & (x.lactate > 2.0)
+    f["lactate_raised"] = sound & (x.lactate > LACTATE_RAISED)
+    # beside an acidaemic primary respiratory acidosis, a lactate of 4 or more or an anion gap above 16
+    # names a concurrent metabolic acidosis, whatever the HCO3 (lactic acidosis: Cohen & Woods 1976, from
+    # memory; thresholds common practice)
+    d.ma_from_lactate_or_gap = beside = (
+        sound
+        & (primary0 == RESP_ACID)
+        & (ph < PH_LOW)
+        & not_(met_acid)
+        & ((x.lactate >= LACTATE_ACIDOSIS) | (has_gap & (used > AG_BESIDE_HYPERCAPNIA)))
+    )
+    met_acid = met_acid | beside
+    has_ma = has_ma | beside
+    f["concurrent_metabolic_acidosis"] = met_acid
     f["anion_gap_needs_electrolytes"] = sound & not_(has_gap) & has_ma
     gap = sound & has_gap
     found = gap & not_(has_ma) & (used >= AG_ALWAYS_ACIDOSIS)
@@ -904,7 +986,15 @@ def decide(x) -> Decision:
         acidosis, where(normal_ag, "normal_anion_gap", where(resp0, type_resp, type_band)), NONE
     )
     raised = acidosis & not_(normal_ag) & not_(has_mk)
-    alk_after_gap = raised & resp0 & (before > high_ref + margin)
+    # with a respiratory primary the HCO3 before the gap is compared with the respiratory expectation (for a
+    # respiratory acidosis: beyond the steepest chronic band); beside a respiratory alkalosis the delta ratio,
+    # where it can be computed, must agree (above 2), so the reading never contradicts its own delta reading
+    alk_after_gap = (
+        raised
+        & resp0
+        & (before > alk_limit)
+        & where((primary0 == RESP_ALK) & d.dr_given, band == "high_anion_gap_acidosis_with_raised_hco3", True)
+    )
     alk_delta_gap = raised & not_(resp0) & not_(d.dr_given) & (dg > 6.0)
     alk_delta_ratio = raised & not_(resp0) & d.dr_given & (band == "high_anion_gap_acidosis_with_raised_hco3")
     d.alkalosis_from_gap = where(
@@ -920,9 +1010,21 @@ def decide(x) -> Decision:
 
     # -- chronicity when a metabolic disorder also moves the HCO3 --------------------------------------------
     metabolic = has_ma | has_mk
-    indeterminate = resp0 & not_(given(f_b)) & metabolic
+    # a high anion gap acidosis alone beside a respiratory acidosis: the HCO3 before the gap,
+    # HCO3 + (AG - 12), is what the chronicity reading uses (delta gap method; Wrenn 1990, Rastegar 2007)
+    d.before_gap_used = by_gap = (
+        resp0 & acid & has_ma & not_(has_mk) & gap & (used > ab.NORMAL_ANION_GAP_MMOL_L) & judge
+    )
+    d.f_before = f_before = where(by_gap, ab._fraction_acute_hco3(p, before), NAN)
+    judged_gap = by_gap & not_(given(f_b))
+    resp_chronicity = where(judged_gap, ab._chronicity(f_before), resp_chronicity)
+    resp_fraction = where(judged_gap, clamp(f_before, 0.0, 1.0), resp_fraction)
+    indeterminate = resp0 & not_(given(f_b)) & metabolic & not_(by_gap)
     f["chronicity_indeterminate"] = indeterminate
     resp_fraction = where(indeterminate, NAN, resp_fraction)
+    # a venous sample screens: its respiratory chronicity is not judged (the word is what the HCO3 rules
+    # alone say, with no fraction), and it gets no PaCO2 target
+    resp_fraction = where(venous, NAN, resp_fraction)
     concurrent = met0 & (above | below)
     conc_b = concurrent & has_b & above & (p > ab.NORMAL_PCO2_MMHG + 1.0)
     d.concurrent_from_baseline = conc_b
@@ -931,7 +1033,7 @@ def decide(x) -> Decision:
     d.chronicity = where(
         resp0, resp_chronicity, where(conc_b, ab._chronicity(conc_f), where(concurrent, "acute", NONE))
     )
-    d.fraction_acute = where(resp0, resp_fraction, conc_f)
+    d.fraction_acute = where(resp0, resp_fraction, where(venous, NAN, conc_f))
     d.fraction_acute_baseline = where(resp0, f_b, conc_f)
     d.has = {MET_ACID: has_ma, MET_ALK: has_mk, RESP_ACID: has_ra, RESP_ALK: has_rk}
     d.stage = {
@@ -1016,74 +1118,91 @@ def decide(x) -> Decision:
         cph & d.cph_chronicity_given & (d.cph_chronicity != NONE) & (resp_chronicity != d.cph_chronicity)
     )
 
-    # -- ventilation safety ----------------------------------------------------------------------------------
-    d.target_given = target = has_ra | has_b
-    floor = ab._pco2_for_ph_acute(FLOOR_PH, p, h)
-    d.floor = floor = where(has_ra & given(floor) & (8.0 <= floor) & (floor < p), floor, NAN)
-    met_primary = (primary == MET_ACID) | (primary == MET_ALK)
+    # -- ventilation safety: the PaCO2 aim (P(x) = PaCO2 x 10^(pH - x), the PaCO2 giving pH x at today's
+    # buffer state; Henderson-Hasselbalch), NIV thresholds (BTS/ICS 2016), consciousness -------------------
+    d.target_given = target = has_ra & not_(venous)
+    d.p_at_735 = p735 = p * 10.0 ** (ph - NIV_PH)
+    d.floor = floor = p * 10.0 ** (ph - FLOOR_PH)
     d.met_expected = ab.Expected(
         *(where(primary == MET_ACID, a, c_) for a, c_ in zip(winters, alkalosis, strict=True))
     )
-    d.baseline_estimated = ab._baseline_pco2(maximum(p, 41.0), h)
-    d.baseline_low = ab._baseline_pco2(maximum(p, 41.0), h, 5.0)
-    d.baseline_high = ab._baseline_pco2(maximum(p, 41.0), h, 3.0)
-    by_estimate = target & not_(has_b) & not_(met_primary)
-    d.target_route = where(
-        target,
-        where(has_b, "given", where(met_primary, "metabolic", "estimated")),
-        NONE,
+    # the usual PaCO2 estimated by inverting chronic 3.5 and acute 1 per 10 mmHg, from the HCO3 before any
+    # high anion gap (its range across the published chronic slopes 5 to 3 is shown beside it)
+    h_usual = where(by_gap, before, h)
+    d.hco3_for_usual = h_usual
+    d.baseline_estimated = ab._baseline_pco2(maximum(p, 41.0), h_usual)
+    d.baseline_low = ab._baseline_pco2(maximum(p, 41.0), h_usual, 5.0)
+    d.baseline_high = ab._baseline_pco2(maximum(p, 41.0), h_usual, 3.0)
+    chronic_part = (d.chronicity == "chronic") | (d.chronicity == "acute_on_chronic")
+    d.usual_estimated = estimated = not_(has_b) & resp0 & chronic_part & not_(indeterminate)
+    # a metabolic process that moves the HCO3 beyond what the gap explains hides any chronic retention: the
+    # usual PaCO2 is then unknown, and 45 mmHg would be unsafe, so the aim is P(7.35) (independent review)
+    unknown = not_(has_b) & resp0 & indeterminate
+    usual = where(
+        has_b, b, where(estimated & not_(unknown), d.baseline_estimated, where(unknown, INF, PCO2_HIGH))
     )
-    est = d.baseline_estimated
-    d.pco2_target = where(
-        has_b,
-        where(b > PCO2_HIGH, b, PCO2_HIGH),
-        where(
-            met_primary,
-            d.met_expected.value,
-            where(
-                metabolic,
-                maximum(PCO2_HIGH, where(given(floor), floor, 0.0)),
-                where(est > PCO2_HIGH, est, PCO2_HIGH),
-            ),
-        ),
+    d.usual_pco2 = usual
+    acidaemic = ph < PH_LOW
+    metabolic_acidosis_primary = primary == MET_ACID
+    aim = where(
+        metabolic_acidosis_primary,
+        winters.value,
+        where(acidaemic, minimum(p735, usual), where(has_b, minimum(p, b), p)),
     )
-    d.pco2_target = where(target, d.pco2_target, NAN)
-    d.pco2_target_basis = where(
-        target,
+    # beside a concurrent metabolic acidosis the aim is never below Winters' centre: lower would be more
+    # ventilation than full compensation of the metabolic part
+    winters_bound = has_ma & not_(metabolic_acidosis_primary) & (aim < winters.value)
+    aim = where(winters_bound, winters.value, aim)
+    basis = where(
+        metabolic_acidosis_primary | winters_bound,
+        "metabolic_compensation",
         where(
-            has_b,
-            where(b > PCO2_HIGH, "chronic_baseline", "normal_upper_limit"),
+            acidaemic,
             where(
-                met_primary,
-                "metabolic_compensation",
+                p735 <= usual,
+                "ph_7_35",
                 where(
-                    metabolic,
-                    "alkalaemia_floor",
-                    where(est > PCO2_HIGH, "chronic_baseline", "normal_upper_limit"),
+                    has_b, "usual_pco2_given", where(estimated, "usual_pco2_estimated", "normal_upper_limit")
                 ),
             ),
+            where(has_b & (b < p), "usual_pco2_given", "present_pco2"),
         ),
-        NONE,
     )
-    d.baseline_pco2_source = where(target, where(has_b, "given", "estimated"), NONE)
-    f["baseline_estimate_unreliable"] = by_estimate & metabolic
+    # never below the alkalaemia floor P(7.45), never above the present PaCO2
+    lifted = aim < floor
+    aim = maximum(aim, floor)
+    capped = aim > p
+    aim = minimum(aim, p)
+    basis = where(capped, "present_pco2", where(lifted, "alkalaemia_floor", basis))
+    d.pco2_target = where(target, aim, NAN)
+    d.pco2_target_basis = where(target, basis, NONE)
+    d.baseline_pco2_source = where(
+        target, where(has_b, "given", where(estimated & acidaemic, "estimated", "none")), NONE
+    )
+    d.target_route = d.pco2_target_basis
+    f["baseline_estimate_unreliable"] = target & unknown & acidaemic & chronic_part
     f["pco2_target"] = target
-    f["target_below_alkalaemia_floor"] = target & given(floor) & (d.pco2_target < floor - 0.5)
-    f["pco2_below_baseline"] = target & has_b & (p < b - 5.0) & (b > PCO2_HIGH)
+    f["pco2_below_baseline"] = has_b & (p < b - 5.0) & (b > PCO2_HIGH)
     meets = (ph < NIV_PH) & (p > NIV_PCO2_MMHG)
     d.niv = where(meets & venous, "not_assessable", where(meets, "met", "not_met"))
     f["niv_criteria_need_arterial_sample"] = meets & venous
-    f["niv_criteria_met"] = meets & not_(venous)
-    d.niv_chronic = (primary == RESP_ACID) & (d.chronicity == "chronic") & given(d.fraction_acute)
-    sev["niv_criteria_met"] = where(d.niv_chronic, "notable", "urgent")
-    # chronic retention, without a known baseline: the PaCO2 is raised and the HCO3 rules read it chronic or
-    # acute-on-chronic, with no metabolic acidosis named (it would hide retention). Read from the PaCO2 and
-    # HCO3 alone, not from which disorder is called primary (that call flips at pH 7.40), so at a fixed HCO3
-    # the threshold never rises as the PaCO2 rises.
+    # the NIV threshold belongs to a primary respiratory acidosis; with a primary metabolic acidosis the same
+    # numbers say that ventilation is failing to compensate
+    f["niv_criteria_met"] = meets & not_(venous) & not_(metabolic_acidosis_primary)
+    f["ventilation_failing_to_compensate"] = meets & not_(venous) & metabolic_acidosis_primary
+    # pH < 7.35 with a raised PaCO2 is never "compensated as expected" (BTS/ICS 2016 definition)
+    f["compensation_incomplete"] = (
+        (primary == RESP_ACID) & acidaemic & (d.chronicity == "chronic") & not_(venous)
+    )
+    # chronic retention, without a known baseline: the PaCO2 is raised and the HCO3 rules (before any high
+    # anion gap) read it chronic or acute-on-chronic, with no other metabolic acidosis named (it would hide
+    # retention). Read from the PaCO2 and HCO3 alone, not from which disorder is called primary (that call
+    # flips at pH 7.40), so at a fixed HCO3 the threshold never rises as the PaCO2 rises.
+    f_chronic = where(by_gap, f_before, f_h)
     d.retainer = where(
         has_b,
         b > PCO2_HIGH,
-        (p > PCO2_HIGH) & given(f_h) & (f_h < ab.ACUTE_AT_LEAST) & not_(has_ma),
+        (p > PCO2_HIGH) & given(f_chronic) & (f_chronic < ab.ACUTE_AT_LEAST) & (not_(has_ma) | by_gap),
     )
     d.consciousness_threshold = where(
         has_b,
@@ -1092,21 +1211,32 @@ def decide(x) -> Decision:
     )
     f["pco2_above_consciousness_threshold"] = p > d.consciousness_threshold
 
-    # -- oxygenation -----------------------------------------------------------------------------------------
+    # -- oxygenation (arterial PO2 only: an earlobe PO2 underestimates it, a venous one says nothing) -------
     po2, fio2 = x.po2, x.fio2
     has_po2 = given(po2)
+    d.fio2_given = fio2_given
+    d.fio2_source = where(fio2_given, "given", "assumed_air")
     f["venous_po2_not_interpreted"] = has_po2 & venous
-    d.oxygenation = ox = has_po2 & not_(venous)
+    d.alveolar_given = ox = has_po2 & arterial
     d.pio2 = oxygenation._inspired(fio2, x.pb_value)
     d.pao2_alveolar = pao2_a = each(
         oxygenation.alveolar_po2_simple, ox, fio2_fraction=fio2, paco2_mmhg=p, pb_mmhg=x.pb_value, rq=x.rq
     )
+    # FiO2 not recorded and a PaO2 above the alveolar PO2 on air: oxygen was probably given, so the
+    # oxygenation reading is not interpretable (common practice)
+    d.oxygen_probably_given = likely = ox & not_(fio2_given) & (po2 > pao2_a)
+    f["oxygen_probably_given"] = likely
+    d.oxygenation = readable = ox & not_(likely)
+    # the alveolar PO2 is shown unless it is negative (air assumed, no alveolar oxygen left at this PaCO2)
+    d.alveolar_given = ox & (pao2_a >= 0.0)
     d.a_a_gradient = aa = pao2_a - po2
     d.a_over_A = where(pao2_a > 0, div(po2, pao2_a), NAN)
-    d.pf_ratio = po2 / fio2
-    f["po2_above_alveolar"] = ox & (aa < -10.0)
+    d.pf_ratio = pf = po2 / fio2
+    f["po2_above_alveolar"] = readable & (aa < -10.0)
     with_age = given(x.age)
-    d.a_a_expected_upper = upper = each(oxygenation.aa_gradient_upper_by_age, ox & with_age, age_years=x.age)
+    d.a_a_expected_upper = upper = each(
+        oxygenation.aa_gradient_upper_by_age, readable & with_age, age_years=x.age
+    )
     adult_low = oxygenation.aa_gradient_upper_by_age(age_years=18.0)
     adult_high = oxygenation.aa_gradient_upper_by_age(age_years=100.0)
     category = where(
@@ -1114,40 +1244,67 @@ def decide(x) -> Decision:
         where(aa > upper, "raised", "normal"),
         where(aa <= adult_low, "normal", where(aa > adult_high, "raised", "needs_age")),
     )
-    d.a_a_category = where(ox, category, NONE)
-    f["a_a_on_oxygen"] = ox & (fio2 > 0.3)
+    d.a_a_category = where(readable, category, NONE)
+    on_oxygen = fio2_given & (fio2 > 0.21)
+    f["a_a_on_oxygen"] = readable & fio2_given & (fio2 > 0.3)
     hyper = p > PCO2_HIGH
-    failure = where(
-        hyper & ((po2 < HYPOXAEMIA_MMHG) | (fio2 > 0.21)),
-        "type_2",
-        where(po2 < HYPOXAEMIA_MMHG, "type_1", "none"),
+    # respiratory failure: type 2 from the PaCO2 whenever a respiratory acidosis is named (with or without a
+    # PO2); else type 1 from an arterial PaO2 below 8 kPa, or on oxygen a P/F at or below 300 mmHg, which the
+    # oxygen would otherwise hide (ARDS Definition Task Force 2012 for the P/F bands; BTS 2017)
+    type_2 = not_(venous) & has_ra & hyper
+    low_po2 = readable & (po2 < HYPOXAEMIA_MMHG)
+    d.pf_impaired = pf_low = readable & on_oxygen & (pf <= PF_IMPAIRED)
+    type_1 = low_po2 | pf_low
+    failure = where(type_2, "type_2", where(type_1, "type_1", "none"))
+    d.rf_given = rf_given = not_(venous) & (type_2 | not_(likely))
+    d.respiratory_failure = where(rf_given, failure, NONE)
+    d.pf_band = where(
+        pf_low,
+        where(pf <= PF_SEVERE, "severe", where(pf <= PF_MODERATE, "moderate", "mild")),
+        NONE,
     )
-    d.respiratory_failure = where(ox, failure, NONE)
-    masked = ox & (failure == "type_2") & (po2 >= HYPOXAEMIA_MMHG)
-    f["hypoxaemia_masked_by_oxygen"] = masked
-    f["respiratory_failure_type_1"] = ox & (failure == "type_1")
-    f["respiratory_failure_type_2"] = ox & (failure == "type_2") & not_(masked)
-    f["pure_hypoventilation"] = ox & hyper & (category == "normal")
-    f["gas_exchange_impaired"] = ox & hyper & (category == "raised")
-    f["low_inspired_oxygen"] = ox & not_(hyper) & (category == "normal") & (po2 < HYPOXAEMIA_MMHG)
-    f["a_a_needs_age"] = ox & hyper & (category == "needs_age")
-    f["capillary_po2"] = ox & capillary
+    f["hypoxaemia_masked_by_oxygen"] = pf_low & not_(low_po2)
+    f["respiratory_failure_type_1"] = not_(type_2) & type_1
+    f["respiratory_failure_type_2"] = type_2
+    f["pure_hypoventilation"] = readable & hyper & (category == "normal")
+    f["gas_exchange_impaired"] = readable & hyper & (category == "raised")
+    f["low_inspired_oxygen"] = readable & not_(hyper) & (category == "normal") & low_po2
+    f["a_a_needs_age"] = readable & hyper & (category == "needs_age")
+    f["capillary_po2"] = has_po2 & capillary
+    f["air_assumed"] = readable & not_(fio2_given)
 
-    # -- temperature, oxygen target, severity, sample site ---------------------------------------------------
+    # -- temperature, oxygen target (BTS 2017), severity, sample site ---------------------------------------
     t = x.temperature
     d.temperature_given = given(t) & (abs(t - 37.0) >= 1e-9)
     f["temperature_ph_stat_view"] = d.temperature_given
     hyper_here = not_(venous) & hyper
-    d.at_risk = at_risk = risk | hyper_here
     d.hyper_here = hyper_here
-    d.spo2_low, d.spo2_high = where(at_risk, 88, 94), where(at_risk, 92, 98)
+    risk = risk | (has_b & (b > PCO2_HIGH))  # a known usual PaCO2 above 45 mmHg: a chronic retainer
+    prescribed = given(rx_low) & given(rx_high)
+    had_failure = previous == 1.0
+    history_unknown = not_(given(previous))
+    # 88-92 % when the PCO2 is above 6.0 kPa (a venous one as a positive screen, pending an arterial or
+    # earlobe gas) or after NIV or invasive ventilation for hypercapnic failure; an at-risk patient with a
+    # normal PCO2 moves to 94-98 %; the patient's prescribed range overrides both
+    d.at_risk = at_risk = where(prescribed, rx_low < 94.0, hyper | had_failure)
+    d.spo2_basis = where(
+        prescribed,
+        "prescribed",
+        where(
+            hyper,
+            where(venous, "venous_pco2_raised", "hypercapnic"),
+            where(had_failure, "previous_hypercapnic_failure", where(risk, "at_risk_pco2_normal", "default")),
+        ),
+    )
+    d.spo2_low = where(prescribed, rx_low, where(hyper | had_failure, 88, 94))
+    d.spo2_high = where(prescribed, rx_high, where(hyper | had_failure, 92, 98))
     f["spo2_target"] = where(at_risk, True, True)
-    f["hypercapnic_without_risk_flag"] = hyper_here & not_(risk)
-    f["risk_flag_with_normal_pco2"] = risk & not_(venous) & (p <= PCO2_HIGH)
+    f["hypercapnic_without_risk_flag"] = hyper_here & not_(risk) & not_(had_failure)
+    f["spo2_target_needs_history"] = not_(prescribed) & risk & not_(hyper) & history_unknown
     spo2 = x.spo2
     f["spo2_below_target"] = spo2 < d.spo2_low
     f["spo2_above_target"] = spo2 > d.spo2_high
-    sev["spo2_above_target"] = where(at_risk, "notable", "info")
+    sev["spo2_above_target"] = where(at_risk, where(hyper_here & (ph < PH_LOW), "urgent", "notable"), "info")
     f["severe_acidaemia"] = ph < SEVERE_ACIDAEMIA_PH
     f["severe_alkalaemia"] = not_(ph < SEVERE_ACIDAEMIA_PH) & (ph > SEVERE_ALKALAEMIA_PH)
     single_chronic_alkalosis = (primary == RESP_ALK) & (d.chronicity == "chronic")
@@ -1193,7 +1350,13 @@ class _Work:
         """A pressure in the user's unit, as text."""
         unit = self.r.pressure_unit
         value = units.convert(mmhg, "mmHg", unit)
-        return f"{value:.2f} kPa" if unit == "kPa" else f"{value:.1f} mmHg"
+        return f"{value:.1f} kPa" if unit == "kPa" else f"{value:.0f} mmHg"
+
+    def pf(self, mmhg: float) -> str:
+        """A P/F ratio in the user's pressure unit, as text (kPa to one decimal, mmHg whole)."""
+        if self.r.pressure_unit == "kPa":
+            return f"{units.convert(mmhg, 'mmHg', 'kPa'):.1f} kPa"
+        return f"{mmhg:.0f} mmHg"
 
     def codes(self) -> list[str]:
         return [d["code"] for d in self.disorders]
@@ -1683,6 +1846,15 @@ def _respiratory_primary(w: _Work, code: str) -> None:
         )
     low_ref, high_ref = d.low_ref, d.high_ref
     chronicity = _code(d.chronicity)
+    if d.before_gap_used and given(d.f_before):
+        r.computed(
+            "fraction_acute_before_gap",
+            d.f_before,
+            f"Fraction acute by the HCO3 rules, from the HCO3 before the anion gap ({d.hco3_before_gap:.1f})",
+            "f = (HCO3_chronic - (HCO3 + AG - 12)) / (HCO3_chronic - HCO3_acute)",
+            ("fraction_acute_bands", "wrenn1990"),
+            decimals=2,
+        )
     if w.fires("chronicity_not_judged"):
         r.finding(
             "chronicity_not_judged",
@@ -1691,28 +1863,38 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             "chronicity shown is provisional.",
         )
     if w.fires("concurrent_metabolic_acidosis"):
-        r.finding(
-            "concurrent_metabolic_acidosis",
-            "notable",
-            f"HCO3 {h:.1f} mmol/L is more than {margin:.1f} below the {low_ref:.1f} expected "
-            f"{'even for an acute change' if not f_b and acid else 'for this PaCO2'}: a concurrent "
-            "metabolic acidosis.",
-        )
-    if w.fires("concurrent_metabolic_alkalosis"):
-        r.finding(
-            "concurrent_metabolic_alkalosis",
-            "notable",
-            f"HCO3 {h:.1f} mmol/L is more than {margin:.1f} above the {high_ref:.1f} expected "
-            f"{'even for full chronic compensation' if acid and f_b is None else 'for this PaCO2'}: "
-            "a concurrent metabolic alkalosis.",
-        )
-        if w.fires("chronic_slope_uncertain"):
-            r.finding(
-                "chronic_slope_uncertain",
-                "info",
-                "With the steeper chronic slopes reported (up to about 5 mmol/L per 10 mmHg in stable "
-                f"COPD, Martinu 2003; expected {e.chronic.high:.1f}) this HCO3 could be compensation alone.",
+        if d.ma_from_lactate_or_gap:
+            why = []
+            if s.lactate is not None and s.lactate >= LACTATE_ACIDOSIS:
+                why.append(f"lactate {s.lactate:.1f} mmol/L (4 or more)")
+            if d.has_gap and d.ag_used > AG_BESIDE_HYPERCAPNIA:
+                corrected = " albumin-corrected" if s.albumin is not None else ""
+                why.append(f"{corrected} anion gap {d.ag_used:.1f} mmol/L (above 16)".strip())
+            text = (
+                f"With pH {s.ph:.2f} below 7.35, {' and '.join(why)}: a concurrent metabolic acidosis "
+                "beside the respiratory acidosis. Its acid consumes HCO3, so a HCO3 that looks acute can "
+                "hide chronic retention."
             )
+        else:
+            text = (
+                f"HCO3 {h:.1f} mmol/L is more than {margin:.1f} below the {low_ref:.1f} expected "
+                f"{'even for an acute change' if not f_b and acid else 'for this PaCO2'}: a concurrent "
+                "metabolic acidosis."
+            )
+        r.finding("concurrent_metabolic_acidosis", "notable", text)
+    if w.fires("concurrent_metabolic_alkalosis"):
+        if acid:
+            text = (
+                f"HCO3 {h:.1f} mmol/L is above {d.alk_limit:.1f}, beyond the steepest published chronic "
+                f"band (5 per 10 mmHg), and SBE {w.sbe:+.1f} is above {d.sbe_chronic_limit:+.1f} "
+                "(Copenhagen chronic expectation + 3): a concurrent metabolic alkalosis."
+            )
+        else:
+            text = (
+                f"HCO3 {h:.1f} mmol/L is more than {margin:.1f} above the {high_ref:.1f} expected for this "
+                "PaCO2: a concurrent metabolic alkalosis."
+            )
+        r.finding("concurrent_metabolic_alkalosis", "notable", text)
     if w.fires("chronicity_rules_disagree"):
         by_ph = d.by_ph
         r.finding(
@@ -1760,6 +1942,8 @@ def _concurrent_respiratory_chronicity(w: _Work, d: dict) -> None:
     r = w.r
     if w.d.concurrent_from_baseline:
         f = d["fraction_acute"]
+        if f is None:  # a venous sample: not judged
+            return
         r.computed(
             "fraction_acute_baseline",
             f,
@@ -2273,42 +2457,49 @@ def _ventilation(w: _Work) -> None:
     p = s.pco2
     if d.target_given:
         _pco2_target(w)
+    else:
+        _below_baseline(w)
     # NIV thresholds (BTS/ICS 2016)
     w.niv = d.niv
+    kpa = "" if w.r.pressure_unit == "kPa" else f" ({units.convert(p, 'mmHg', 'kPa'):.1f} kPa)"
+    kpa_above = f" ({units.convert(p, 'mmHg', 'kPa'):.1f} kPa, above 6.5 kPa)" if kpa else " (above 6.5 kPa)"
     if w.fires("niv_criteria_need_arterial_sample"):
         r.finding(
             "niv_criteria_need_arterial_sample",
             "notable",
             f"This venous sample shows pH {s.ph:.2f} with PCO2 {w.p(p)}. The BTS/ICS 2016 NIV thresholds "
-            "(pH < 7.35 and PaCO2 > 6.5 kPa) are defined on arterial (or arterialised capillary) values: "
+            "(pH < 7.35 and PaCO2 > 6.5 kPa) are defined on arterial (or arterialised earlobe) values: "
             "confirm with one.",
         )
     elif w.fires("niv_criteria_met"):
-        notes = []
-        if s.ph < NIV_INVASIVE_PH:
-            notes.append(
-                f"The guideline treats pH below {NIV_INVASIVE_PH:.2f} as a level at which invasive "
-                "ventilation should be considered."
-            )
-        first = w.disorders[0] if w.disorders else None
-        chronic = bool(d.niv_chronic)
-        if chronic:
-            notes.append(
-                "The HCO3 here fits chronic, compensated hypercapnia, while the guideline addresses acute "
-                "(or acute-on-chronic) hypercapnic respiratory failure."
-            )
-        if first and first["code"] in (MET_ACID, MET_ALK):
-            notes.append("Here the acidaemia is mainly metabolic.")
-        kpa = "" if w.r.pressure_unit == "kPa" else f" ({units.convert(p, 'mmHg', 'kPa'):.2f} kPa)"
+        invasive = (
+            f" pH below {NIV_INVASIVE_PH:.2f}: the guideline calls for a setting with ready access to "
+            "invasive ventilation."
+            if s.ph < NIV_INVASIVE_PH
+            else ""
+        )
         r.finding(
             "niv_criteria_met",
-            d.severity["niv_criteria_met"],
-            f"pH {s.ph:.2f} with PaCO2 {w.p(p)}{kpa} is below 7.35 and above 6.5 kPa: the thresholds at "
-            "which the BTS/ICS 2016 guideline recommends considering acute NIV for hypercapnic respiratory "
-            "failure that persists after optimal medical treatment. "
-            + " ".join(notes)
-            + (" " if notes else "")
-            + "This is a threshold for the treating team to weigh, not an instruction.",
+            "urgent",
+            f"NIV threshold met: pH {s.ph:.2f} (below 7.35) with PaCO2 {w.p(p)}{kpa_above}: the acidaemia "
+            "marks decompensated hypercapnic respiratory failure, whatever the HCO3. BTS/ICS 2016 recommends "
+            "NIV when it persists after optimal medical treatment (in COPD, neuromuscular or chest-wall "
+            "disease and obesity hypoventilation)." + invasive,
+        )
+    elif w.fires("ventilation_failing_to_compensate"):
+        r.finding(
+            "ventilation_failing_to_compensate",
+            "urgent",
+            f"Ventilation is failing to compensate: pH {s.ph:.2f} with PaCO2 {w.p(p)}{kpa}, above the "
+            f"{w.p(d.winters.high)} that compensation for the metabolic acidosis would give. The acidaemia "
+            "is mainly metabolic; a rising PaCO2 here signals tiring respiratory effort.",
+        )
+    if w.fires("compensation_incomplete"):
+        r.finding(
+            "compensation_incomplete",
+            "notable",
+            f"The HCO3 fits chronic retention, but pH {s.ph:.2f} is below 7.35: compensation is incomplete "
+            "(an acute component, or failing compensation). It is not read as compensated.",
         )
     r.put("niv_criteria", w.niv)
     # consciousness
@@ -2347,47 +2538,47 @@ def _ventilation(w: _Work) -> None:
         )
 
 
+#: the words of ``pco2_target_basis`` and what each says
+TARGET_BASIS = {
+    "ph_7_35": "the PaCO2 that would bring the pH to 7.35 with today's HCO3",
+    "usual_pco2_given": "the patient's known usual PaCO2",
+    "usual_pco2_estimated": "the usual PaCO2 estimated from the HCO3",
+    "normal_upper_limit": "the upper limit of normal (no chronic retention shows)",
+    "present_pco2": "the present PaCO2 (hold it; do not lower it)",
+    "metabolic_compensation": "the centre of Winters' compensation for the metabolic acidosis",
+    "alkalaemia_floor": "the PaCO2 below which the pH would pass 7.45 with today's HCO3",
+}
+
+
 def _pco2_target(w: _Work) -> None:
     s, r, d = w.s, w.r, w.d
-    p, h = s.pco2, w.hco3
-    floor = none_if_nan(d.floor)
-    if floor is not None:
+    p = s.pco2
+    ph_x = "PaCO2 x 10^(pH - {x})"
+    r.computed(
+        "pco2_alkalaemia_floor",
+        d.floor,
+        "PaCO2 that would give pH 7.45 with today's HCO3 (the aim never goes below it)",
+        ph_x.format(x="7.45"),
+        ("henderson1908", "posthypercapnic_alkalosis"),
+        pressure=True,
+    )
+    target, basis, source = d.pco2_target, d.pco2_target_basis, d.baseline_pco2_source
+    if s.ph < PH_LOW and basis != "metabolic_compensation":
         r.computed(
-            "pco2_alkalaemia_floor",
-            floor,
-            "PaCO2 at which a quick fall would bring the pH to 7.45 (present HCO3, acute rule)",
-            "P = (HCO3 - 0.1 x PaCO2) / (0.0307 x 10^(7.45 - 6.1) - 0.1)",
-            ("henderson1908", "narins1980", "posthypercapnic_alkalosis"),
+            "pco2_for_ph_7_35",
+            d.p_at_735,
+            "PaCO2 that would give pH 7.35 with today's HCO3",
+            ph_x.format(x="7.35"),
+            ("henderson1908", "pco2_aim"),
             pressure=True,
         )
-    target, basis, source = d.pco2_target, d.pco2_target_basis, d.baseline_pco2_source
-    reason = ""
-    if d.target_route == "given":
-        b = s.baseline_pco2
-        if basis == "chronic_baseline":
-            reason = (
-                f"the patient's known usual PaCO2 ({w.p(b)}). Ventilating below it leaves the kidneys' "
-                "retained HCO3 unopposed: post-hypercapnic metabolic alkalosis."
-            )
-        else:
-            reason = "the upper limit of normal, because the known usual PaCO2 is normal."
-        formula = "target = known baseline PaCO2 if above 45 mmHg, else 45 mmHg"
-        src = ("posthypercapnic_alkalosis", "acid_base_normal_ranges")
-    elif d.target_route == "metabolic":
-        rule = "Winters' formula" if w.primary == MET_ACID else "the metabolic alkalosis rule"
-        reason = (
-            f"the PaCO2 that compensation for the {NAMES[w.primary]} would give ({rule}); aiming for a "
-            "'normal' PaCO2 would "
-            + ("deepen the acidaemia." if w.primary == MET_ACID else "worsen the alkalaemia.")
-        )
-        formula = "target = centre of the expected compensating PaCO2"
-        src = ("albert1967",) if w.primary == MET_ACID else ("berend2014",)
-    else:
+    if source == "estimated":
         est, lo, hi = d.baseline_estimated, d.baseline_low, d.baseline_high
+        gap = " before the anion gap" if d.before_gap_used else ""
         r.computed(
             "baseline_pco2_estimated",
             est,
-            "Usual (chronic) PaCO2 estimated from the HCO3 (an estimate)",
+            f"Usual (chronic) PaCO2 estimated from the HCO3{gap} (an estimate)",
             "B = 40 + (HCO3 - 24 - (PaCO2 - 40)/10) / 0.25, limited to 40..PaCO2 (chronic 3.5 and acute 1 "
             "per 10 mmHg inverted)",
             ("narins1980", "fraction_acute_bands"),
@@ -2402,60 +2593,70 @@ def _pco2_target(w: _Work) -> None:
             output="baseline_pco2_range",
             pressure=True,
         )
-        if basis == "alkalaemia_floor":
-            reason = (
-                "the higher of 45 mmHg and the PaCO2 at which the present HCO3 would make the blood "
-                "alkalaemic: a concurrent metabolic disorder moves the HCO3, so the usual PaCO2 cannot be "
-                "estimated from it."
-            )
-            formula = "target = max(45 mmHg, alkalaemia floor)"
-            r.finding(
-                "baseline_estimate_unreliable",
-                "notable",
-                f"The usual PaCO2 estimated from the HCO3 ({w.p(est)}) is unreliable here: a concurrent "
-                "metabolic acidosis makes such an estimate too low (risking over-correction), a metabolic "
-                "alkalosis too high. A known usual PaCO2 (an earlier stable gas) should be used where "
-                "there is one.",
-            )
-        elif basis == "chronic_baseline":
-            reason = (
-                f"the usual PaCO2 estimated from the HCO3 ({w.p(est)}; {w.p(lo)} to {w.p(hi)} across the "
-                "published chronic slopes). The HCO3 shows chronic CO2 retention: ventilating below the "
-                "usual level leaves the retained HCO3 unopposed, causing post-hypercapnic metabolic "
-                "alkalosis."
-            )
-            formula = "target = estimated usual PaCO2"
-        else:
-            reason = (
-                "the upper limit of normal: the HCO3 shows no chronic CO2 retention (estimated usual PaCO2 "
-                f"{w.p(est)})."
-            )
-            formula = "target = 45 mmHg (no chronic retention evident)"
-        src = ("posthypercapnic_alkalosis", "narins1980")
+    if basis == "metabolic_compensation":
+        formula = "aim = 1.5 x HCO3 + 8 (Winters' centre), not below P(7.45)"
+        src = ("albert1967", "pco2_aim")
+    else:
+        formula = (
+            "pH < 7.35: aim = min(P(7.35), usual PaCO2); pH >= 7.35: aim = present PaCO2 (or a lower known "
+            "usual); never below P(7.45) = " + ph_x.format(x="7.45") + ", never above the present PaCO2"
+        )
+        src = ("pco2_aim", "henderson1908", "posthypercapnic_alkalosis", "bts_ics2016")
     w.pco2_target, w.target_basis = target, basis
-    r.computed("pco2_target", target, "Safe PaCO2 target for ventilation", formula, src, pressure=True)
+    r.computed("pco2_target", target, "PaCO2 to aim for", formula, src, pressure=True)
     r.put("baseline_pco2_source", source)
     r.put("pco2_target_basis", basis)
-    label = "estimated" if source == "estimated" and basis != "metabolic_compensation" else ""
+    if s.ph < PH_LOW:
+        why = f"below the present {w.p(p)}: the pH is {s.ph:.2f}, so ventilation must bring the PaCO2 down. "
+    elif basis == "usual_pco2_given":
+        why = (
+            f"the patient's known usual PaCO2: the pH is {s.ph:.2f}, not acidaemic, so there is no need to "
+            "lower the PaCO2 quickly, and not below the usual level. "
+        )
+    else:
+        why = "the pH is not acidaemic, so the PaCO2 need not be lowered. "
+    usual = ""
+    if source == "given":
+        usual = f"The known usual PaCO2 is {w.p(s.baseline_pco2)}. "
+    elif source == "estimated":
+        usual = (
+            f"The usual PaCO2 estimated from the HCO3 is {w.p(d.baseline_estimated)} ({w.p(d.baseline_low)} "
+            f"to {w.p(d.baseline_high)} across the published chronic slopes). "
+        )
+    chronic_note = (
+        "Ventilating a chronic retainer below the usual level leaves the retained HCO3 unopposed "
+        "(post-hypercapnic metabolic alkalosis). "
+        if bool(d.retainer) and basis != "metabolic_compensation"
+        else ""
+    )
     r.finding(
         "pco2_target",
         "notable",
-        f"PaCO2 target {w.p(target)}{' (' + label + ')' if label else ''}: "
-        + reason
-        + " A target for the treating team to weigh, reached gradually and rechecked with a repeat gas.",
+        f"PaCO2 aim {w.p(target)} ({TARGET_BASIS[basis]}), "
+        + why
+        + usual
+        + chronic_note
+        + "Reach it gradually and recheck with a repeat gas.",
     )
-    if w.fires("target_below_alkalaemia_floor"):
+    if w.fires("baseline_estimate_unreliable"):
         r.finding(
-            "target_below_alkalaemia_floor",
+            "baseline_estimate_unreliable",
             "notable",
-            f"Lowering PaCO2 quickly to {w.p(target)} would, with the present HCO3 ({h:.1f} mmol/L), bring "
-            f"the pH above 7.45 (that happens below about {w.p(floor)}); the HCO3 falls only over days.",
+            "The usual PaCO2 cannot be estimated from the HCO3 here: a concurrent metabolic disorder moves "
+            "the HCO3 by an amount the anion gap does not show, and chronic retention may be hidden. The aim "
+            "is therefore the PaCO2 that would bring the pH to 7.35, not the normal 45 mmHg. Use a known "
+            "usual PaCO2 (an earlier stable gas) where there is one.",
         )
+    _below_baseline(w)
+
+
+def _below_baseline(w: _Work) -> None:
+    s, r, h = w.s, w.r, w.hco3
     if w.fires("pco2_below_baseline"):
         r.finding(
             "pco2_below_baseline",
             "notable",
-            f"PaCO2 {w.p(p)} is below the patient's usual {w.p(s.baseline_pco2)}"
+            f"PaCO2 {w.p(s.pco2)} is below the patient's usual {w.p(s.baseline_pco2)}"
             + (
                 f" and HCO3 is {h:.1f} mmol/L: this fits a post-hypercapnic metabolic alkalosis "
                 "(over-correction of chronic hypercapnia)."
@@ -2470,6 +2671,9 @@ def _pco2_target(w: _Work) -> None:
 
 def _oxygenation(w: _Work) -> None:
     s, r, d = w.s, w.r, w.d
+    r.put("fio2_source", d.fio2_source)
+    if s.site != "venous" and (d.rf_given or s.po2 is not None):
+        _respiratory_failure(w)
     if s.po2 is None:
         return
     if w.fires("venous_po2_not_interpreted"):
@@ -2480,6 +2684,15 @@ def _oxygenation(w: _Work) -> None:
             "respiratory failure type is computed from it. Use SpO2 or an arterial sample.",
         )
         return
+    if w.fires("capillary_po2"):
+        r.finding(
+            "capillary_po2",
+            "notable",
+            "An earlobe (capillary) PO2 underestimates the arterial PO2: no A-a gradient, P/F ratio or "
+            "type 1 failure is read from it (BTS/ICS 2016). Use SpO2 for oxygenation.",
+        )
+        return
+    fio2_words = f"FiO2 {s.fio2:.2f}" if s.fio2_given else "air (FiO2 0.21 assumed: none was recorded)"
     pb = s.pb_value()
     source = (
         "measured"
@@ -2505,35 +2718,72 @@ def _oxygenation(w: _Work) -> None:
             output="pb",
             pressure=True,
         )
+    if not d.alveolar_given:
+        _oxygen_probably_given(w)
+        return
+    assumed = "" if s.fio2_given else " (air assumed)"
+    src_air = () if s.fio2_given else ("fio2_assumed_air",)
     pio2 = d.pio2
-    r.computed("pio2", pio2, "Inspired PO2", "PIO2 = FiO2 x (PB - 47)", "alveolar_gas_1946", pressure=True)
+    r.computed(
+        "pio2",
+        pio2,
+        f"Inspired PO2{assumed}",
+        "PIO2 = FiO2 x (PB - 47)",
+        ("alveolar_gas_1946", *src_air),
+        pressure=True,
+    )
     pao2_a = d.pao2_alveolar
     pao2_full = oxygenation.alveolar_po2_full(fio2_fraction=s.fio2, paco2_mmhg=s.pco2, pb_mmhg=pb, rq=s.rq)
     r.computed(
         "pao2_alveolar",
         pao2_a,
-        f"Alveolar PO2 (simplified equation, R {s.rq:g})",
+        f"Alveolar PO2 (simplified equation, R {s.rq:g}){assumed}",
         "PAO2 = FiO2 x (PB - 47) - PaCO2 / R",
-        "alveolar_gas_1946",
+        ("alveolar_gas_1946", *src_air),
         pressure=True,
     )
     r.computed(
         "pao2_alveolar_full",
         pao2_full,
-        "Alveolar PO2 (full equation)",
+        f"Alveolar PO2 (full equation){assumed}",
         "PAO2 = PIO2 - PaCO2 x (FiO2 + (1 - FiO2) / R)",
-        "alveolar_gas_1946",
+        ("alveolar_gas_1946", *src_air),
         pressure=True,
     )
+    if w.fires("oxygen_probably_given"):
+        _oxygen_probably_given(w)
+        return
     aa = d.a_a_gradient
-    r.computed("a_a_gradient", aa, "A-a gradient", "A-a = PAO2 - PaO2", "alveolar_gas_1946", pressure=True)
+    r.computed(
+        "a_a_gradient",
+        aa,
+        f"A-a gradient{assumed}",
+        "A-a = PAO2 - PaO2",
+        ("alveolar_gas_1946", *src_air),
+        pressure=True,
+    )
     ratio = none_if_nan(d.a_over_A)
     if ratio is not None:
         r.computed(
             "a_over_A", ratio, "a/A ratio", "PaO2 / PAO2 (normal above 0.75)", "gilbert1974", decimals=2
         )
     pf = d.pf_ratio
-    r.computed("pf_ratio", pf, "P/F ratio", "PaO2 [mmHg] / FiO2", "berlin2012", unit="mmHg", decimals=0)
+    r.computed(
+        "pf_ratio",
+        pf,
+        f"P/F ratio{assumed}",
+        "PaO2 [mmHg] / FiO2",
+        ("berlin2012", *src_air),
+        unit="mmHg",
+        decimals=0,
+    )
+    if w.fires("air_assumed"):
+        r.finding(
+            "air_assumed",
+            "info",
+            "No FiO2 was recorded: the oxygenation reading assumes the patient was breathing air "
+            "(FiO2 0.21). If oxygen was given, enter the FiO2.",
+        )
     if w.fires("po2_above_alveolar"):
         r.finding(
             "po2_above_alveolar",
@@ -2561,34 +2811,13 @@ def _oxygenation(w: _Work) -> None:
             "The age rule for the A-a gradient applies breathing air; on supplemental oxygen the normal "
             "gradient is wider, so a 'raised' reading is less specific.",
         )
-    # respiratory failure
-    failure = d.respiratory_failure
-    r.put("respiratory_failure", failure)
-    if w.fires("hypoxaemia_masked_by_oxygen"):
-        r.finding(
-            "hypoxaemia_masked_by_oxygen",
-            "notable",
-            f"PaO2 {w.p(s.po2)} is not low, but on FiO2 {s.fio2:.2f} with PaCO2 {w.p(s.pco2)} this is "
-            "hypercapnic (type 2) respiratory failure: supplemental oxygen masks the hypoxaemia.",
-        )
-    elif failure != "none" and w.fires(f"respiratory_failure_{failure}"):
-        r.finding(
-            f"respiratory_failure_{failure}",
-            "notable",
-            f"PaO2 {w.p(s.po2)} is below 8 kPa (60 mmHg) with PaCO2 {w.p(s.pco2)}: "
-            + (
-                "type 2 (hypercapnic) respiratory failure."
-                if failure == "type_2"
-                else "type 1 (hypoxaemic) respiratory failure."
-            ),
-        )
     reading = None
     if w.fires("pure_hypoventilation"):
         reading = "pure_hypoventilation"
         r.finding(
             "pure_hypoventilation",
             "notable",
-            f"Hypercapnia with a normal A-a gradient ({w.p(aa)}): the raised PaCO2 comes from "
+            f"Hypercapnia with a normal A-a gradient ({w.p(aa)}, {fio2_words}): the raised PaCO2 comes from "
             "hypoventilation alone (reduced drive, neuromuscular weakness or a chest-wall problem), not "
             "from lung disease.",
         )
@@ -2597,15 +2826,15 @@ def _oxygenation(w: _Work) -> None:
         r.finding(
             "gas_exchange_impaired",
             "notable",
-            f"Hypercapnia with a raised A-a gradient ({w.p(aa)}): lung disease (V/Q mismatch, shunt or dead "
-            "space) as well as hypoventilation.",
+            f"Hypercapnia with a raised A-a gradient ({w.p(aa)}, {fio2_words}): lung disease (V/Q mismatch, "
+            "shunt or dead space) as well as hypoventilation.",
         )
     elif w.fires("low_inspired_oxygen"):
         r.finding(
             "low_inspired_oxygen",
             "notable",
-            "Hypoxaemia with a normal A-a gradient and no hypercapnia points to a low inspired PO2 "
-            "(altitude, low FiO2).",
+            f"Hypoxaemia with a normal A-a gradient and no hypercapnia ({fio2_words}) points to a low "
+            "inspired PO2 (altitude, low FiO2).",
         )
     elif w.fires("a_a_needs_age"):
         r.finding(
@@ -2613,14 +2842,59 @@ def _oxygenation(w: _Work) -> None:
             "info",
             "Give the age to judge the A-a gradient: it separates pure hypoventilation from lung disease.",
         )
-    if w.fires("capillary_po2"):
+    w.oxygen = {"readable": True, "category": category, "reading": reading, "aa": aa, "pf": pf}
+
+
+def _oxygen_probably_given(w: _Work) -> None:
+    s, d = w.s, w.d
+    alveolar = max(d.pao2_alveolar, 0.0)
+    w.r.finding(
+        "oxygen_probably_given",
+        "notable",
+        f"No FiO2 was recorded, and PaO2 {w.p(s.po2)} is above the alveolar PO2 breathing air "
+        f"({w.p(alveolar)}): the patient was probably on oxygen. The oxygenation is not read (no A-a "
+        "gradient, P/F ratio or type 1 failure); enter the FiO2 to read it.",
+    )
+    w.oxygen = {"readable": False}
+
+
+def _respiratory_failure(w: _Work) -> None:
+    """``respiratory_failure``: type 2 from the PaCO2, type 1 from an arterial PaO2 or, on oxygen, the P/F."""
+    s, r, d = w.s, w.r, w.d
+    if not d.rf_given:
+        return
+    failure = d.respiratory_failure
+    r.put("respiratory_failure", failure)
+    fio2_words = f"FiO2 {s.fio2:.2f}" if s.fio2_given else "air (assumed)"
+    if w.fires("respiratory_failure_type_2"):
+        po2 = f" PaO2 {w.p(s.po2)} on {fio2_words}." if s.po2 is not None and d.oxygenation else ""
         r.finding(
-            "capillary_po2",
+            "respiratory_failure_type_2",
             "notable",
-            "Capillary PO2 underestimates arterial PO2: the A-a gradient is overestimated and hypoxaemia "
-            "may be overcalled here.",
+            f"Type 2 (hypercapnic) respiratory failure: PaCO2 {w.p(s.pco2)} is above 6.0 kPa with a "
+            "respiratory acidosis (named from the PaCO2, with or without hypoxaemia)." + po2,
         )
-    w.oxygen = {"category": category, "failure": failure, "reading": reading, "aa": aa}
+    if w.fires("respiratory_failure_type_1"):
+        r.finding(
+            "respiratory_failure_type_1",
+            "notable",
+            "Type 1 (hypoxaemic) respiratory failure: "
+            + (
+                f"PaO2 {w.p(s.po2)} is below 8 kPa on {fio2_words}."
+                if s.po2 < HYPOXAEMIA_MMHG
+                else f"on FiO2 {s.fio2:.2f} the P/F ratio is at or below {w.pf(PF_IMPAIRED)}."
+            ),
+        )
+    if w.fires("hypoxaemia_masked_by_oxygen"):
+        limit = {"mild": PF_IMPAIRED, "moderate": PF_MODERATE, "severe": PF_SEVERE}[d.pf_band]
+        r.finding(
+            "hypoxaemia_masked_by_oxygen",
+            "notable",
+            f"PaO2 {w.p(s.po2)} looks adequate only because of the oxygen: P/F ratio {w.pf(d.pf_ratio)} on "
+            f"FiO2 {s.fio2:.2f} is at or below {w.pf(limit)} (impaired oxygenation"
+            + ("" if d.pf_band == "mild" else ", " + d.pf_band)
+            + ").",
+        )
 
 
 # -- temperature ---------------------------------------------------------------------------------------------
@@ -2636,7 +2910,7 @@ def _temperature(w: _Work) -> None:
     r.computed(
         "ph_at_temperature",
         ph_t,
-        f"pH at {t:.1f} degC (Rosenthal)",
+        f"pH at {t:.1f} °C (Rosenthal)",
         "pH_T = pH37 + (T - 37) x (-0.0147 + 0.0065 x (7.40 - pH37))",
         "rosenthal1948",
         decimals=2,
@@ -2644,7 +2918,7 @@ def _temperature(w: _Work) -> None:
     r.computed(
         "pco2_at_temperature",
         pco2_t,
-        f"PCO2 at {t:.1f} degC",
+        f"PCO2 at {t:.1f} °C",
         "PCO2_T = PCO2_37 x 10^(0.019 x (T - 37))",
         "bradley1956",
         pressure=True,
@@ -2655,7 +2929,7 @@ def _temperature(w: _Work) -> None:
         r.computed(
             "po2_at_temperature",
             po2_t,
-            f"PO2 at {t:.1f} degC (Severinghaus 1979 eq 3, single step)",
+            f"PO2 at {t:.1f} °C (Severinghaus 1979 eq 3, single step)",
             "PO2_T = PO2_37 x exp((T - 37) x (0.058 / (0.243 x (PO2/100)^3.88 + 1) + 0.013))",
             "severinghaus1979",
             pressure=True,
@@ -2664,8 +2938,8 @@ def _temperature(w: _Work) -> None:
     pco2_ok = PCO2_LOW <= pco2_t <= PCO2_HIGH
     near = ph_ok and pco2_ok
     text = (
-        f"The analyser measured at 37 degC; the patient is at {t:.1f} degC. Alpha-stat (used for this "
-        "interpretation) reads the 37 degC values. The pH-stat view reads the corrected values: pH "
+        f"The analyser measured at 37 °C; the patient is at {t:.1f} °C. Alpha-stat (used for this "
+        "interpretation) reads the 37 °C values. The pH-stat view reads the corrected values: pH "
         f"{ph_t:.2f}, PCO2 {w.p(pco2_t)}"
         + (f", PO2 {w.p(po2_t)}" if po2_t is not None else "")
         + (
@@ -2683,23 +2957,29 @@ def _temperature(w: _Work) -> None:
 # -- oxygen target, severity ---------------------------------------------------------------------------------
 
 
+#: why the SpO2 target is what it is (``spo2_target_basis``)
+SPO2_BASIS = {
+    "prescribed": "the patient's prescribed range",
+    "hypercapnic": "PCO2 above 6.0 kPa on this sample",
+    "venous_pco2_raised": "venous PCO2 above 6.0 kPa: a positive screen until an arterial or earlobe gas",
+    "previous_hypercapnic_failure": "NIV or invasive ventilation for hypercapnic failure before",
+    "at_risk_pco2_normal": "at risk of hypercapnic failure, but the PCO2 is normal",
+    "default": "not hypercapnic",
+}
+
+
 def _spo2_target(w: _Work) -> None:
     s, r, d = w.s, w.r, w.d
     at_risk = bool(d.at_risk)
     low, high = d.spo2_low, d.spo2_high
+    basis = d.spo2_basis
     w.spo2_target = (low, high)
     r.put("spo2_target", {"low": low, "high": high}, decimals=0)
-    why = (
-        "at risk of hypercapnic respiratory failure"
-        if s.hypercapnia_risk
-        else "hypercapnic on this sample"
-        if d.hyper_here
-        else "not marked at risk of hypercapnic failure"
-    )
+    r.put("spo2_target_basis", basis)
     r.step(
-        f"SpO2 target range {low}-{high} % ({why})",
-        "88-92 % when at risk of hypercapnic respiratory failure (or hypercapnic on an arterial or "
-        "capillary sample), else 94-98 %",
+        f"SpO2 target range {low:g}-{high:g} % ({SPO2_BASIS[basis]})",
+        "a prescribed range overrides; else 88-92 % when the PCO2 is above 6.0 kPa or after NIV or invasive "
+        "ventilation for hypercapnic failure; else 94-98 % (an at-risk patient with a normal PCO2 too)",
         low,
         "bts2017_o2",
         output="spo2_target",
@@ -2707,31 +2987,33 @@ def _spo2_target(w: _Work) -> None:
     r.finding(
         "spo2_target",
         "info",
-        f"SpO2 target {low}-{high} % ({why}; BTS 2017). Use the patient's own prescribed range where one "
-        "exists.",
+        f"SpO2 target {low:g}-{high:g} % ({SPO2_BASIS[basis]}; BTS 2017). Recheck the gas 30-60 minutes "
+        "after a change of oxygen.",
     )
+    if w.fires("spo2_target_needs_history"):
+        r.finding(
+            "spo2_target_needs_history",
+            "notable",
+            "At risk of hypercapnic failure with a normal PCO2: 94-98 % applies, but 88-92 % applies if the "
+            "patient has needed NIV or invasive ventilation for hypercapnic failure before "
+            "(previous_hypercapnic_failure was not given).",
+        )
     if w.fires("hypercapnic_without_risk_flag"):
         r.finding(
             "hypercapnic_without_risk_flag",
             "notable",
-            f"PaCO2 {w.p(s.pco2)} is raised although hypercapnia_risk was not set: the lower 88-92 % range "
-            "of the BTS 2017 guideline is shown.",
-        )
-    if w.fires("risk_flag_with_normal_pco2"):
-        r.finding(
-            "risk_flag_with_normal_pco2",
-            "info",
-            "PaCO2 is normal on this sample: the guideline allows 94-98 % when PaCO2 is normal and there is "
-            "no history of NIV or invasive ventilation for hypercapnic failure; the 88-92 % range is kept "
-            "because hypercapnia_risk was set.",
+            f"PaCO2 {w.p(s.pco2)} is raised although the patient was not marked at risk of hypercapnic "
+            "failure: the 88-92 % range applies.",
         )
     if w.fires("spo2_below_target"):
-        r.finding("spo2_below_target", "notable", f"SpO2 {s.spo2:g} % is below the {low}-{high} % target.")
+        r.finding(
+            "spo2_below_target", "notable", f"SpO2 {s.spo2:g} % is below the {low:g}-{high:g} % target."
+        )
     elif w.fires("spo2_above_target"):
         r.finding(
             "spo2_above_target",
             d.severity["spo2_above_target"],
-            f"SpO2 {s.spo2:g} % is above the {low}-{high} % target"
+            f"SpO2 {s.spo2:g} % is above the {low:g}-{high:g} % target"
             + (
                 ": in patients at risk of hypercapnic failure excess oxygen can raise the PaCO2."
                 if at_risk
@@ -2780,14 +3062,14 @@ def _disorder_phrase(w: _Work, d: dict) -> str:
     return name
 
 
-def _interpretation(w: _Work) -> str:
+def _reading(w: _Work, *, temperature: bool = True) -> str:
+    """The reading in words (without the inconsistency preamble), lower case, no final stop."""
     ds = w.disorders
     if not ds:
         if w.ph_status == "normal":
-            core = "no acid-base disorder: pH, PCO2 and HCO3 are within their reference ranges"
+            text = "no acid-base disorder: pH, PCO2 and HCO3 are within their reference ranges"
         else:
-            core = f"{w.ph_status} without a disorder that the rules can name"
-        text = core
+            text = f"{w.ph_status} without a disorder that the rules can name"
     else:
         phrases = [_disorder_phrase(w, d) for d in ds]
         if len(ds) >= 3:
@@ -2798,20 +3080,34 @@ def _interpretation(w: _Work) -> str:
             text = phrases[0]
             if ds[0]["code"] in (MET_ACID, MET_ALK) and w.compensation_text:
                 text += " with " + w.compensation_text
-            elif ds[0]["chronicity"] == "chronic":
-                text += ", compensated as expected"
+            elif ds[0]["chronicity"] == "chronic" and ds[0]["fraction_acute"] is not None:
+                if w.fires("compensation_incomplete"):
+                    text += " with acidaemia: compensation incomplete"
+                elif ds[0]["code"] == RESP_ACID or w.ph_status == "normal":
+                    text += ", compensated as expected"
+    if w.s.site == "venous" and ds:
+        text = (
+            "venous gas, a screen only: "
+            + text
+            + " (confirm on an arterial or earlobe gas before judging chronicity or setting a PaCO2 aim)"
+        )
     ox = w.oxygen.get("reading")
     if ox == "pure_hypoventilation":
         text += "; normal A-a gradient: pure hypoventilation"
     elif ox == "lung_disease_and_hypoventilation":
         text += "; raised A-a gradient: lung disease as well as hypoventilation"
-    if w.temp:
+    if w.temp and temperature:
         text = (
-            f"at 37 degC (alpha-stat): {text}; corrected to {w.temp['t']:.1f} degC (pH-stat) the values are "
-            + ("near normal" if w.temp["near_normal"] else "still abnormal")
+            f"at 37 °C (alpha-stat): {text}; corrected to {w.temp['t']:.1f} °C (pH-stat) the values are "
+            + ("near normal" if w.temp["near_normal"] else "outside the reference ranges")
         )
     if w.tentative:
         text += " (tentative: borderline values)"
+    return text
+
+
+def _interpretation(w: _Work) -> str:
+    text = _reading(w)
     if w.doubtful:
         text = (
             "The reported pH, PCO2 and HCO3 are internally inconsistent: recheck the sample and its "
@@ -2858,11 +3154,19 @@ def _cautions(w: _Work) -> None:
             "a venous PO2 says nothing about oxygenation. Confirm hypercapnia with an arterial or "
             "arterialised capillary sample."
         )
+        raised = s.pco2 > PCO2_HIGH
         r.finding(
             "venous_sample",
             "notable",
-            "Venous sample: the rules were derived on arterial blood; a raised venous PCO2 screens for, but "
-            "does not measure, arterial hypercapnia.",
+            (
+                f"Venous PCO2 {w.p(s.pco2)} is above 6.0 kPa: arterial hypercapnia is possible (venous PCO2 "
+                "runs about 4-6 mmHg above arterial, with wide limits). Confirm with an arterial or "
+                "arterialised earlobe gas before judging chronicity or setting a PaCO2 aim; meanwhile the "
+                "88-92 % SpO2 range applies."
+                if raised
+                else f"Venous PCO2 {w.p(s.pco2)} is not above 6.0 kPa: arterial hypercapnia is unlikely "
+                "(venous PCO2 runs about 4-6 mmHg above arterial)."
+            ),
         )
     elif s.site == "capillary":
         r.caution(
@@ -2891,27 +3195,92 @@ def _cautions(w: _Work) -> None:
     )
 
 
+def _temperature_line(w: _Work) -> str:
+    t = w.temp
+    return f"Read at 37 °C (alpha-stat); corrected to {t['t']:.1f} °C (pH-stat) the values are " + (
+        "near normal." if t["near_normal"] else "outside the reference ranges."
+    )
+
+
 def _summary(w: _Work) -> None:
+    """The summary, what changes care first: a provisional mark, the reading, a threshold met, the aims."""
     s, r = w.s, w.r
+    said: set[str] = set()
+    if w.doubtful:
+        r.say(
+            "PROVISIONAL: the reported pH, PCO2 and HCO3 do not fit together; recheck the sample and its "
+            "transcription before acting on this reading."
+        )
+    elif s.mix_ups:
+        r.say("PROVISIONAL: possible unit mix-up. " + " ".join(s.mix_ups))
+    reading = _reading(w, temperature=False)
+    r.say(reading[0].upper() + reading[1:] + ".")
+    found = {f["code"]: f for f in r.findings}
+    extra = {
+        "spo2_below_target": " Adjust the oxygen to reach the target range.",
+        "pco2_below_baseline": " Do not lower it further; review the ventilation.",
+    }
+    if bool(w.d.at_risk):
+        extra["spo2_above_target"] = (
+            " Reduce the oxygen to the target range; recheck the gas in 30-60 minutes."
+        )
+    if "hypoxaemia_masked_by_oxygen" in found:
+        said.add("respiratory_failure_type_1")  # the masked-hypoxaemia sentence says it, with the P/F
+
+    def say(code: str) -> None:
+        if code in found and code not in said:
+            r.say(found[code]["text"] + extra.get(code, ""))
+            said.add(code)
+
+    # a threshold met, then anything else urgent
+    for code in (
+        "niv_criteria_met",
+        "ventilation_failing_to_compensate",
+        "niv_criteria_need_arterial_sample",
+    ):
+        say(code)
+    for f in r.findings:
+        if f["severity"] == "urgent" and f["code"] != "inconsistent_triple":
+            say(f["code"])
+    # oxygen that changes care: hypoxaemia, oxygen above or below the target, oxygen not recorded
+    for code in ("respiratory_failure_type_1", "hypoxaemia_masked_by_oxygen", "oxygen_probably_given"):
+        say(code)
+    low, high = w.spo2_target
+    if bool(w.d.at_risk):
+        say("spo2_above_target")
+    say("spo2_below_target")
+    # the aims
+    if w.pco2_target is not None:
+        r.say(f"PaCO2 aim {w.p(w.pco2_target)}: {TARGET_BASIS[w.target_basis]}.")
+    say("pco2_below_baseline")
+    history = (
+        " If the patient has ever needed NIV or invasive ventilation for hypercapnic failure: 88-92 % "
+        "(history not given)."
+        if w.fires("spo2_target_needs_history")
+        else ""
+    )
+    r.say(f"SpO2 target {low:g}-{high:g} % ({SPO2_BASIS[w.d.spo2_basis]}).{history}")
+    if w.temp:
+        r.say(_temperature_line(w))
     hco3_note = (
         "reported, consistent"
         if w.consistent
-        else "reported, INCONSISTENT with pH and PCO2"
+        else "reported, inconsistent with pH and PCO2"
         if w.consistent is False
         else "computed"
     )
-    temp = f" at 37 degC, patient {s.temperature:.1f} degC" if w.temp else ""
+    temp = f" at 37 °C, patient {s.temperature:.1f} °C" if w.temp else ""
     r.say(
-        f"{s.site.capitalize()} blood gas{temp}: pH {s.ph:.2f}, PCO2 {w.p(s.pco2)}, HCO3 {w.hco3_out:.1f} "
+        f"{s.site.capitalize()} gas{temp}: pH {s.ph:.2f}, PCO2 {w.p(s.pco2)}, HCO3 {w.hco3_out:.1f} "
         f"mmol/L ({hco3_note}), SBE {w.sbe:+.1f} mmol/L."
     )
-    r.say(w.interpretation)
     if w.resp:
         e = ab.RespiratoryExpectation(w.d.e_acute, w.d.e_chronic)
         d = w.disorders[0]
         line = (
             f"Expected HCO3 for this PCO2: {e.acute.value:.1f} if acute, {e.chronic.value:.1f} if chronic "
-            f"(published slopes {e.chronic.low:.1f}-{e.chronic.high:.1f}); measured {w.hco3:.1f}"
+            f"(published slopes {e.chronic.low:.1f}-{e.chronic.high:.1f}); "
+            f"{'measured' if s.hco3 is not None and not w.doubtful else 'computed'} {w.hco3:.1f}"
         )
         if d["fraction_acute"] is not None:
             line += f"; about {100 * d['fraction_acute']:.0f} % of the change looks acute"
@@ -2926,17 +3295,15 @@ def _summary(w: _Work) -> None:
             + (f", {w.acidosis_type.replace('_', ' ')} acidosis" if w.acidosis_type else "")
             + "."
         )
-    if w.oxygen:
+    failure = w.d.respiratory_failure
+    failure_words = {"type_1": "type 1", "type_2": "type 2", "none": "none named", "": ""}
+    if w.oxygen.get("readable"):
         o = w.oxygen
+        fio2 = f"FiO2 {s.fio2:.2f}" if s.fio2_given else "air (assumed: no FiO2 recorded)"
         r.say(
-            f"PaO2 {w.p(s.po2)} on FiO2 {s.fio2:.2f}: A-a gradient {w.p(o['aa'])} "
-            f"({o['category'].replace('_', ' ')}); respiratory failure: {o['failure'].replace('_', ' ')}."
+            f"PaO2 {w.p(s.po2)} on {fio2}: A-a gradient {w.p(o['aa'])} "
+            f"({o['category'].replace('_', ' ')}), P/F {w.pf(o['pf'])}; respiratory failure: "
+            f"{failure_words[failure]}."
         )
-    if w.pco2_target is not None:
-        r.say(f"PaCO2 target {w.p(w.pco2_target)} ({w.target_basis.replace('_', ' ')}).")
-    low, high = w.spo2_target
-    r.say(f"SpO2 target {low}-{high} % (BTS 2017).")
-    urgent = [f["text"] for f in r.findings if f["severity"] == "urgent"]
-    for text in urgent:
-        r.say(text)
-    r.say("Decision support only; interpret with the clinical picture and local protocols.")
+    elif failure:
+        r.say(f"Respiratory failure: {failure_words[failure]} (oxygenation not assessed from this sample).")

@@ -341,6 +341,57 @@ REFERENCES: dict[str, Ref] = {
         "ventilatory management of acute hypercapnic respiratory failure in adults. Thorax 2016;71 "
         "Suppl 2:ii1-35.",
     ),
+    "wrenn1990": _r(
+        "Wrenn 1990",
+        "Wrenn K. The delta (delta) gap: an approach to mixed acid-base disorders. Ann Emerg Med "
+        "1990;19:1310-3.",
+    ),
+    "rastegar2007": _r(
+        "Rastegar 2007",
+        "Rastegar A. Use of the DeltaAG/DeltaHCO3- ratio in the diagnosis of mixed acid-base disorders. J Am "
+        "Soc Nephrol 2007;18:2429-31.",
+    ),
+    "cohen_woods1976": _r(
+        "Cohen & Woods 1976",
+        "Cohen RD, Woods HF. Clinical and Biochemical Aspects of Lactic Acidosis. Oxford: Blackwell, 1976 "
+        "(lactic acidosis: lactate above about 4-5 mmol/L with acidaemia).",
+        "from memory",
+    ),
+    "lactate_beside_hypercapnia": _r(
+        "Metabolic acidosis beside hypercapnia",
+        "Beside an acidaemic respiratory acidosis a lactate of 4 mmol/L or more, or an (albumin-corrected) "
+        "anion gap above 16 mmol/L, names a concurrent metabolic acidosis whatever the HCO3.",
+        "common practice",
+    ),
+    "pco2_aim": _r(
+        "PaCO2 aim in hypercapnia",
+        "P(x) = PaCO2 x 10^(pH - x), the PaCO2 that gives pH x at today's buffer state (Henderson-"
+        "Hasselbalch): while pH < 7.35 aim for the lower of P(7.35) and the usual PaCO2; while pH >= 7.35 "
+        "the present (or a lower known usual) PaCO2; Winters' centre with a primary metabolic acidosis; "
+        "never below P(7.45) nor above the present PaCO2.",
+        "common practice",
+    ),
+    "venous_gas": _r(
+        "Venous blood gases",
+        "Byrne AL, Bennett M, Chatterji R, et al. Peripheral venous and arterial blood gas analysis in "
+        "adults: are they comparable? A systematic review and meta-analysis. Respirology 2014;19:168-75; "
+        "Kelly AM. Can venous blood gas analysis replace arterial in emergency medical care? Emerg Med "
+        "Australas 2010;22:493-8 (venous PCO2 about 4-6 mmHg above arterial; a venous PCO2 <= 45 mmHg makes "
+        "arterial hypercapnia unlikely).",
+        "from memory",
+    ),
+    "fio2_assumed_air": _r(
+        "FiO2 not recorded",
+        "An oxygenation statement without a recorded FiO2 says that air was assumed; a PaO2 above the "
+        "alveolar PO2 on air means oxygen was given.",
+        "common practice",
+    ),
+    "austin2010": _r(
+        "Austin et al. 2010",
+        "Austin MA, Wills KE, Blizzard L, Walters EH, Wood-Baker R. Effect of high flow oxygen on mortality "
+        "in chronic obstructive pulmonary disease patients in prehospital setting: randomised controlled "
+        "trial. BMJ 2010;341:c5462.",
+    ),
     "bts2017_clarify": _r(
         "BTS 2017 clarification",
         "Clarification of hypercapnia threshold (PaCO2 >= 6.0 kPa). Thorax 2017;72:588.",

@@ -47,6 +47,11 @@ class Report:
         """A pressure (given in mmHg) as a quantity in the request's pressure unit."""
         return {"value": units.convert(mmhg, "mmHg", self.pressure_unit), "unit": self.pressure_unit}
 
+    def pressure_text(self, mmhg: float) -> str:
+        """A pressure (given in mmHg) as text in the request's unit: kPa to one decimal, mmHg whole."""
+        value = units.convert(mmhg, "mmHg", self.pressure_unit)
+        return f"{value:.1f} kPa" if self.pressure_unit == "kPa" else f"{value:.0f} mmHg"
+
     def put(self, name: str, value, *, decimals: int | None = None) -> None:
         _check_finite(name, value)
         self.outputs[name] = value

@@ -109,7 +109,6 @@ KEY_FINDINGS = (
     "osmolar_gap_raised",
     "strong_ion_gap_raised",
     "baseline_estimate_unreliable",
-    "target_below_alkalaemia_floor",
     "niv_criteria_met",
     "niv_criteria_need_arterial_sample",
     "pco2_above_consciousness_threshold",
@@ -291,6 +290,7 @@ def draw_inputs(sample, errors: dict[str, tuple[str, float, str]], draws: int, s
     ns.mix_up = np.full(draws, bool(point.mix_up))
     ns.unusual = np.full(draws, bool(point.unusual))
     ns.pb_and_altitude = np.full(draws, bool(point.pb_and_altitude))
+    ns.fio2_given = np.full(draws, bool(point.fio2_given))
     return ns, used
 
 
@@ -390,7 +390,7 @@ def _report(report, sample, point, cloud, used, errors, given_errors, errors_raw
         "primary": by_primary,
         "niv_criteria": words(cloud.niv, ("met", "not_met", "not_assessable")),
     }
-    if point.oxygenation:
+    if point.rf_given:
         probabilities["respiratory_failure"] = words(cloud.respiratory_failure, ("none", "type_1", "type_2"))
     same = _mean(_reading_key(cloud, n) == _reading_key(point), n)
     point_list = interpret.disorders(point)
@@ -537,7 +537,7 @@ def _how_sure(names: str, same: float, n: int, chronicity: dict, point_list: lis
     if shaky:
         code, p, _ = shaky[0]
         text += f"; least settled: {code.replace('_', ' ')} ({100 * p:.0f} %)"
-    return text + "."
+    return text + " (this counts measurement error only, not whether the reading fits the patient)."
 
 
 def _q(report: Report, value: float, kind: str | None):
@@ -562,7 +562,7 @@ def _shown(d, n: int | None = None) -> dict:
         "strong_ion_gap": d.sig_given & ~np.asarray(d.doubtful)
         if n
         else bool(d.sig_given and not d.doubtful),
-        "pao2_alveolar": d.oxygenation,
+        "pao2_alveolar": d.alveolar_given,
         "a_a_gradient": d.oxygenation,
         "pf_ratio": d.oxygenation,
         "fraction_acute": primary_resp & given(d.fraction_acute),

@@ -108,14 +108,15 @@ AB_MEANING = {
     "AB-01": "high anion gap metabolic acidosis with appropriate respiratory compensation",
     "AB-02": "metabolic acidosis with concurrent respiratory acidosis",
     "AB-03": "acute respiratory acidosis",
-    "AB-04": "chronic compensated respiratory acidosis",
+    "AB-04": "chronic respiratory acidosis with acidaemia: compensation incomplete",
     "AB-05": "acute-on-chronic respiratory acidosis",
     "AB-06": "metabolic alkalosis with appropriate respiratory compensation",
     "AB-07": "triple disorder: high anion gap metabolic acidosis + metabolic alkalosis + "
     "respiratory alkalosis",
     "AB-08": "internally inconsistent report - recheck sample/transcription",
     "AB-09": "acute respiratory acidosis from pure hypoventilation (normal A-a gradient)",
-    "AB-10": "chronic hypercapnia with raised A-a gradient (lung disease plus hypoventilation)",
+    "AB-10": "chronic hypercapnia with acidaemia (compensation incomplete) and raised A-a gradient "
+    "(lung disease plus hypoventilation)",
     "AB-11": "hypothermic sample: at 37 C (alpha-stat) mild metabolic acidosis with inadequate respiratory "
     "compensation; temperature-corrected (pH-stat) values near normal",
 }
@@ -147,7 +148,12 @@ def test_ab_case_meaning(case_id):
     elif case_id == "AB-03":
         assert d == [(RA, "primary", "acute")]
     elif case_id == "AB-04":
+        # never "compensated" below pH 7.35 (BTS/ICS 2016 definition); the NIV threshold is urgent
         assert d == [(RA, "primary", "chronic")]
+        assert "compensation_incomplete" in codes(response)
+        assert "compensated as expected" not in o["interpretation"]
+        assert finding(response, "niv_criteria_met")["severity"] == "urgent"
+        assert o["pco2_target_basis"] == "ph_7_35"
     elif case_id == "AB-05":
         assert d == [(RA, "primary", "acute_on_chronic")]
         assert 0.2 < o["disorders"][0]["fraction_acute"] < 0.8
@@ -173,6 +179,7 @@ def test_ab_case_meaning(case_id):
         assert "pure_hypoventilation" in codes(response)
     elif case_id == "AB-10":
         assert d == [(RA, "primary", "chronic")]
+        assert "compensation_incomplete" in codes(response)
         assert o["a_a_category"] == "raised"
         assert "gas_exchange_impaired" in codes(response)
     elif case_id == "AB-11":
@@ -436,8 +443,9 @@ def test_th02_niv_thresholds():
     b = ok({"ph": 7.36, "pco2": q(7.0, "kPa")}, unit="kPa")
     assert e["niv_a"] == "meets criteria" and a["outputs"]["niv_criteria"] == "met"
     assert e["niv_b"] == "does not meet criteria" and b["outputs"]["niv_criteria"] == "not_met"
-    text = finding(a, "niv_criteria_met")["text"]
-    assert "not an instruction" in text and "after optimal medical" in text
+    met = finding(a, "niv_criteria_met")
+    assert "after optimal medical" in met["text"] and met["severity"] == "urgent"
+    assert met["text"] in a["summary"]  # the threshold met is in the summary (BTS/ICS 2016)
     assert "niv_criteria_met" not in codes(b)
     # edges: 6.5 kPa itself is not above 6.5 kPa; pH 7.35 is not below 7.35 (derived)
     assert ok({"ph": 7.30, "pco2": q(6.5, "kPa")})["outputs"]["niv_criteria"] == "not_met"
@@ -445,17 +453,51 @@ def test_th02_niv_thresholds():
 
 
 def test_th03_spo2_targets():
-    # TH-03: O'Driscoll et al. BTS 2017 Table 3 (verified): 88-92 % when at risk, else 94-98 %.
+    # TH-03: O'Driscoll et al. BTS 2017 Table 3 (references.py bts2017_o2, verified): 88-92 % when at risk of
+    # hypercapnic failure, else 94-98 %; an at-risk patient whose PaCO2 is normal moves to 94-98 % unless they
+    # have needed NIV or invasive ventilation for hypercapnic failure before.
     e = CASES["TH-03"]["expected"]
-    a = ok({"ph": 7.40, "pco2": q(40, "mmHg"), "hypercapnia_risk": True})
-    b = ok({"ph": 7.40, "pco2": q(40, "mmHg"), "hypercapnia_risk": False})
-    assert e["target_a_pct"] == "88-92" and a["outputs"]["spo2_target"] == {"low": 88, "high": 92}
-    assert e["target_b_pct"] == "94-98" and b["outputs"]["spo2_target"] == {"low": 94, "high": 98}
-    assert "risk_flag_with_normal_pco2" in codes(a)
+    normal = {"ph": 7.40, "pco2": q(40, "mmHg")}
+    before = ok({**normal, "hypercapnia_risk": True, "previous_hypercapnic_failure": True})
+    never = ok({**normal, "hypercapnia_risk": False})
+    assert e["target_a_pct"] == "88-92" and before["outputs"]["spo2_target"] == {"low": 88, "high": 92}
+    assert e["target_b_pct"] == "94-98" and never["outputs"]["spo2_target"] == {"low": 94, "high": 98}
+    assert before["outputs"]["spo2_target_basis"] == "previous_hypercapnic_failure"
+    # at risk, PaCO2 normal, history unknown: 94-98 with a finding that 88-92 applies after NIV/IPPV
+    unknown = ok({**normal, "hypercapnia_risk": True})
+    assert unknown["outputs"]["spo2_target"] == {"low": 94, "high": 98}
+    assert finding(unknown, "spo2_target_needs_history")["severity"] == "notable"
+    # at risk, PaCO2 normal, no such history: 94-98 and nothing to ask
+    none_before = ok({**normal, "hypercapnia_risk": True, "previous_hypercapnic_failure": False})
+    assert none_before["outputs"]["spo2_target"] == {"low": 94, "high": 98}
+    assert "spo2_target_needs_history" not in codes(none_before)
     # hypercapnia on an arterial sample without the flag also gives 88-92 (AB-10 needs this)
     c = ok({"ph": 7.33, "pco2": q(60, "mmHg"), "hco3": q(31, "mmol/L")})
     assert c["outputs"]["spo2_target"] == {"low": 88, "high": 92}
     assert "hypercapnic_without_risk_flag" in codes(c)
+    # both sides of 6.0 kPa (BTS 2017 clarification, verified: hypercapnia at >= 6.0 kPa, > 45 mmHg)
+    assert ok({"ph": 7.38, "pco2": q(45.0, "mmHg")})["outputs"]["spo2_target"]["low"] == 94
+    assert ok({"ph": 7.38, "pco2": q(45.1, "mmHg")})["outputs"]["spo2_target"]["low"] == 88
+    # a venous PCO2 above 6.0 kPa is a positive screen: 88-92 pending an arterial or earlobe gas
+    v = ok({"ph": 7.36, "pco2": q(52, "mmHg"), "sample": "venous"})
+    assert v["outputs"]["spo2_target"] == {"low": 88, "high": 92}
+    assert v["outputs"]["spo2_target_basis"] == "venous_pco2_raised"
+    # the patient's prescribed range overrides both (an oxygen alert card)
+    rx = ok({"ph": 7.33, "pco2": q(60, "mmHg"), "spo2_target_prescribed": {"low": 86, "high": 90}})
+    assert rx["outputs"]["spo2_target"] == {"low": 86, "high": 90}
+    assert rx["outputs"]["spo2_target_basis"] == "prescribed"
+
+
+@pytest.mark.parametrize(
+    "bad", [{"low": 92, "high": 88}, {"low": 70, "high": 90}, {"low": 90, "high": 101}, {"low": 88}]
+)
+def test_prescribed_spo2_range_is_checked(bad):
+    # 80 <= low < high <= 100 (the contract's check)
+    response = handle_obj(
+        {"calc": "blood_gas", "inputs": {"ph": 7.4, "pco2": q(40, "mmHg"), "spo2_target_prescribed": bad}}
+    )
+    assert not response["ok"]
+    assert response["errors"][0]["field"] == "inputs.spo2_target_prescribed"
 
 
 def test_th04_hypercapnia_and_consciousness():
@@ -496,11 +538,13 @@ def test_pco2_target_is_the_estimated_baseline_in_acute_on_chronic():
     o = response["outputs"]
     assert o["pco2_target"]["value"] == pytest.approx(50.8, abs=0.01)
     assert o["baseline_pco2_source"] == "estimated"
-    assert o["pco2_target_basis"] == "chronic_baseline"
+    assert o["pco2_target_basis"] == "usual_pco2_estimated"
     assert o["baseline_pco2_range"]["low"]["value"] == pytest.approx(46.75, abs=0.01)
     assert o["baseline_pco2_range"]["high"]["value"] == pytest.approx(53.5, abs=0.01)
     text = finding(response, "pco2_target")["text"]
     assert "post-hypercapnic metabolic alkalosis" in text and "estimated" in text
+    # P(7.35) = 70 x 10^(7.24 - 7.35) = 54.3 is above the usual 50.8, so the usual PaCO2 is the aim
+    assert 70 * 10 ** (7.24 - 7.35) > 50.8
     assert o["pco2_alkalaemia_floor"]["value"] < o["pco2_target"]["value"]
 
 
@@ -539,18 +583,36 @@ def test_over_correction_is_named():
     response = ok({"ph": ph, "pco2": q(45, "mmHg"), "hco3": q(36, "mmol/L"), "baseline_pco2": q(65, "mmHg")})
     assert disorders(response)[0][0] == MK
     assert "post-hypercapnic" in finding(response, "pco2_below_baseline")["text"]
-    assert response["outputs"]["pco2_target"]["value"] == pytest.approx(65.0)
+    # no respiratory acidosis: no PaCO2 aim (the aim is never a reason to let the PaCO2 rise)
+    assert "pco2_target" not in response["outputs"]
 
 
-def test_concurrent_metabolic_acidosis_makes_the_estimate_unreliable():
-    # PaCO2 70 with HCO3 21 (below even the acute 27 by more than 2): respiratory + metabolic acidosis.
+def test_respiratory_and_metabolic_acidosis_aim_for_ph_7_35():
+    # PaCO2 70 with HCO3 21 (below even the acute 27 by more than 2): respiratory + metabolic acidosis. No
+    # chronic retention shows, so the aim is the lower of P(7.35) and 45 mmHg, but not below Winters' centre
+    # (references.py pco2_aim, common practice on Henderson-Hasselbalch).
     ph = 6.1 + math.log10(21 / (0.0307 * 70))
     response = ok({"ph": ph, "pco2": q(70, "mmHg"), "hco3": q(21, "mmol/L")})
     assert [x[:2] for x in disorders(response)] == [(RA, "primary"), (MA, "concurrent")]
     assert response["outputs"]["disorders"][0]["fraction_acute"] is None
-    assert "baseline_estimate_unreliable" in codes(response)
     assert "chronicity_indeterminate" in codes(response)
-    assert response["outputs"]["pco2_target_basis"] == "alkalaemia_floor"
+    p735 = 70 * 10 ** (ph - 7.35)  # derived: about 38.5 mmHg
+    winters = 1.5 * 21 + 8  # 39.5: never aim below full compensation of the metabolic part (Winters 1967)
+    assert p735 < winters < 45
+    assert response["outputs"]["pco2_target"]["value"] == pytest.approx(winters, rel=1e-9)
+    assert response["outputs"]["pco2_target_basis"] == "metabolic_compensation"
+
+
+def test_an_estimate_from_a_hco3_consumed_by_lactate_is_called_unreliable():
+    # PaCO2 80, HCO3 34, lactate 5 without electrolytes: a concurrent metabolic acidosis (lactate >= 4 with
+    # pH < 7.35; common practice, Cohen & Woods 1976 from memory) consumes HCO3 by an amount that cannot be
+    # computed without the anion gap, so the usual PaCO2 estimated from the HCO3 is too low.
+    ph = 6.1 + math.log10(34 / (0.0307 * 80))
+    assert ph < 7.35
+    response = ok({"ph": ph, "pco2": q(80, "mmHg"), "hco3": q(34, "mmol/L"), "lactate": q(5, "mmol/L")})
+    assert [x[0] for x in disorders(response)] == [RA, MA]
+    assert "baseline_estimate_unreliable" in codes(response)
+    assert "anion_gap_needs_electrolytes" in codes(response)
 
 
 # -- other readings ------------------------------------------------------------------------------------------
@@ -594,12 +656,24 @@ def test_respiratory_alkalosis_chronic_can_normalise_ph():
     assert "normal_ph_single_disorder" not in codes(response)
 
 
-def test_chronic_slope_band_is_named():
-    # PaCO2 60, HCO3 33.5: above the 3.5 rule (31) + 2, within Martinu's ~5 (34) + 2 (from memory).
-    ph = 6.1 + math.log10(33.5 / (0.0307 * 60))
-    response = ok({"ph": ph, "pco2": q(60, "mmHg"), "hco3": q(33.5, "mmol/L")})
-    assert [x[0] for x in disorders(response)] == [RA, MK]
-    assert "chronic_slope_uncertain" in codes(response)
+@pytest.mark.parametrize(
+    ("hco3", "named"),
+    [
+        (33.5, False),  # above the 3.5 rule (31) + 2, inside the steepest band (5 per 10: 34)
+        (35.0, False),  # above 34, but SBE 10.2 is not above 0.4 x 20 + 3 = 11
+        (36.5, True),  # above 34 and SBE 11.7 above 11
+    ],
+)
+def test_metabolic_alkalosis_beside_chronic_hypercapnia_only_beyond_the_band(hco3, named):
+    # A HCO3 inside the published chronic band (3 to 5 per 10 mmHg: Narins & Emmett 1980; Martinu 2003, from
+    # memory) never names a second disorder; beyond it the SBE must also exceed the Copenhagen chronic
+    # expectation + 3 (Schlichtig 1998). Derived: PaCO2 60, SBE = HCO3 - 24.8 + 16.2 (pH - 7.40).
+    ph = 6.1 + math.log10(hco3 / (0.0307 * 60))
+    sbe = hco3 - 24.8 + 16.2 * (ph - 7.40)
+    assert (hco3 > 34.0 and sbe > 11.0) == named
+    response = ok({"ph": ph, "pco2": q(60, "mmHg"), "hco3": q(hco3, "mmol/L")})
+    assert ([x[0] for x in disorders(response)] == [RA, MK]) == named
+    assert ("concurrent_metabolic_alkalosis" in codes(response)) == named
 
 
 def test_ph_rule_drift_is_said():
@@ -630,13 +704,28 @@ def test_venous_sample_caveats():
     assert o["niv_criteria"] == "not_assessable"
     assert "a_a_gradient" not in o and "respiratory_failure" not in o
     assert any("screens" in c for c in response["cautions"])
-    assert o["spo2_target"] == {"low": 94, "high": 98}  # a venous PCO2 does not lower the target
+    # a raised venous PCO2 is a positive screen (Byrne 2014, from memory; BTS 2017): 88-92 % pending an
+    # arterial or earlobe gas; no PaCO2 aim and no chronicity judged from it
+    assert o["spo2_target"] == {"low": 88, "high": 92}
+    assert "pco2_target" not in o
+    assert o["disorders"][0]["fraction_acute"] is None
+    assert o["interpretation"].startswith("Venous gas, a screen only")
+    # a venous PCO2 at or below 6.0 kPa makes arterial hypercapnia unlikely
+    normal = ok({"ph": 7.37, "pco2": q(44, "mmHg"), "sample": "venous"})
+    assert "unlikely" in finding(normal, "venous_sample")["text"]
+    assert normal["outputs"]["spo2_target"] == {"low": 94, "high": 98}
 
 
 def test_capillary_sample_caveats():
     response = ok({"ph": 7.40, "pco2": q(40, "mmHg"), "sample": "capillary", "po2": q(55, "mmHg"), "age": 40})
+    # an earlobe PO2 gives no A-a gradient, P/F or type 1 failure (BTS/ICS 2016, references.py bts_ics2016)
     assert {"capillary_sample", "capillary_po2"} <= codes(response)
-    assert response["outputs"]["respiratory_failure"] == "type_1"
+    assert response["outputs"]["respiratory_failure"] == "none"
+    assert "a_a_gradient" not in response["outputs"] and "pf_ratio" not in response["outputs"]
+    # its PCO2 is accepted: type 2 from the PCO2
+    hyper = ok({"ph": 7.30, "pco2": q(60, "mmHg"), "sample": "capillary", "po2": q(55, "mmHg")})
+    assert hyper["outputs"]["respiratory_failure"] == "type_2"
+    assert "pco2_target" in hyper["outputs"]
 
 
 def test_possible_unit_mix_up_is_named_but_kept():
@@ -801,7 +890,7 @@ ERRORS = [
     ({**GAS, "pco": 1}, "inputs.pco", "unknown_input", "Did you mean 'pco2'"),
     ({**GAS, "rq": 2}, "inputs.rq", "out_of_range", "0.6 to 1.2"),
     ({**GAS, "normal_albumin": q(8, "g/dL")}, "inputs.normal_albumin", "out_of_range", "3 to 5.5"),
-    ({**GAS, "po2": q(200, "mmHg")}, "inputs.po2", "inconsistent", "Was the patient breathing oxygen"),
+    ({**GAS, "fio2": 0.21, "po2": q(200, "mmHg")}, "inputs.po2", "inconsistent", "the unit of PO2"),
     ({"ph": 7.9, "pco2": q(200, "mmHg")}, "inputs.ph", "inconsistent", "implies HCO3"),
     ({"ph": 7.9, "pco2": q(200, "mmHg")}, "inputs.pco2", "inconsistent", "implies HCO3"),
     ({**GAS, "urea": q(5, "mmol/L"), "bun": q(40, "mg/dL")}, "inputs.bun", "inconsistent", "disagree"),
@@ -984,7 +1073,7 @@ def test_consciousness_flag_is_monotonic_in_pco2(pco2, h, rise):
 @given(po2=st.floats(30, 90), d=st.floats(0.5, 20), alt=st.floats(0, 4000), up=st.floats(100, 2000))
 def test_oxygenation_monotonic(po2, d, alt, up):
     # Alveolar gas equation: A-a falls as PaO2 rises; alveolar PO2 falls with altitude (ISA pressure falls).
-    base = {"ph": 7.40, "pco2": q(40, "mmHg"), "age": 50}
+    base = {"ph": 7.40, "pco2": q(40, "mmHg"), "age": 50, "fio2": 0.21}
     a1 = ok({**base, "po2": q(po2, "mmHg")})["outputs"]["a_a_gradient"]["value"]
     a2 = ok({**base, "po2": q(po2 + d, "mmHg")})["outputs"]["a_a_gradient"]["value"]
     assert a2 < a1
