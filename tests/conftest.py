@@ -591,3 +591,10 @@ def pytest_terminal_summary(terminalreporter):
             f"tidewell: fuzzed {FUZZ_STATS['requests']} requests ({FUZZ_STATS['examples']} hypothesis "
             f"examples) in {FUZZ_STATS['seconds']:.1f} s"
         )
+    from compare import numpy_dispatch_line, report_lines
+
+    lines = report_lines()
+    for line in lines:
+        terminalreporter.write_line(f"tidewell: {line}")
+    if lines:
+        terminalreporter.write_line(f"tidewell: {numpy_dispatch_line()}")

@@ -16,16 +16,9 @@ import time
 from screens_support import tap
 from selenium.webdriver.common.by import By
 
-from tidewell import bridge
-
 # a request every test can send; the expected answer is always the CPython core's own
 CONVERT = {"calc": "convert", "inputs": {"quantity": {"value": 7.9, "unit": "kPa"}, "to": "mmHg"}}
 BLOOD_GAS_FIELDS = {"ph": "7.21", "pco2": ("8.6", "kPa"), "po2": ("8.4", "kPa")}
-
-
-def core(request: dict) -> dict:
-    """The CPython bridge's answer, as JSON would carry it."""
-    return json.loads(json.dumps(bridge.handle_obj(request)))
 
 
 def engine_url(base: str, screen: str = "convert", **params) -> str:

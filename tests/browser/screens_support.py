@@ -9,6 +9,7 @@ from decimal import ROUND_HALF_UP, Decimal
 from selenium.webdriver.common.by import By
 from selenium.webdriver.support.ui import Select
 
+import compare
 from tidewell import bridge
 
 PHONE = (360, 640)
@@ -16,6 +17,21 @@ PHONE = (360, 640)
 
 def core(request: dict) -> dict:
     return json.loads(bridge.handle(json.dumps(request)))
+
+
+def same_as_core(got, request: dict, where: str = "", part=lambda response: response) -> None:
+    """The page's answer (Pyodide, numpy 2.0.2 in WebAssembly), or the ``part`` of it a screen shows, is the
+    CPython core's to ``request``: numbers to compare.REL_WEBASSEMBLY, words and codes exactly
+    (tests/compare.py)."""
+    compare.check_against(core, request, got, compare.REL_WEBASSEMBLY, where, part)
+
+
+def answer(browser, request: dict, timeout: float = 90) -> dict:
+    """The page engine's own answer to ``request``, checked against the CPython core's (same_as_core). What
+    a screen shows is then compared with this answer exactly: it is the answer the screen got."""
+    got = browser.compute(request, timeout=timeout)
+    same_as_core(got, request)
+    return got
 
 
 def shell_format(value: float, decimals) -> str:
@@ -33,9 +49,36 @@ def phone(browser) -> None:
 
 
 def open_screen(browser, url: str, screen: str) -> None:
+    """Load ``url#screen`` (only a hash change when the page is already open) and wait until it is shown."""
     browser.get(f"{url}#{screen}")
+    wait_screen(browser, screen)
+
+
+def wait_screen(browser, screen: str, timeout: float = 20) -> None:
+    """Wait until the page has handled the change to ``screen`` (its hashchange handler sets the
+    attribute)."""
     browser.wait_js(
-        "while (!document.querySelector('.panel, #log-list')) await new Promise((r) => setTimeout(r, 20));"
+        "while (document.documentElement.dataset.screen !== arguments[0] ||"
+        "       !document.querySelector('.panel, #log-list'))"
+        "  await new Promise((r) => setTimeout(r, 20));",
+        screen,
+        timeout=timeout,
+    )
+
+
+def go_to(browser, screen: str) -> None:
+    """Tap the bottom navigation's tab for ``screen`` and wait until that screen is shown."""
+    browser.driver.find_element(By.CSS_SELECTOR, f'.screens-nav a[data-screen="{screen}"]').click()
+    wait_screen(browser, screen)
+
+
+def wait_theme(browser, theme: str, timeout: float = 10) -> None:
+    """Wait until the page's theme attribute reads ``theme`` (set by the settings' change handler)."""
+    browser.wait_js(
+        "while (document.documentElement.dataset.theme !== arguments[0])"
+        "  await new Promise((r) => setTimeout(r, 20));",
+        theme,
+        timeout=timeout,
     )
 
 

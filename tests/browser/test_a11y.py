@@ -11,7 +11,7 @@ import tarfile
 from pathlib import Path
 
 import pytest
-from screens_support import open_screen, phone, tap, wait_report
+from screens_support import go_to, open_screen, phone, tap, wait_report, wait_theme
 from selenium.webdriver.common.by import By
 
 AXE_VERSION = "4.10.2"
@@ -64,10 +64,11 @@ def test_no_serious_or_critical_violations(browser, server, axe_source):
     assert wait_report(browser, "blood_gas") == "done"
     found = {}
     for theme in ["light", "dark"]:
-        browser.driver.find_element(By.CSS_SELECTOR, '.screens-nav a[data-screen="convert"]').click()
+        go_to(browser, "convert")
         tap(browser, By.ID, f"theme-{theme}")
+        wait_theme(browser, theme)
         for screen in ["gas", "breathing", "flight", "log", "convert"]:
-            browser.driver.find_element(By.CSS_SELECTOR, f'.screens-nav a[data-screen="{screen}"]').click()
+            go_to(browser, screen)  # audit the screen once the page has shown it
             bad = audit(browser, axe_source)
             if bad:
                 found[(theme, screen)] = bad

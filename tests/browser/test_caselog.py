@@ -5,7 +5,8 @@ from __future__ import annotations
 
 import json
 
-from screens_support import core, fill, open_screen, phone, tap, wait_report
+from offline_support import log_labels
+from screens_support import answer, fill, open_screen, phone, tap, wait_report, wait_screen
 from selenium.webdriver.common.by import By
 
 SAMPLE = {"ph": "7.21", "pco2": ("8.6", "kPa"), "po2": ("8.4", "kPa"), "hco3": ("24.5", "mmol/L")}
@@ -30,13 +31,9 @@ def save(browser, label: str) -> None:
     )
 
 
-def log_items(browser) -> list:
-    browser.driver.find_element(By.CSS_SELECTOR, '.screens-nav a[data-screen="log"]').click()
-    return browser.wait_js(
-        "await new Promise((r) => setTimeout(r, 300));"
-        "return [...document.querySelectorAll('#log-list .log-item')].map((li) =>"
-        " [li.querySelector('.log-label').textContent, li.querySelector('.log-label').children.length]);"
-    )
+def log_items(browser, count: int) -> list:
+    """Open the case log and wait until it lists ``count`` cases: [label text, elements in the label]."""
+    return [[item["text"], item["children"]] for item in log_labels(browser, count)]
 
 
 def exported(browser, button: str, ending: str) -> str:
@@ -79,7 +76,7 @@ def test_save_survives_offline_reload_and_reopens(make_browser, make_server, dis
     fill(browser, "blood_gas", SAMPLE)
     assert wait_report(browser, "blood_gas") == "done"
     save(browser, HOSTILE)
-    items = log_items(browser)
+    items = log_items(browser, 1)
     assert items == [[HOSTILE, 0]]  # shown as text: no <img> element was made
     assert browser.js("return document.querySelectorAll('#log img').length") == 0
 
@@ -87,12 +84,13 @@ def test_save_survives_offline_reload_and_reopens(make_browser, make_server, dis
     assert not server.accepting()
     browser.driver.refresh()
     browser.wait_engine()
-    assert log_items(browser) == [[HOSTILE, 0]]
+    assert log_items(browser, 1) == [[HOSTILE, 0]]
     browser.js("document.querySelector('#log-list .log-open').click()")
-    assert browser.js("return document.documentElement.dataset.screen") == "gas"
+    wait_screen(browser, "gas")
     assert wait_report(browser, "blood_gas") == "done"
     unit = browser.js("return document.querySelector('input[name=pressure-unit]:checked').value")
-    expected = core(
+    expected = answer(
+        browser,
         {
             "calc": "blood_gas",
             "options": {"pressure_unit": unit},
@@ -102,7 +100,7 @@ def test_save_survives_offline_reload_and_reopens(make_browser, make_server, dis
                 "po2": {"value": 8.4, "unit": "kPa"},
                 "hco3": {"value": 24.5, "unit": "mmol/L"},
             },
-        }
+        },
     )
     shown = browser.js("return document.querySelector('#p-blood_gas-report .summary p').textContent")
     assert shown == expected["summary"][0]
@@ -118,7 +116,7 @@ def test_export_import_round_trip_and_bad_import(browser, server, tmp_path):
     fill(browser, "blood_gas", {"ph": "7.33"})
     assert wait_report(browser, "blood_gas") == "done"
     save(browser, 'second, with "quotes"')
-    assert len(log_items(browser)) == 2
+    assert len(log_items(browser, 2)) == 2
     first = export_json(browser)
     assert first["format"] == "tidewell-case-log" and first["schema"] == 1 and len(first["cases"]) == 2
 
@@ -139,7 +137,7 @@ def test_export_import_round_trip_and_bad_import(browser, server, tmp_path):
     assert import_file(browser, good)[0] == "done"
     again = export_json(browser)
     assert again["cases"] == first["cases"]
-    assert log_items(browser) == [[c["label"], 0] for c in first["cases"]]
+    assert log_items(browser, 2) == [[c["label"], 0] for c in first["cases"]]
 
     # bad files: nothing changes, and the message says why
     bad_case = json.loads(json.dumps(first))

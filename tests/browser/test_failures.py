@@ -6,12 +6,10 @@ start-up on purpose and check that the page says so, rejects pending work and re
 
 from __future__ import annotations
 
-import json
 import shutil
 
+from screens_support import same_as_core
 from selenium.webdriver.common.by import By
-
-from tidewell import bridge
 
 REQUEST = {"calc": "convert", "inputs": {"quantity": {"value": 7.9, "unit": "kPa"}, "to": "mmHg"}}
 NO_WASM_CSP = (
@@ -57,7 +55,7 @@ def test_watchdog_reports_a_stalled_start_and_retry_recovers(make_browser, make_
         "while (box.dataset.state !== 'done') await new Promise((r) => setTimeout(r, 20));"
         "return Number(document.querySelector('#convert-result').dataset.value);"
     )
-    assert shown == json.loads(bridge.handle(json.dumps(REQUEST)))["outputs"]["result"]["value"]
+    same_as_core(shown, REQUEST, "the kept value", lambda r: r["outputs"]["result"]["value"])
 
 
 def test_csp_without_wasm_eval_fails_clearly(make_browser, make_server, dist):

@@ -1,7 +1,7 @@
 """Faults of a running engine: a worker that is terminated, crashes, busy-loops or is stopped in the
 debugger. Each time the page must reject what was pending with a clear EngineError, restart the engine by
-itself, say so on the status line, and answer the next request exactly as the CPython core does. The
-automatic restarts are bounded; past the bound the engine is "failed", with Retry.
+itself, say so on the status line, and answer the next request as the CPython core does (tests/compare.py).
+The automatic restarts are bounded; past the bound the engine is "failed", with Retry.
 
 The deadlines are shortened through the address (?request-timeout=ms, ?heartbeat=ms, ?max-restarts=n),
 the same settings the page reads in normal use with longer defaults. The figures (faults injected,
@@ -19,12 +19,11 @@ from faults_support import (
     SETTLED,
     TRACK,
     WorkerControl,
-    core,
     engine_url,
     report_figures,
     wait_restarted,
 )
-from screens_support import fill, wait_report
+from screens_support import answer, fill, same_as_core, wait_report
 
 UNIT = "return document.querySelector('input[name=pressure-unit]:checked').value"
 FIGURES = {"injected": 0, "survived": 0, "refused_past_the_bound": 0}
@@ -46,7 +45,7 @@ def survived(browser, restarts: int) -> str:
     text = wait_restarted(browser, restarts)
     assert text.startswith("Engine: ready"), text
     assert "Restarted" in text and "after a fault" in text, text
-    assert browser.compute(CONVERT, timeout=30) == core(CONVERT)
+    answer(browser, CONVERT, timeout=30)
     assert browser.js("return window.tidewell.engine.restarts") == restarts
     FIGURES["survived"] += 1
     return text
@@ -56,7 +55,7 @@ def test_terminated_worker_is_found_by_the_heartbeat_and_replaced(browser, serve
     # terminate() fires no event: the idle heartbeat's probe gets no answer
     browser.get(engine_url(server.url, heartbeat=500, request_timeout=4000))
     browser.wait_engine()
-    assert browser.compute(CONVERT) == core(CONVERT)
+    answer(browser, CONVERT)
     assert browser.js("return window.tidewell.engine.restarts") == 0
     t0 = time.monotonic()
     browser.js("window.tidewell.engine.worker.terminate()")
@@ -75,7 +74,8 @@ def test_terminated_worker_is_found_by_the_heartbeat_and_replaced(browser, serve
     text = survived(browser, 1)
     print(f"terminated worker noticed after {noticed:.1f} s; status: {text}")
     waited = browser.wait_js(SETTLED)
-    assert waited["how"] == "resolved" and waited["value"] == core(CONVERT), waited
+    assert waited["how"] == "resolved", waited
+    same_as_core(waited["value"], CONVERT)
     assert browser.js("return window.tidewell.ready instanceof Promise") is True
 
 
@@ -136,7 +136,7 @@ def test_a_hung_request_is_rejected_in_time_and_the_panel_recovers(browser, serv
         "inputs": {"ph": 7.21, "pco2": {"value": 8.6, "unit": "kPa"}, "po2": {"value": 8.4, "unit": "kPa"}},
     }
     shown_summary = browser.js("return document.querySelector('#p-blood_gas-report .summary p').textContent")
-    assert shown_summary == core(request)["summary"][0]
+    assert shown_summary == answer(browser, request)["summary"][0]
 
 
 def test_a_worker_stopped_in_the_debugger_is_replaced(browser, server):
@@ -174,6 +174,6 @@ def test_restarts_are_bounded_then_retry_recovers(browser, server):
 
     browser.js("document.querySelector('#engine-retry').click()")
     browser.wait_engine_state("ready", timeout=60)
-    assert browser.compute(CONVERT, timeout=30) == core(CONVERT)
+    answer(browser, CONVERT, timeout=30)
     FIGURES["refused_past_the_bound"] += 1
     FIGURES["survived"] += 1

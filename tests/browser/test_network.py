@@ -11,7 +11,7 @@ from urllib.parse import urlsplit
 
 from harness import ROOT
 from offline_support import ask_service_worker, log_labels, save_case, watch, watched
-from screens_support import fill, fill_flight_journey, tap, wait_report
+from screens_support import fill, fill_flight_journey, go_to, tap, wait_report, wait_screen
 from selenium.webdriver.common.by import By
 from selenium.webdriver.support.ui import Select
 
@@ -134,16 +134,6 @@ def _convert(browser, value: str, source: str, target: str, substance: str = "")
     )
 
 
-def _go(browser, screen: str) -> None:
-    browser.driver.find_element(By.CSS_SELECTOR, f'.screens-nav a[data-screen="{screen}"]').click()
-    browser.wait_js(
-        "while (document.documentElement.dataset.screen !== arguments[0])"
-        "  await new Promise((r) => setTimeout(r, 20));",
-        screen,
-        timeout=20,
-    )
-
-
 def _download(browser, button: str, ending: str) -> None:
     browser.js("document.querySelector('#log-download').replaceChildren()")
     tap(browser, By.ID, button)
@@ -158,14 +148,14 @@ def full_session(browser) -> list[str]:
     """Every screen used as a person would: the screens visited, in order."""
     visited = []
     # Blood gas: an example, its report and dissociation curve (numpy), saved to the case log
-    _go(browser, "gas")
+    go_to(browser, "gas")
     browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
     assert wait_report(browser, "blood_gas") == "done"
     assert browser.js("return !!document.querySelector('#p-blood_gas-report [data-picture=odc] path')")
     save_case(browser, "network check, bay 1")
     visited.append("gas")
     # Breathing: both panels
-    _go(browser, "breathing")
+    go_to(browser, "breathing")
     fill(browser, "ventilation", {"rr": "14", "vt": ("450", "mL"), "pco2": ("65", "mmHg")})
     fill(
         browser, "alveolar_gas", {"fio2": ("0.35", "fraction"), "pco2": ("65", "mmHg"), "po2": ("70", "mmHg")}
@@ -174,20 +164,21 @@ def full_session(browser) -> list[str]:
     assert wait_report(browser, "alveolar_gas") == "done"
     visited.append("breathing")
     # Flight & O2: the altitude profile (numpy) and the oxygen supply
-    _go(browser, "flight")
+    go_to(browser, "flight")
     fill_flight_journey(browser)
     assert browser.js("return !!document.querySelector('[data-picture=profile] path.line-pt')")
     visited.append("flight")
     # Case log: listed, exported both ways, reopened
-    _go(browser, "log")
+    go_to(browser, "log")
     assert [item["text"] for item in log_labels(browser, 1)] == ["network check, bay 1"]
     _download(browser, "log-export-json", ".json")
     _download(browser, "log-export-csv", ".csv")
     visited.append("log")
     browser.js("document.querySelector('#log-list .log-open').click()")
+    wait_screen(browser, "gas")
     assert wait_report(browser, "blood_gas") == "done"
     # Settings: the converter, the pressure unit both ways, night mode on and off
-    _go(browser, "convert")
+    go_to(browser, "convert")
     _convert(browser, "12.1", "kPa", "mmHg")
     _convert(browser, "180", "mg/dL", "mmol/L", "glucose")
     for radio in ("unit-mmhg", "unit-kpa", "theme-dark", "theme-light", "theme-auto"):

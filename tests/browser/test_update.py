@@ -26,7 +26,7 @@ from offline_support import (
     watch,
     watched,
 )
-from screens_support import fill, wait_report
+from screens_support import answer, fill, wait_report
 from selenium.common.exceptions import WebDriverException
 from selenium.webdriver.common.by import By
 from selenium.webdriver.support.ui import WebDriverWait
@@ -133,7 +133,7 @@ def test_update_waits_for_consent_and_keeps_every_case(make_browser, make_server
         "return reg.waiting ? reg.waiting.scriptURL : null;"
     )
     assert waiting == server.url + "sw.js"
-    assert browser.compute(REQUEST) == bridge.handle_obj(REQUEST)
+    answer(browser, REQUEST)
     held = cache_contents(browser)
     assert sorted(held) == sorted([f"tidewell-{old_id}", f"tidewell-{new_id}"])
     assert held[f"tidewell-{new_id}"] == sorted(url[1:] for url in new_files)  # complete before offered
@@ -144,7 +144,7 @@ def test_update_waits_for_consent_and_keeps_every_case(make_browser, make_server
     assert "Update ready" in wait_banner(browser)
     assert running(browser) == v1
     assert served_hashes(browser, sorted(old_files)) == old_files
-    assert browser.compute(REQUEST) == bridge.handle_obj(REQUEST)
+    answer(browser, REQUEST)
     assert case_records(browser) == before
 
     browser.driver.find_element(By.ID, "update-reload").click()
@@ -160,7 +160,7 @@ def test_update_waits_for_consent_and_keeps_every_case(make_browser, make_server
     assert browser.js("return document.querySelector('#update').hidden") is True
     assert list(cache_contents(browser)) == [f"tidewell-{new_id}"]  # the old build's cache is gone
     assert served_hashes(browser, sorted(new_files)) == new_files
-    assert browser.compute(REQUEST) == bridge.handle_obj(REQUEST)
+    answer(browser, REQUEST)
 
     # every saved case is intact: the stored records, every field, byte for byte, and listed as text
     assert case_records(browser) == before

@@ -15,6 +15,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+import compare
 from tidewell import oxygenation as ox
 from tidewell.altitude import pressure_at_altitude_isa
 from tidewell.errors import InputError
@@ -258,7 +259,8 @@ def test_no_nan_from_curve_edges():
 
 # -- one implementation for one value and for arrays (batch, uncertainty) ------------------------------------
 # derived: no outside number here; the same equations (alveolar_gas_1946, common-practice A-a limit) must
-# give exactly the scalar result on numpy arrays, element by element (the batch and Monte Carlo use them).
+# give the scalar result on numpy arrays, element by element, to compare.REL_SAME_ENGINE (the batch and
+# Monte Carlo use them).
 
 
 def _grid(n=400, seed=11):
@@ -274,30 +276,42 @@ def _grid(n=400, seed=11):
 
 
 @pytest.mark.parametrize("func", [ox.alveolar_po2_simple, ox.alveolar_po2_full])
-def test_alveolar_gas_on_arrays_is_the_scalar_result_bit_for_bit(func):
+def test_alveolar_gas_on_arrays_is_the_scalar_result(func):
+    # numbers to compare.REL_SAME_ENGINE: numpy's kernels may differ from CPython's in the last place
     grid = _grid()
     arrays = func(**grid)
+    same = compare.tally(compare.REL_SAME_ENGINE)
     for i in range(len(arrays)):
         one = {k: float(v[i]) for k, v in grid.items()}
-        assert arrays[i] == func(**one), one
+        same.check(arrays[i], func(**one), json.dumps(one))
     pio2 = ox.inspired_po2(**{k: grid[k] for k in ("fio2_fraction", "pb_mmhg", "ph2o_mmhg")})
-    assert pio2.tolist() == [
-        ox.inspired_po2(fio2_fraction=f, pb_mmhg=p, ph2o_mmhg=w)
-        for f, p, w in zip(
-            grid["fio2_fraction"].tolist(), grid["pb_mmhg"].tolist(), grid["ph2o_mmhg"].tolist(), strict=True
-        )
-    ]
+    same.check(
+        pio2,
+        [
+            ox.inspired_po2(fio2_fraction=f, pb_mmhg=p, ph2o_mmhg=w)
+            for f, p, w in zip(
+                grid["fio2_fraction"].tolist(),
+                grid["pb_mmhg"].tolist(),
+                grid["ph2o_mmhg"].tolist(),
+                strict=True,
+            )
+        ],
+        "inspired_po2 on the grid",
+    )
 
 
 def test_a_a_limit_on_arrays_and_mixed_scalars():
     np = pytest.importorskip("numpy")
+    same = compare.tally(compare.REL_SAME_ENGINE)
     ages = np.arange(0.0, 120.5, 0.5)
-    assert ox.aa_gradient_upper_by_age(age_years=ages).tolist() == [
-        ox.aa_gradient_upper_by_age(age_years=a) for a in ages.tolist()
-    ]
+    same.check(
+        ox.aa_gradient_upper_by_age(age_years=ages),
+        [ox.aa_gradient_upper_by_age(age_years=a) for a in ages.tolist()],
+        "ages 0 to 120",
+    )
     # scalars broadcast against arrays, as the batch passes a default R or PB
     many = ox.alveolar_po2_simple(fio2_fraction=np.array([0.21, 0.4]), paco2_mmhg=40.0)
-    assert many.tolist() == [ox.alveolar_po2_simple(fio2_fraction=f, paco2_mmhg=40.0) for f in (0.21, 0.4)]
+    same.check(many, [ox.alveolar_po2_simple(fio2_fraction=f, paco2_mmhg=40.0) for f in (0.21, 0.4)], "R, PB")
 
 
 @pytest.mark.parametrize(
