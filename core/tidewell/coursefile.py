@@ -27,6 +27,7 @@ import sys
 import textwrap
 
 from .bridge import handle_obj
+from .cli import _add_output_flags, render, typed_value
 
 TIME_COLUMN, EVENTS_COLUMN = "time", "events"
 _SEPARATORS = re.compile(r"[|;]")
@@ -111,25 +112,9 @@ def render_course(response: dict, width: int = 100) -> str:
     out = response["outputs"]
     unit = response["options"]["pressure_unit"]
     readings = out["readings"]
-    lines = [f"Tidewell {response['engine']}: course of {len(readings)} gases (pressures in {unit})", ""]
-    wrap = textwrap.TextWrapper(width=width, initial_indent="  ", subsequent_indent="    ")
-    lines.append("Summary")
-    for sentence in response["summary"]:
-        lines.extend(wrap.wrap(sentence))
-    lines.append("")
-    if response["findings"]:
-        lines.append("Findings (most urgent first)")
-        for f in response["findings"]:
-            lines.extend(
-                textwrap.wrap(
-                    f"{f['text']} [{f['code']}]",
-                    width=width,
-                    initial_indent=f"  {f['severity'].upper():<9}",
-                    subsequent_indent=" " * 11,
-                )
-            )
-        lines.append("")
-    lines.append("Gases")
+    # the heading, summary and findings as every command prints them
+    lines = [render({**response, "outputs": {}, "cautions": []}, width=width).rstrip(), ""]
+    lines.append(f"Gases ({len(readings)}; pressures in {unit})")
     when = [_when(r) for r in readings]
     tw = max(len(w) for w in when) + 2
     head = f"  {'#':>2}  {'time':<{tw}}{'site':<10}{'pH':>6}{'PCO2':>8}{'HCO3':>7}{'aim':>8}  reading"
@@ -215,11 +200,7 @@ def run(argv: list[str]) -> int:
     )
     patient.add_argument("--baseline-pco2", metavar="VALUE", help="the usual PaCO2 when known, e.g. 7.2kPa")
     patient.add_argument("--age", metavar="YEARS", type=float, help="age in years")
-    out = parser.add_argument_group("Output")
-    out.add_argument("--json", action="store_true", help="print the bridge response as JSON instead of text")
-    units_ = out.add_mutually_exclusive_group()
-    units_.add_argument("--kpa", dest="pressure_unit", action="store_const", const="kPa", help="kPa")
-    units_.add_argument("--mmhg", dest="pressure_unit", action="store_const", const="mmHg", help="mmHg")
+    _add_output_flags(parser)  # --json, --kpa, --mmhg as every command has them
     args = parser.parse_args(argv)
     try:
         from . import batch
@@ -241,8 +222,6 @@ def run(argv: list[str]) -> int:
         return 2
     for warning in warnings:
         sys.stderr.write(f"tidewell: {args.source}: {warning}\n")
-    from .cli import typed_value
-
     if args.hypercapnia_risk:
         inputs["hypercapnia_risk"] = True
     if args.previous_hypercapnic_failure:
