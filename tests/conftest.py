@@ -244,7 +244,7 @@ def _names_its_field(field: str, request) -> bool:
         if isinstance(calc, str) and not known:
             return True  # a test-only probe calculation: the schema does not know its inputs
         sent = _key_forms(inputs) if isinstance(inputs, dict) else set()
-        return any(rest == k or rest.startswith(k + ".") for k in sent | known)
+        return any(rest == k or rest.startswith((k + ".", k + "[")) for k in sent | known)
     return False
 
 
@@ -530,6 +530,26 @@ def _uncertainty(inputs, outputs, response) -> None:
         assert outputs["draws"] == inputs["draws"]
 
 
+def _course(inputs, outputs, response) -> None:
+    readings, intervals = outputs["readings"], outputs["intervals"]
+    samples = inputs["samples"]
+    assert len(readings) == len(samples), "one reading per sample"
+    assert sorted(r["index"] for r in readings) == list(range(len(samples))), "every sample read once"
+    minutes = [r["minutes"] for r in readings]
+    assert minutes[0] == 0 and minutes == sorted(minutes), f"readings not in time order from 0: {minutes}"
+    for r in readings:
+        # pH below 7.35 acidaemia, above 7.45 alkalaemia (common practice), as each gas's own reading says
+        expected = "acidaemia" if r["ph"] < 7.35 else "alkalaemia" if r["ph"] > 7.45 else "normal"
+        assert r["ph_status"] == expected, f"ph_status {r['ph_status']} for pH {r['ph']}"
+    assert len(intervals) <= len(readings) - 1, "more intervals than consecutive pairs"
+    for i in intervals:
+        assert i["earlier"] < i["later"], f"interval {i} runs backwards"
+        venous = [readings[k]["site"] == "venous" for k in (i["earlier"], i["later"])]
+        assert venous[0] == venous[1], "a venous gas compared with an arterial or capillary one"
+    if not any(r["ph_status"] == "acidaemia" for r in readings):
+        assert "response" not in outputs, "a response without any acidaemic gas"
+
+
 def _convert(inputs, outputs, response) -> None:
     assert outputs["result"]["unit"] == inputs["to"], "result is not in the unit asked for"
 
@@ -545,6 +565,7 @@ _CONDITIONAL = {
     "altitude_profile": _altitude_profile,
     "convert": _convert,
     "uncertainty": _uncertainty,
+    "course": _course,
 }
 
 

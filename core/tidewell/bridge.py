@@ -40,6 +40,7 @@ CALCULATIONS: dict[str, str] = {
     "altitude_profile": "tidewell.flight:altitude_profile",
     "oxygen_supply": "tidewell.flight:oxygen_supply",
     "uncertainty": "tidewell.sureness:uncertainty",
+    "course": "tidewell.course:course",
 }
 
 PRESSURE_UNITS = ("mmHg", "kPa")

@@ -251,6 +251,7 @@ commands:
   calc       any calculation by name with key=value inputs (tidewell calc --help)
   how-sure   how often the reading survives the analyser's measurement error (tidewell how-sure --help)
   batch      a CSV file, one sample per row (tidewell batch --help)
+  course     one patient's gases over time from a CSV file (tidewell course --help)
 
 exit status: 0 answered, 2 bad input (each problem printed with its field), 1 internal fault."""
 
@@ -688,7 +689,13 @@ def run_batch(argv: list[str]) -> int:
     return 0
 
 
-COMMANDS = {"calc": run_calc, "batch": run_batch, "how-sure": run_how_sure}
+def run_course(argv: list[str]) -> int:
+    from .coursefile import run
+
+    return run(argv)
+
+
+COMMANDS = {"calc": run_calc, "batch": run_batch, "how-sure": run_how_sure, "course": run_course}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -386,12 +386,6 @@ REFERENCES: dict[str, Ref] = {
         "alveolar PO2 on air means oxygen was given.",
         "common practice",
     ),
-    "austin2010": _r(
-        "Austin et al. 2010",
-        "Austin MA, Wills KE, Blizzard L, Walters EH, Wood-Baker R. Effect of high flow oxygen on mortality "
-        "in chronic obstructive pulmonary disease patients in prehospital setting: randomised controlled "
-        "trial. BMJ 2010;341:c5462.",
-    ),
     "bts2017_clarify": _r(
         "BTS 2017 clarification",
         "Clarification of hypercapnia threshold (PaCO2 >= 6.0 kPa). Thorax 2017;72:588.",
@@ -617,6 +611,37 @@ REFERENCES: dict[str, Ref] = {
         "3 %; urea 4 %; phosphate 4 %; osmolality 3 mOsm/kg; Hb 2 %; ionised Ca 2 %; Mg 4 %; pulse "
         "oximeter SpO2 2 % (ISO 80601-2-61 accuracy limit 4 % root-mean-square, from memory); "
         "thermometer 0.2 degC. Each laboratory states its own: use those where known.",
+        "common practice",
+    ),
+    # course of a patient (serial gases)
+    "austin2010": _r(
+        "Austin et al. 2010",
+        "Austin MA, Wills KE, Blizzard L, Walters EH, Wood-Baker R. Effect of high flow oxygen on mortality "
+        "in chronic obstructive pulmonary disease patients in prehospital setting: randomised controlled "
+        "trial. "
+        "BMJ 2010;341:c5462 (titrated oxygen to SpO2 88-92 % against high-flow oxygen; high-flow oxygen "
+        "raised PaCO2 and lowered pH).",
+    ),
+    "bts_ics2016_niv_monitoring": _r(
+        "BTS/ICS guideline 2016 (NIV monitoring)",
+        "Davidson AC, Banham S, Elliott M, et al. BTS/ICS guideline for the ventilatory management of acute "
+        "hypercapnic respiratory failure in adults. Thorax 2016;71 Suppl 2:ii1-35: a gas 1-2 h after NIV "
+        "starts and about 1 h after a change of settings; no improvement in pH by 4-6 h prompts the team to "
+        "consider escalation within the agreed ceiling of treatment (intervals from memory).",
+        "from memory",
+    ),
+    "reference_change_value": _r(
+        "Reference change value (Fraser)",
+        "Fraser CG. Biological Variation: From Principles to Practice. Washington DC: AACC Press; 2001: the "
+        "difference between two results that exceeds measurement variation, RCV = 1.96 x sqrt(2) x SD "
+        "(analytical SD only for a gas, where biological variation is the signal).",
+        "from memory",
+    ),
+    "tidewell_course_conventions": _r(
+        "Tidewell course conventions",
+        "How Tidewell reads a course of gases (docs/course.md): changes below the reference change count as "
+        "none; venous gases are compared only with venous ones; a verdict says worsening first, then "
+        "improving, else not improving; the PCO2 rate is the change divided by the hours between two gases.",
         "common practice",
     ),
     # -- additions: shell, uncertainty, other (keep this line: it is an edit anchor) --

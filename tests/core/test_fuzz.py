@@ -204,6 +204,8 @@ def _kind(prop: dict) -> tuple[str, tuple]:
         return name[3:], ()
     if name == "quantity":
         return "any_quantity", tuple(units.ALL_UNITS)
+    if name == "course_samples":
+        return "samples", ()
     if name.startswith("inputs_"):
         return "inputs", (name[len("inputs_") :],)
     if name.startswith("errors_"):
@@ -314,6 +316,8 @@ def plausible_value(draw, calc: str, key: str):
         return draw(st.booleans())
     if kind == "inputs":
         return draw(in_range_inputs(accepted[0]))
+    if kind == "samples":
+        return draw(course_samples())
     if kind == "object":
         return {}
     if kind == "errors":  # uncertainty: a CV (any measured input takes one) or an SD for the pH
@@ -352,6 +356,73 @@ def in_range_inputs(draw, calc: str):
         draw(st.lists(st.sampled_from(optional), unique=True, max_size=len(optional))) if optional else []
     )
     return {key: draw(plausible_value(calc, key)) for key in [*required, *chosen]}
+
+
+EVENT_WORDS = tuple(schema()["$defs"]["course_sample"]["properties"]["events"]["anyOf"][1]["items"]["enum"])
+
+
+def course_time(minutes: int, as_text: bool, offset: str):
+    """A sample time: minutes as a number, or the same moment as an ISO 8601 date-time text."""
+    if not as_text:
+        return minutes
+    hours, rest = divmod(minutes, 60)
+    return f"2026-12-{4 + hours // 24:02d}T{hours % 24:02d}:{rest:02d}{offset}"
+
+
+@st.composite
+def course_samples(draw):
+    """2 to 4 gases at distinct times (all numbers, or all date-times with one offset or none), with inputs
+    of the right shape and events."""
+    n = draw(st.integers(2, 4))
+    minutes = draw(st.lists(st.integers(0, 600), min_size=n, max_size=n, unique=True))
+    as_text = draw(st.booleans())
+    offset = pick(draw, ["", "Z", "+01:00", "-0500"])
+    out = []
+    for m in minutes:
+        sample = {"time": course_time(m, as_text, offset), "inputs": draw(in_range_inputs("blood_gas"))}
+        if draw(st.booleans()):
+            sample["events"] = draw(st.lists(st.sampled_from(EVENT_WORDS), max_size=2, unique=True))
+        out.append(sample)
+    return out
+
+
+@st.composite
+def mutated_samples(draw, samples: list):
+    """A course's samples with one thing broken or changed: a sample dropped, doubled (same time), its inputs
+    mutated, its time made junk or of the other kind, an unknown or opposite event, or junk for a sample."""
+    out = copy.deepcopy(samples)
+    k = draw(st.integers(0, len(out) - 1))
+    choice = draw(st.integers(0, 7))
+    if choice == 0:
+        del out[k]
+    elif choice == 1:
+        out.append(copy.deepcopy(out[k]))
+    elif choice == 2 and isinstance(out[k], dict) and isinstance(out[k].get("inputs"), dict):
+        out[k]["inputs"] = draw(mutated_inputs("blood_gas", out[k]["inputs"]))
+    elif choice == 3 and isinstance(out[k], dict):
+        out[k]["time"] = pick(
+            draw,
+            [None, "03:10", "2026-02-30T10:00", "2026-12-04T03:10+01:00", 45, -5, 1e7, True, [], "x"],
+        )
+    elif choice == 4 and isinstance(out[k], dict):
+        out[k]["events"] = pick(
+            draw,
+            [
+                ["oxygen_up"],
+                ["niv_started", "niv_stopped"],
+                "niv_started",
+                [1],
+                None,
+                ["intubated", "extubated"],
+            ],
+        )
+    elif choice == 5:
+        out[k] = draw(json_values)
+    elif choice == 6 and isinstance(out[k], dict):
+        out[k][pick(draw, ["Time", "event", "input", "ph"])] = draw(json_values)
+    else:
+        out = out * draw(st.integers(10, 30))  # too many gases (and repeated times)
+    return out
 
 
 # ---------------------------------------------------------------------------------------------------------
@@ -461,6 +532,8 @@ def mutated_value(draw, value):
         return out
     if isinstance(value, dict):  # a nested inputs object (uncertainty's sample)
         return draw(mutated_inputs("blood_gas", value))
+    if isinstance(value, list) and value and all(isinstance(x, dict) and "inputs" in x for x in value):
+        return draw(mutated_samples(value))  # a course's samples
     if isinstance(value, bool):
         return pick(draw, [not value, "true", 1, 0, None])
     if _number(value):
@@ -576,12 +649,15 @@ def _same_but_pressure_unit(a: dict, b: dict) -> None:
 
     def walk(x, y, path):
         if isinstance(x, dict) and {"value", "unit"} == set(x) and isinstance(y, dict):
-            if x["unit"] in ("mmHg", "kPa") and y["unit"] in ("mmHg", "kPa"):
+            pressures = ("mmHg", "kPa", "mmHg/h", "kPa/h")  # pressures, and pressures per hour
+            if x["unit"] in pressures and y["unit"] in pressures:
+                assert x["unit"].endswith("/h") == y["unit"].endswith("/h"), path
                 xs = x["value"] if isinstance(x["value"], list) else [x["value"]]
                 ys = y["value"] if isinstance(y["value"], list) else [y["value"]]
                 assert len(xs) == len(ys), path
+                xu, yu = x["unit"].removesuffix("/h"), y["unit"].removesuffix("/h")
                 for u, v in zip(xs, ys, strict=True):
-                    u, v = units.convert(u, x["unit"], "mmHg"), units.convert(v, y["unit"], "mmHg")
+                    u, v = units.convert(u, xu, "mmHg"), units.convert(v, yu, "mmHg")
                     assert math.isclose(u, v, rel_tol=1e-6, abs_tol=0.01), (path, u, v)
                 return
         if isinstance(x, dict):

@@ -23,7 +23,7 @@ from tidewell.references import REFERENCES
 ROOT = Path(__file__).resolve().parents[2]
 TESTS = Path(__file__).resolve().parent
 DOMAIN_MODULES = ["units", "acidbase", "oxygenation", "ventilation", "temperature", "altitude", "transport"]
-CALC_MODULES = ["converter", "interpret", "breathing", "flight"]
+CALC_MODULES = ["converter", "interpret", "breathing", "flight", "course"]
 
 
 def _importable(name: str):
@@ -101,6 +101,17 @@ TYPICAL = {
         "po2": {"value": 70, "unit": "mmHg"},
         "target_po2": {"value": 55, "unit": "mmHg"},
         "trapped_gas_volume": {"value": 100, "unit": "mL"},
+    },
+    "course": {
+        "hypercapnia_risk": True,
+        "samples": [
+            {
+                "time": 0,
+                "inputs": {"ph": 7.28, "pco2": {"value": 68, "unit": "mmHg"}},
+                "events": ["niv_started"],
+            },
+            {"time": 90, "inputs": {"ph": 7.33, "pco2": {"value": 60, "unit": "mmHg"}}},
+        ],
     },
     "oxygen_supply": {
         "cylinder_water_capacity": {"value": 10, "unit": "L"},
