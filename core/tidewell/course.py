@@ -489,8 +489,7 @@ class _Course:
 
     # -- helpers --------------------------------------------------------------------------------------------
     def p(self, mmhg: float) -> str:
-        value = units.convert(mmhg, "mmHg", self.unit)
-        return f"{value:.2f} kPa" if self.unit == "kPa" else f"{value:.1f} mmHg"
+        return self.r.pressure_text(mmhg)
 
     def when(self, g: _Gas) -> str:
         return f"{g.minutes:g} min" if g.kind == "minutes" else f"{g.time} ({_duration(g.minutes)} in)"
