@@ -61,6 +61,21 @@ OFFLINE_REQUESTS = [
         },
     },
     {
+        "calc": "course",
+        "inputs": {
+            "hypercapnia_risk": True,
+            "samples": [
+                {
+                    "time": 0,
+                    "inputs": {"ph": 7.26, "pco2": q(9.8, "kPa"), "hco3": q(32, "mmol/L")},
+                    "events": ["niv_started"],
+                },
+                {"time": 90, "inputs": {"ph": 7.31, "pco2": q(8.9, "kPa"), "hco3": q(33, "mmol/L")}},
+            ],
+        },
+        "options": {"pressure_unit": "kPa"},
+    },
+    {
         "calc": "uncertainty",
         "inputs": {
             "sample": {"ph": 7.24, "pco2": q(9.3, "kPa"), "hco3": q(29.7, "mmol/L")},
