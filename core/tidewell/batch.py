@@ -45,7 +45,7 @@ import numpy as np
 
 from . import interpret, units
 from .arrays import each
-from .cli import (
+from .cells import (
     ABSENT,
     BAD,
     EMPTY,

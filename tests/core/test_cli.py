@@ -153,7 +153,37 @@ def test_help_reads_for_a_clinician(capsys):
         "exit status: 0 answered, 2 bad input",
         "tidewell batch gases.csv -o gases-read.csv",
     ):
-        assert words in out, words
+        assert words in " ".join(out.split()), words
+
+
+@pytest.mark.parametrize("command", [[], ["calc"], ["how-sure"], ["batch"]])
+def test_help_lines_fit_80_columns_on_a_wide_terminal(capsys, monkeypatch, command):
+    monkeypatch.setenv("COLUMNS", "200")
+    status, out, _ = main(capsys, *command, "--help")
+    assert status == 0
+    wide = [line for line in out.splitlines() if len(line) > 80]
+    assert not wide, wide
+    assert max(map(len, out.splitlines())) > 60  # the text is filled, not cut to a narrow column
+
+
+def test_a_value_and_its_unit_written_apart(capsys):
+    together = main(capsys, "--ph", "7.30", "--pco2", "60mmHg", "--po2", "55mmHg", "--fio2", "28%", "--json")
+    apart = main(
+        capsys, "--ph", "7.30", "--pco2", "60", "mmHg", "--po2=55", "mmHg", "--fio2", "28", "%", "--json"
+    )
+    assert together[0] == apart[0] == 0
+    assert json.loads(apart[1])["outputs"] == json.loads(together[1])["outputs"]
+    # a number alone is still refused for a pressure: the next flag is not taken for a unit
+    status, _, err = main(capsys, "--ph", "7.30", "--pco2", "60", "--po2", "55mmHg")
+    assert status == 2 and "--pco2" in err and "bad_unit" in err
+
+
+def test_json_on_an_input_error_is_json_on_stdout(capsys):
+    status, out, err = main(capsys, "--ph", "7.30", "--pco2", "60", "--json")
+    assert status == 2 and "--pco2" in err
+    response = json.loads(out)
+    assert response["ok"] is False and response["errors"][0]["field"] == "inputs.pco2"
+    assert response["errors"][0]["code"] == "bad_unit"
 
 
 def test_internal_fault_exits_1(capsys, monkeypatch):
