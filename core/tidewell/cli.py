@@ -629,7 +629,7 @@ def run_batch(argv: list[str]) -> int:
         counts = batch.run(
             args.source,
             args.output,
-            pressure_unit=args.pressure_unit or "mmHg",
+            pressure_unit=args.pressure_unit,
             progress=args.progress,
             full_precision=args.full_precision,
         )

@@ -319,12 +319,13 @@ def test_batch_writes_the_file_and_prints_the_summary(tmp_path: Path):
     target = tmp_path / "read.csv"
     done = run("batch", str(source), "-o", str(target), "--kpa", "--summary-json", str(tmp_path / "s.json"))
     assert done.returncode == 0, done.stderr
-    assert "Rows: 3; interpreted: 2; with errors: 1" in done.stdout
-    assert "respiratory_acidosis" in done.stdout and "Findings:" in done.stdout
+    assert "Rows: 3; interpreted: 2; with errors (not read): 1" in done.stdout
+    assert "respiratory acidosis" in done.stdout and "Findings (of 2 rows interpreted):" in done.stdout
+    assert "the file has no sample site column" in done.stdout
     assert "rows/s" not in done.stderr  # no progress bar when stderr is not a terminal
     lines = target.read_text(encoding="utf-8").splitlines()
     assert lines[0].startswith("id,ph,pco2[kPa],hco3[mmol/L],po2[kPa],fio2,ph_status")
-    assert lines[0].endswith(",error") and "a_a_gradient[kPa]" in lines[0]
+    assert lines[0].endswith(",error,notes") and "hco3_read[mmol/L]" in lines[0]
     assert "Did you mean 5.3 kPa?" in lines[3]
     assert json.loads((tmp_path / "s.json").read_text())["with_errors"] == 1
     shown = run("batch", str(source), "-o", str(tmp_path / "again.csv"), "--progress")
@@ -354,6 +355,17 @@ def test_batch_unreadable_file_exits_2(tmp_path: Path, text, words):
     source.write_text(text, encoding="utf-8")
     done = run("batch", str(source), "-o", str(tmp_path / "out.csv"))
     assert done.returncode == 2 and words in done.stderr, done.stderr
+
+
+def test_batch_where_no_row_could_be_read_exits_2_and_says_why(tmp_path: Path):
+    source = tmp_path / "gases.csv"
+    source.write_text('ph,pco2[kPa]\n"7,24",9.3\n"7,40",5.3\n', encoding="utf-8")
+    done = run("batch", str(source), "-o", str(tmp_path / "out.csv"))
+    assert done.returncode == 2, done.stderr
+    assert "no row could be read (2 rows, all with errors)" in done.stderr
+    assert "pH: not a number" in done.stderr and "line 2:" in done.stderr
+    assert "2 cells hold a decimal comma" in done.stdout  # said once, for the file
+    assert (tmp_path / "out.csv").read_text(encoding="utf-8").count("\n") == 3  # the rows' errors are written
 
 
 def test_batch_missing_file_exits_2(tmp_path: Path):
