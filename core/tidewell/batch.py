@@ -244,7 +244,7 @@ class Reader:
     written.
     """
 
-    def __init__(self, stream, chunk: int | None = CHUNK):
+    def __init__(self, stream, chunk: int | None):
         self.stream, self.chunk = stream, chunk
         self._lines: list[str] = []  #: complete lines read and not yet handed out
         self._at = 0  #: index of the next line to hand out in ``_lines``
@@ -252,13 +252,20 @@ class Reader:
         self._eof = False
         self._line = 0  #: physical lines handed out so far
         self._fill()
+        while not self._eof and sum(map(len, self._lines)) + len(self._rest) < 20_001:
+            self._fill()  # enough for the dialect to be sniffed from the file's first 20,000 characters
         bom = self._lines[0].startswith("\ufeff") if self._lines else self._rest.startswith("\ufeff")
         if bom:
             if self._lines:
                 self._lines[0] = self._lines[0][1:]
             else:
                 self._rest = self._rest[1:]
-        sample = "".join(line + "\n" for line in self._lines[:200])[:20_000] or self._rest[:20_000]
+        sample = ""
+        for line in self._lines:
+            sample += line + "\n"
+            if len(sample) > 20_000:
+                break
+        sample = (sample + self._rest)[:20_000]
         self._dialect = dialect = _dialect(sample)
         # the header: the first row kept
         while True:
@@ -885,6 +892,9 @@ def interpret_rows(table: Table, rows: np.ndarray, pressure_unit: str = "mmHg") 
         _outputs(d, x, idx, values, present, pressure_unit)
     sites = np.where(site_given, np.asarray(v.site, dtype=object), NOT_GIVEN)
     notes, note_kinds = _notes(table, rows, site_given)
+    for j, error in enumerate(errors):
+        if error:  # a row not read has its errors, not notes about how it was read
+            notes[j], note_kinds[j] = [], []
     return Audit(
         n,
         pressure_unit,
@@ -1100,35 +1110,38 @@ def _interpret_table(table: Table, pressure_unit: str, progress) -> Audit:
 # -- censored results ----------------------------------------------------------------------------------------
 
 
-def _censored_variant(table: Table, rows: list[int], end: str) -> Table:
-    """``table`` with each censored cell of ``rows`` written as a number: its bound (``end="bound"``) or the
-    far end of the reader's range on the censored side (``end="far"``)."""
+def _censored_variant(table: Table, rows: list[int], end: str, key: str, used: set) -> Table:
+    """``table`` with censored cells written as numbers: those of column ``key`` in ``rows`` at their bound
+    (``end="bound"``) or at the far end of the reader's range on the censored side (``end="far"``), and the
+    cells of ``used`` ((key, row) pairs already found usable) at their bound."""
     columns = dict(table.columns)
     chosen = set(rows)
-    for key, column in table.columns.items():
-        if not column.censored or not chosen.intersection(column.censored):
+    for name, column in table.columns.items():
+        picked = {
+            row: bound
+            for row, bound in column.censored.items()
+            if (name == key and row in chosen) or (name, row) in used
+        }
+        if not picked:
             continue
-        f = FIELDS[key]
+        f = FIELDS[name]
         cells = list(column.cells)
-        for row, (direction, bound, unit) in column.censored.items():
-            if row not in chosen:
-                continue
+        for row, (direction, bound, unit) in picked.items():
             unit = unit or column.unit
             value = bound
-            if end == "far":
-                limit = f.options["low"] if direction == "<" else f.options["high"]
+            if name == key and end == "far":
+                value = f.options["low"] if direction == "<" else f.options["high"]
                 if f.kind in ("quantity", "concentration") and unit:
                     target = f.options["unit"] if f.kind == "quantity" else "mmol/L"
-                    substance = f.options.get("substance") if f.kind == "quantity" else key
+                    substance = f.options.get("substance") if f.kind == "quantity" else name
                     try:
-                        limit = units.convert(limit, target, unit, substance=substance)
+                        value = units.convert(value, target, unit, substance=substance)
                     except (ValueError, KeyError):
-                        limit = math.nan  # no far end in this unit: the row is not read with the bound
-                value = limit
+                        value = math.nan  # no far end in this unit: the bound is not used
             cells[row] = f"{value!r} {unit}" if unit else repr(value)
-        variant = Column(key, column.header, column.unit, cells, decimal_comma=False)
+        variant = Column(name, column.header, column.unit, cells, decimal_comma=False)
         _parse_column(variant)
-        columns[key] = variant
+        columns[name] = variant
     return Table(
         table.header, columns, table.units_row, table.line, [], [], False, None, table.n, table.layout
     )
@@ -1138,42 +1151,43 @@ def _use_censored(table: Table, rows: np.ndarray, part: Audit, pressure_unit: st
     """Read a censored result ("<0.5", ">33.3") where a rule can use it: when the row's reading (every
     output and finding) is the same with the value at the bound and at the far end of the reader's range
     on the censored side, the bound is used and the note says so; otherwise the row stays read without it.
+    Columns are taken one after another, each with the bounds already found usable in place.
     """
     position = {int(row): j for j, row in enumerate(rows.tolist())}
-    censored_rows = sorted(
-        {row for c in table.columns.values() if c.censored for row in c.censored if row in position}
-    )
-    if not censored_rows:
-        return
-    at = np.array(censored_rows)
-    with_bound = interpret_rows(_censored_variant(table, censored_rows, "bound"), at, pressure_unit)
-    at_far = interpret_rows(_censored_variant(table, censored_rows, "far"), at, pressure_unit)
-    for k, row in enumerate(censored_rows):
-        j = position[row]
-        same = not with_bound.errors[k] and not at_far.errors[k] and not part.errors[j]
-        same = same and all(
-            with_bound.present[name][k] == at_far.present[name][k]
-            and with_bound.value(name, k) == at_far.value(name, k)
-            for name in OUTPUT_NAMES
-        )
-        if not same:
+    used: set = set()
+    for key, column in table.columns.items():
+        mine = sorted(row for row in column.censored if row in position and not part.errors[position[row]])
+        if not mine:
             continue
-        for name in OUTPUT_NAMES:
-            part.values[name][j] = with_bound.values[name][k]
-            part.present[name][j] = with_bound.present[name][k]
-        for key, column in table.columns.items():
-            if row in column.censored:
-                direction, bound, unit = column.censored[row]
-                label = _label(key)
-                text = column.cells[row].strip()
-                old = f"{label} '{text}' is a censored result: read without it"
-                shown = f"{bound:g}" + (f" {unit or column.unit}" if (unit or column.unit) else "")
-                new = f"{label} '{text}' read as {shown} (the same reading anywhere {direction} {bound:g})"
-                part.notes[j] = [new if note == old else note for note in part.notes[j]]
-                kind = f"{label}: censored, not used"
-                part.note_kinds[j] = [
-                    f"{label}: censored, bound used" if x == kind else x for x in part.note_kinds[j]
-                ]
+        at = np.array(mine)
+        with_bound = interpret_rows(_censored_variant(table, mine, "bound", key, used), at, pressure_unit)
+        at_far = interpret_rows(_censored_variant(table, mine, "far", key, used), at, pressure_unit)
+        label = _label(key)
+        for k, row in enumerate(mine):
+            same = not with_bound.errors[k] and not at_far.errors[k]
+            same = same and all(
+                with_bound.present[name][k] == at_far.present[name][k]
+                and with_bound.value(name, k) == at_far.value(name, k)
+                for name in OUTPUT_NAMES
+            )
+            if not same:
+                continue
+            used.add((key, row))
+            j = position[row]
+            for name in OUTPUT_NAMES:
+                part.values[name][j] = with_bound.values[name][k]
+                part.present[name][j] = with_bound.present[name][k]
+            direction, bound, unit = column.censored[row]
+            text = column.cells[row].strip()
+            old = f"{label} '{text}' is a censored result: read without it"
+            unit = unit or column.unit
+            shown = f"{bound:g}" + (f" {unit}" if unit else "")
+            new = f"{label} '{text}' read as {shown} (the same reading anywhere {direction} {bound:g})"
+            part.notes[j] = [new if note == old else note for note in part.notes[j]]
+            kind = f"{label}: censored, not used"
+            part.note_kinds[j] = [
+                f"{label}: censored, bound used" if x == kind else x for x in part.note_kinds[j]
+            ]
 
 
 # -- writing -------------------------------------------------------------------------------------------------
@@ -1640,7 +1654,7 @@ def run(
         else:
             stream = stack.enter_context(open(source, encoding="utf-8", newline=""))
             size = os.fstat(stream.fileno()).st_size or None
-        reader = Reader(stream)
+        reader = Reader(stream, CHUNK)
         layout = reader.layout
         for warning in layout.warnings:
             stderr.write(f"warning: {warning}\n")
