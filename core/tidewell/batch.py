@@ -1,14 +1,18 @@
-"""Batch audit: the blood_gas interpretation of every row of a CSV file, vectorized with numpy.
+"""Batch audit: the blood_gas interpretation of every row of a CSV file, vectorized with numpy, in chunks.
 
 ==========================  ==============================================================================
-``read_table``              CSV text -> ``Table``: input columns (named by the contract's input keys, units in
-                            a ``pco2[kPa]`` header suffix, a units row, or in the cell: ``9.3 kPa``) and the
-                            other columns, copied through
-``interpret_table``         every row of a ``Table`` -> ``Audit`` (outputs, findings and errors per row)
+``run``                     what ``tidewell batch IN.csv -o OUT.csv`` does: read, interpret and write a file
+                            chunk by chunk (memory of one chunk), then the summary
+``Reader``                  a CSV stream -> its ``Layout`` (header, units, dialect) and one ``Table`` per
+                            chunk of :data:`CHUNK` rows
+``read_table``              CSV text -> one ``Table``: input columns (named by the contract's input keys or
+                            the names of :mod:`tidewell.cells`, units in a ``pco2[kPa]`` or ``pCO2 (kPa)``
+                            header, a units row, or in the cell: ``9.3 kPa``) and the other columns
+``interpret_table``         every row of a ``Table`` -> ``Audit`` (outputs, findings, errors, notes per row)
 ``row_inputs``              one row as the ``inputs`` of a blood_gas request (what the bridge would be sent)
-``write_csv``               every input column, then the main outputs and the findings of each row
-``summary``, ``summary_text``  counts per disorder, chronicity and finding
-``run``                     what ``tidewell batch IN.csv -o OUT.csv`` does
+``Writer``, ``write_csv``   every input column, then the outputs, the findings, the error and the notes
+``Tally``, ``summary``      counts per site, kind of input error, note, disorder, chronicity and finding
+``summary_text``            the summary in words, each percentage of the rows its heading names
 ==========================  ==============================================================================
 
 One implementation of each rule: a row is read with the blood_gas reader's own field table
@@ -20,9 +24,12 @@ either accepts them or gives the bridge's own error messages; a row's errors go 
 the batch goes on. tests/core/test_batch.py checks on thousands of generated rows that every row equals the
 scalar bridge's answer for the same inputs.
 
-Cells: empty, ``NA``, ``N/A``, ``null``, ``none``, ``nan`` and ``-`` mean "not given". Numbers use a point for
-decimals. Units are matched ignoring case (``kpa`` is kPa; ``C`` and ``°C`` are degC). ``hypercapnia_risk`` is
-true/false, yes/no, y/n or 1/0. FiO2 and SpO2 may be written ``28%``.
+Cells (:mod:`tidewell.cells`): empty, ``NA``, ``N/A``, ``null``, ``none``, ``nan`` and ``-`` mean "not given";
+a decimal comma is read in a file not separated by commas. Units are matched ignoring case (``kpa`` is kPa;
+``C`` and ``°C`` are degC). ``hypercapnia_risk`` is true/false, yes/no, y/n or 1/0. FiO2 and SpO2 may be
+written ``28%``. A site not given is read as :data:`SITE_NOT_GIVEN`; an optional cell that cannot be read is
+left out and named in the row's notes; a censored result (``<0.5``) is used at its bound only where the
+reading is the same at both ends of its interval (docs/cli.md).
 """
 
 from __future__ import annotations
@@ -1368,12 +1375,14 @@ class Tally:
         v, p = audit.values, audit.present
         self.rows += audit.n
         self.interpreted += int(ok.sum())
-        for site, good in zip(audit.sites.tolist(), ok.tolist(), strict=True):
+        sites = audit.sites
+        for site in dict.fromkeys(sites.tolist()):
+            at = sites == site
             counts = self.sites.setdefault(site, Counter())
-            counts["rows"] += 1
-            counts["interpreted"] += good
-        for j, kinds in enumerate(audit.error_kinds):
-            for kind in kinds:
+            counts["rows"] += int(at.sum())
+            counts["interpreted"] += int((at & ok).sum())
+        for j in np.flatnonzero(~ok).tolist():
+            for kind in audit.error_kinds[j]:
                 self.errors_by_kind[kind] += 1
                 if kind not in self.example_error:
                     where = f"line {lines[j]}: " if lines else ""
