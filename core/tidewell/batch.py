@@ -1611,22 +1611,28 @@ class Progress:
         if not finished and now - self.last < 0.2:
             return
         self.last = now
-        if fraction is None:
-            fraction = done / total if total else 1.0
+        if fraction is None and total:
+            fraction = done / total
         width = 30
-        filled = int(width * min(fraction, 1.0))
+        filled = int(width * min(fraction or 0.0, 1.0))
         rate = done / max(now - self.start, 1e-9)
         elapsed = now - self.start
-        left = elapsed * (1.0 - fraction) / fraction if fraction > 0 else 0.0
         bar = "#" * filled + "." * (width - filled)
         of = f"/{total:,}" if total is not None else ""
-        text = f"\r{self.label} [{bar}] {done:,}{of} rows, {rate:,.0f} rows/s, {left:4.0f} s left"
+        text = f"\r{self.label} [{bar}] {done:,}{of} rows, {rate:,.0f} rows/s"
+        if fraction:  # the time left only when the share done is known (not for a stream of unknown size)
+            text += f", {elapsed * (1.0 - min(fraction, 1.0)) / fraction:4.0f} s left"
         self.stream.write(text + ("\n" if finished else ""))
         self.stream.flush()
 
 
 class NoRowRead(TableError):
-    """Every row of the file had an error: nothing was interpreted (the output is written all the same)."""
+    """Every row of the file had an error: nothing was interpreted (the output and the summary are written
+    all the same; ``counts`` is the summary)."""
+
+    def __init__(self, message: str, counts: dict):
+        super().__init__(message)
+        self.counts = counts
 
 
 def run(
@@ -1686,8 +1692,7 @@ def run(
             comma_slips += _decimal_comma_slips(table)
             done += len(table)
             if bar is not None:
-                fraction = _fraction_read(stream, size)
-                bar(done, None, fraction if fraction is not None else 0.0)
+                bar(done, None, _fraction_read(stream, size))
         if bar is not None and done:
             bar(done, done, 1.0)
         if not writer._started:
@@ -1701,7 +1706,7 @@ def run(
         out.write(f"note: {note}\n")
     out.write(summary_text(counts) + "\n")
     if counts["rows"] and not counts["interpreted"]:
-        raise NoRowRead(_no_row_message(counts, comma_slips))
+        raise NoRowRead(_no_row_message(counts, comma_slips), counts)
     return counts
 
 

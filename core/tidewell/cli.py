@@ -638,11 +638,13 @@ def run_batch(argv: list[str]) -> int:
         return 2
     except batch.TableError as exc:
         sys.stderr.write(f"tidewell: {args.source}: {exc}\n")
-        return 2
+        counts = getattr(exc, "counts", None)  # no row read: the summary was made all the same
+        if counts is None:
+            return 2
     if args.summary_json:
         with open(args.summary_json, "w", encoding="utf-8") as f:
-            json.dump(counts, f, indent=2)
-    return 0
+            json.dump(counts, f, indent=2, ensure_ascii=False)
+    return 2 if counts["rows"] and not counts["interpreted"] else 0
 
 
 COMMANDS = {"calc": run_calc, "batch": run_batch, "how-sure": run_how_sure}

@@ -360,9 +360,12 @@ def test_batch_unreadable_file_exits_2(tmp_path: Path, text, words):
 def test_batch_where_no_row_could_be_read_exits_2_and_says_why(tmp_path: Path):
     source = tmp_path / "gases.csv"
     source.write_text('ph,pco2[kPa]\n"7,24",9.3\n"7,40",5.3\n', encoding="utf-8")
-    done = run("batch", str(source), "-o", str(tmp_path / "out.csv"))
+    done = run(
+        "batch", str(source), "-o", str(tmp_path / "out.csv"), "--summary-json", str(tmp_path / "s.json")
+    )
     assert done.returncode == 2, done.stderr
     assert "no row could be read (2 rows, all with errors)" in done.stderr
+    assert json.loads((tmp_path / "s.json").read_text())["errors_by_kind"] == {"pH: not a number": 2}
     assert "pH: not a number" in done.stderr and "line 2:" in done.stderr
     assert "2 cells hold a decimal comma" in done.stdout  # said once, for the file
     assert (tmp_path / "out.csv").read_text(encoding="utf-8").count("\n") == 3  # the rows' errors are written
