@@ -597,7 +597,8 @@ def run_batch(argv: list[str]) -> int:
         "(an id, a date) are copied through. A row's problems go in its 'error' column and the batch goes\n"
         "on; a summary of counts per disorder, chronicity and finding is printed at the end.",
         epilog="example:\n  tidewell batch gases.csv -o gases-read.csv --kpa\n\n"
-        "exit status: 0 done (rows with errors included), 2 the file cannot be read, 1 internal fault.",
+        "exit status: 0 done (rows with errors included), 2 the file cannot be read or no row\n"
+        "could be, 1 internal fault.",
         formatter_class=HelpFormatter,
         allow_abbrev=False,
     )
