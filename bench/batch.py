@@ -1,7 +1,8 @@
 #!/usr/bin/env python3
-"""Batch audit and uncertainty: how fast, against looping the scalar bridge.
+"""Batch audit and uncertainty: how fast, against looping the scalar bridge; and how it scales.
 
     python3 bench/batch.py [--rows 100000] [--scalar-sample 5000] [--full-scalar] [--repeat 3] [--json FILE]
+                           [--scale 100000,1000000] [--scale-repeat 3] [--scale-only]
 
 Builds a seeded, invented audit file (--rows samples: COPD exacerbations, compensated and mixed disorders,
 normal gases, venous and capillary samples, about 2 % of rows with a typing slip or a unit mix-up, units in
@@ -20,6 +21,13 @@ Times are wall clock; the scalar loop, the batch and the uncertainty runs are al
 CPU time (time.process_time), which other jobs on a shared machine disturb less (the CPU ratio is printed
 beside the wall-clock one; neither replaces the other).
 
+Scale (issue 19): the same invented file at each --scale size (10^5 and 10^6 rows by default; written row by
+row, never held in memory) read, interpreted and written file to file by tidewell.batch.run, each run in a
+fresh process so that its peak resident memory (ru_maxrss) is its own, the sizes alternated --scale-repeat
+times so they share the machine's load alike; printed side by side: median wall time, rows per second, median
+CPU time, rows per CPU second, the largest peak RSS, and the ratio of the largest size's peak RSS to the
+smallest's (the targets: at most 1.3 and at most 300 MB at 10^6 rows; at least 30,000 rows per second).
+
 A benchmark, not a test: it prints figures (and the load of the machine) and passes no judgement. The
 target of issue 9 is a batch at least 20 times faster than the scalar loop.
 """
@@ -34,6 +42,7 @@ import os
 import platform
 import random
 import statistics
+import subprocess
 import sys
 import tempfile
 import time
@@ -88,8 +97,15 @@ def _gas(rng: random.Random) -> tuple[float, float, float]:
 
 
 def make_csv(rows: int, seed: int = 7) -> str:
-    rng = random.Random(seed)
     out = io.StringIO()
+    write_rows(out, rows, seed)
+    return out.getvalue()
+
+
+def write_rows(out, rows: int, seed: int = 7) -> None:
+    """The invented audit file of :func:`make_csv` written to a stream row by row (a 10^7-row file never
+    sits in memory)."""
+    rng = random.Random(seed)
     writer = csv.writer(out)
     writer.writerow(COLUMNS)
     for n in range(rows):
@@ -126,7 +142,6 @@ def make_csv(rows: int, seed: int = 7) -> str:
                 rng.choice(["yes", "no", ""]),
             ]
         )
-    return out.getvalue()
 
 
 def time_scalar(table, indices) -> tuple[float, float]:
@@ -238,6 +253,85 @@ def time_sureness(repeat: int) -> dict:
     return out
 
 
+def _child(rows: int, path: str) -> int:
+    """One file-to-file run in this fresh process (``--child``): prints wall and CPU seconds and the peak
+    resident memory of the process as JSON."""
+    import resource
+
+    with tempfile.TemporaryDirectory() as tmp:
+        start, cpu = time.perf_counter(), time.process_time()
+        counts = batch.run(
+            path, str(Path(tmp) / "out.csv"), progress=False, stdout=io.StringIO(), stderr=io.StringIO()
+        )
+        wall, cpu = time.perf_counter() - start, time.process_time() - cpu
+    peak_kb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss  # kilobytes on Linux
+    print(json.dumps({"rows": counts["rows"], "wall_s": wall, "cpu_s": cpu, "peak_rss_mb": peak_kb / 1024}))
+    return 0
+
+
+def time_scale(sizes: list[int], repeat: int, seed: int = 7) -> dict:
+    """``tidewell.batch.run`` file to file at each size, each run in a fresh process (peak RSS is per
+    process), the sizes alternated ``repeat`` times so that they share the machine's load alike."""
+    runs: dict[int, list[dict]] = {n: [] for n in sizes}
+    with tempfile.TemporaryDirectory() as tmp:
+        paths = {}
+        for n in sizes:
+            paths[n] = Path(tmp) / f"gases-{n}.csv"
+            with open(paths[n], "w", encoding="utf-8", newline="") as f:
+                write_rows(f, n, seed)
+        load_before = os.getloadavg()
+        for _ in range(repeat):
+            for n in sizes:
+                done = subprocess.run(
+                    [sys.executable, __file__, "--child", str(n), str(paths[n])],
+                    capture_output=True,
+                    text=True,
+                    check=True,
+                )
+                runs[n].append(json.loads(done.stdout))
+        load_after = os.getloadavg()
+        sizes_mb = {n: paths[n].stat().st_size / 1e6 for n in sizes}
+    table = {}
+    for n in sizes:
+        wall = statistics.median(r["wall_s"] for r in runs[n])
+        cpu = statistics.median(r["cpu_s"] for r in runs[n])
+        table[n] = {
+            "csv_mb": round(sizes_mb[n], 1),
+            "wall_s_median": round(wall, 2),
+            "rows_per_s": round(n / wall),
+            "cpu_s_median": round(cpu, 2),
+            "rows_per_cpu_s": round(n / cpu),
+            "peak_rss_mb_max": round(max(r["peak_rss_mb"] for r in runs[n]), 1),
+            "runs_wall_s": [round(r["wall_s"], 2) for r in runs[n]],
+        }
+    first, last = sizes[0], sizes[-1]
+    return {
+        "load_average_1min": [round(load_before[0], 2), round(load_after[0], 2)],
+        "repeat": repeat,
+        "sizes": table,
+        "peak_rss_ratio_largest_to_smallest": round(
+            table[last]["peak_rss_mb_max"] / table[first]["peak_rss_mb_max"], 3
+        ),
+    }
+
+
+def print_scale(scale: dict) -> None:
+    print(
+        f"scale (tidewell.batch.run file to file, one process per run, median of {scale['repeat']}; "
+        f"load average 1 min before/after: {scale['load_average_1min']}):"
+    )
+    print(
+        f"  {'rows':>12} {'CSV MB':>8} {'time s':>8} {'rows/s':>9} {'CPU s':>8} {'rows/CPU s':>11} "
+        f"{'peak RSS MB':>12}"
+    )
+    for n, t in scale["sizes"].items():
+        print(
+            f"  {n:>12,} {t['csv_mb']:>8.1f} {t['wall_s_median']:>8.2f} {t['rows_per_s']:>9,} "
+            f"{t['cpu_s_median']:>8.2f} {t['rows_per_cpu_s']:>11,} {t['peak_rss_mb_max']:>12.1f}"
+        )
+    print(f"  peak RSS, largest / smallest: {scale['peak_rss_ratio_largest_to_smallest']}")
+
+
 def main() -> int:
     parser = argparse.ArgumentParser(
         description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter
@@ -248,9 +342,28 @@ def main() -> int:
     parser.add_argument("--repeat", type=int, default=3)
     parser.add_argument("--json", metavar="FILE")
     parser.add_argument("--quick", action="store_true", help="CI: 2,000 rows, 200 scalar, one repeat")
+    parser.add_argument(
+        "--scale",
+        default="100000,1000000",
+        metavar="N,N",
+        help="file sizes (rows) of the constant-memory runs, smallest first ('' for none)",
+    )
+    parser.add_argument("--scale-repeat", type=int, default=3, metavar="N", help="runs of each size")
+    parser.add_argument("--scale-only", action="store_true", help="only the constant-memory runs")
+    parser.add_argument("--child", nargs=2, metavar=("ROWS", "PATH"), help=argparse.SUPPRESS)
     args = parser.parse_args()
+    if args.child:
+        return _child(int(args.child[0]), args.child[1])
     if args.quick:
         args.rows, args.scalar_sample, args.repeat, args.full_scalar = 2_000, 200, 1, False
+        args.scale, args.scale_repeat = "2000,20000", 1
+    sizes = [int(n) for n in args.scale.split(",") if n.strip()]
+    if args.scale_only:
+        scale = time_scale(sizes, args.scale_repeat)
+        print_scale(scale)
+        if args.json:
+            Path(args.json).write_text(json.dumps({"scale": scale}, indent=2) + "\n", encoding="utf-8")
+        return 0
 
     load_before = os.getloadavg()
     text = make_csv(args.rows)
@@ -336,6 +449,9 @@ def main() -> int:
             f"uncertainty, 10,000 draws, {name}: best {best_ms:.0f} ms, median {median_ms:.0f} ms "
             f"(CPU best {t['cpu_best_s'] * 1e3:.0f} ms, median {t['cpu_median_s'] * 1e3:.0f} ms)"
         )
+    if sizes:
+        report["scale"] = scale = time_scale(sizes, args.scale_repeat)
+        print_scale(scale)
     if args.json:
         Path(args.json).write_text(json.dumps(report, indent=2) + "\n", encoding="utf-8")
     return 0

@@ -3,7 +3,6 @@
 ==================  ================================================================================
 ``main``            the entry point: one sample from flags, ``calc``, ``batch``, ``how-sure``
 ``sample_inputs``   the blood_gas inputs of the flags given (``--pco2 9.3kPa`` -> a quantity)
-``typed_value``     one typed value of a blood_gas input: "9.3kPa", "28%", "yes" -> request form
 ``parse_assignment`` ``key=value`` of ``tidewell calc`` -> (nested key path, request value)
 ``render``          a bridge response as readable text: summary, findings by severity, key numbers,
                     cautions
@@ -19,111 +18,16 @@ from __future__ import annotations
 
 import argparse
 import json
-import math
 import os
-import re
 import shutil
 import sys
 import textwrap
 
 from . import __version__, units
 from .bridge import available, handle_obj
+from .cells import IMPLIED_UNITS, NUMBER, canonical_unit, split_cell, typed_value
 
-# -- typed values (shared with the batch reader) -------------------------------------------------------------
-
-#: cell or flag texts that mean "not given"
-EMPTY = frozenset({"", "na", "n/a", "null", "none", "nan", "-"})
-TRUE, FALSE = frozenset({"true", "yes", "y", "1"}), frozenset({"false", "no", "n", "0"})
-_NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*([A-Za-z%°µμ].*?)?\s*$")
-_UNIT_FOLD = {u.casefold(): u for u in units.ALL_UNITS}
-_UNIT_FOLD.update({"°c": "degC", "c": "degC", "°f": "degF", "f": "degF"})
-ABSENT, NUMBER, BAD = 0, 1, 2
-
-
-def canonical_unit(text: str | None) -> str | None:
-    """A unit as Tidewell spells it, matched ignoring case ("kpa" -> "kPa", "°C" -> "degC"); unknown text is
-    returned unchanged (the bridge then names the accepted units).
-
-    >>> canonical_unit("kpa"), canonical_unit("MMOL/L"), canonical_unit(" C "), canonical_unit("stone")
-    ('kPa', 'mmol/L', 'degC', 'stone')
-    """
-    if text is None:
-        return None
-    stripped = text.strip()
-    if not stripped:
-        return None
-    return _UNIT_FOLD.get(stripped.casefold(), stripped)
-
-
-def split_cell(text: str | None) -> tuple[int, float | None, str | None]:
-    """(state, number, unit) of a typed value: ABSENT, NUMBER (with its unit or None) or BAD.
-
-    >>> split_cell("9.3kPa"), split_cell(" 7.24 "), split_cell("NA"), split_cell("7,4")
-    ((1, 9.3, 'kPa'), (1, 7.24, None), (0, None, None), (2, None, None))
-    """
-    if text is None or text.strip().casefold() in EMPTY:
-        return ABSENT, None, None
-    try:
-        number = float(text)
-    except ValueError:
-        m = _NUMBER_UNIT.match(text)
-        if not m:
-            return BAD, None, None
-        number, unit = float(m.group(1)), canonical_unit(m.group(2))
-    else:
-        unit = None
-    if not math.isfinite(number):
-        return BAD, None, None
-    return NUMBER, number, unit
-
-
-_KINDS: dict[str, str] = {}
-
-
-def _kinds() -> dict[str, str]:
-    """input key -> how the blood_gas reader reads it (interpret.FIELDS), looked up once."""
-    if not _KINDS:
-        from .interpret import FIELDS
-
-        _KINDS.update({f.key: f.kind for f in FIELDS})
-    return _KINDS
-
-
-def typed_value(key: str, text: str, default_unit: str | None = None):
-    """One blood_gas input typed as text, in the form a request carries it (None when not given).
-
-    Dimensioned inputs become ``{"value", "unit"}`` (the unit typed, else ``default_unit``, else none: the
-    bridge then says which units it accepts); pH, age and the other bare numbers stay numbers; ``28%``
-    becomes ``{"value": 28, "unit": "%"}``; flags read true/false, yes/no, y/n, 1/0; words are lower-cased.
-    Text that is not a number is passed on as text, so the bridge names the problem.
-
-    >>> typed_value("pco2", "9.3kPa"), typed_value("pco2", "70", "mmHg"), typed_value("fio2", "28%")
-    ({'value': 9.3, 'unit': 'kPa'}, {'value': 70.0, 'unit': 'mmHg'}, {'value': 28.0, 'unit': '%'})
-    >>> typed_value("ph", "7.24"), typed_value("hypercapnia_risk", "yes"), typed_value("sample", "Venous")
-    (7.24, True, 'venous')
-    """
-    kind = _kinds().get(key, "quantity")
-    if text is None or text.strip().casefold() in EMPTY:
-        return None
-    if kind == "choice":
-        return text.strip().casefold()
-    if kind == "flag":
-        folded = text.strip().casefold()
-        return True if folded in TRUE else False if folded in FALSE else text.strip()
-    if kind == "range":
-        low, _, high = text.strip().rstrip("%").partition("-")
-        try:
-            return {"low": float(low), "high": float(high)}
-        except ValueError:
-            return text.strip()
-    state, number, unit = split_cell(text)
-    unit = unit if unit is not None else default_unit
-    value = number if state == NUMBER else text.strip()
-    if kind in ("quantity", "concentration"):
-        return {"value": value, "unit": unit}
-    if unit is not None and state == NUMBER:
-        return {"value": value, "unit": unit}
-    return value
+# -- typed values: tidewell.cells (shared with the batch reader) -------------------------------------------
 
 
 def parse_assignment(text: str) -> tuple[list[str], object]:
@@ -170,7 +74,7 @@ SAMPLE_FLAGS = {
         ("--sample", "sample", "SITE", "arterial (default), venous or capillary"),
         ("--base-excess", "base_excess", "VALUE", "base excess as reported (mmol/L)"),
     ),
-    "Chemistry (Na, K, Cl need no unit: mmol/L; give the others with theirs, e.g. 7.2mmol/L, 130mg/dL)": (
+    "Chemistry (Na, K, Cl need no unit; the others do, e.g. 7.2mmol/L, 130mg/dL)": (
         ("--na", "na", "VALUE", "sodium"),
         ("--k", "k", "VALUE", "potassium"),
         ("--cl", "cl", "VALUE", "chloride"),
@@ -216,17 +120,6 @@ SAMPLE_FLAGS = {
         ("--rq", "rq", "NUMBER", "respiratory quotient (default 0.8)"),
     ),
 }
-#: inputs whose accepted units all give the same number (mmol/L = mEq/L for a monovalent ion; osmolality has
-#: one unit), so a bare number is read in that unit without any guess. Everything else needs its unit:
-#: glucose, lactate, urea, phosphate, calcium and magnesium differ between mmol/L, mEq/L and mg/dL.
-IMPLIED_UNITS = {
-    "hco3": "mmol/L",
-    "base_excess": "mmol/L",
-    "na": "mmol/L",
-    "k": "mmol/L",
-    "cl": "mmol/L",
-    "measured_osmolality": "mOsm/kg",
-}
 FLAG_OF = {key: flag for group in SAMPLE_FLAGS.values() for flag, key, _, _ in group}
 
 DESCRIPTION = """\
@@ -254,6 +147,42 @@ commands:
   course     one patient's gases over time from a CSV file (tidewell course --help)
 
 exit status: 0 answered, 2 bad input (each problem printed with its field), 1 internal fault."""
+
+
+class HelpFormatter(argparse.RawDescriptionHelpFormatter):
+    """Help at most 80 columns wide: running text refilled, indented lines (examples) kept, and wrapped
+    with a deeper indent only when longer than the width."""
+
+    def __init__(self, prog: str, **kwargs):
+        kwargs.setdefault("width", min(HELP_WIDTH, shutil.get_terminal_size((HELP_WIDTH, 24)).columns) - 2)
+        super().__init__(prog, **kwargs)
+
+    def _fill_text(self, text: str, width: int, indent: str) -> str:
+        width = max(width, 40)
+        out: list[str] = []
+        running: list[str] = []
+
+        def flush() -> None:
+            if running:
+                out.extend(textwrap.wrap(" ".join(running), width))
+                running.clear()
+
+        for line in text.splitlines():
+            if not line.strip() or line[0].isspace() or line.rstrip().endswith(":"):
+                flush()
+                lead = line[: len(line) - len(line.lstrip())]
+                out.extend(
+                    textwrap.wrap(line, width, subsequent_indent=lead + "    ", break_on_hyphens=False)
+                    or [""]
+                )
+            else:
+                running.append(line.strip())
+        flush()
+        return "\n".join(indent + line if line else line for line in out)
+
+
+#: the widest line of any --help text
+HELP_WIDTH = 80
 
 
 def _add_sample_flags(parser: argparse.ArgumentParser) -> None:
@@ -467,6 +396,8 @@ def _errors_text(response: dict, *, flags: bool) -> str:
 def _finish(response: dict, args, *, flags: bool, how_sure: str | None = None) -> int:
     if not response.get("ok"):
         sys.stderr.write(_errors_text(response, flags=flags))
+        if getattr(args, "json", False):  # a script reads the same JSON on stdout, ok or not
+            sys.stdout.write(json.dumps(response, indent=2, ensure_ascii=False) + "\n")
         internal = any(e.get("code") == "internal_error" for e in response.get("errors", []))
         return 1 if internal else 2
     if getattr(args, "json", False):
@@ -486,7 +417,7 @@ def _sample_parser(
         prog=prog,
         description=description,
         epilog=epilog,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpFormatter,
         allow_abbrev=False,
     )
     parser.add_argument("--version", action="version", version=f"tidewell {__version__}")
@@ -507,9 +438,47 @@ def _how_sure_line(inputs: dict, pressure_unit: str) -> str | None:
     return response["outputs"].get("how_sure") if response.get("ok") else None
 
 
+def join_units(argv: list[str]) -> list[str]:
+    """A value flag's number and a unit written apart (``--po2 55 mmHg``) joined into one value.
+
+    >>> join_units(["--po2", "55", "mmHg", "--ph", "7.3", "--fio2", "28", "%"])
+    ['--po2', '55 mmHg', '--ph', '7.3', '--fio2', '28 %']
+    """
+    out: list[str] = []
+    i = 0
+    while i < len(argv):
+        out.append(argv[i])
+        flag, eq, value = argv[i].partition("=")
+        if flag in _VALUE_FLAGS:
+            number, unit_at = (value, i + 1) if eq else (argv[i + 1] if i + 1 < len(argv) else "", i + 2)
+            unit = argv[unit_at] if unit_at < len(argv) else ""
+            if _is_float(number) and not _is_float(unit) and canonical_unit(unit) in units.ALL_UNITS:
+                if not eq:
+                    out.append(number)
+                out[-1] = f"{out[-1]} {unit}"
+                i = unit_at + 1
+                continue
+        i += 1
+    return out
+
+
+def _is_float(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+#: the sample flags that take a value (a number and its unit may be written apart)
+_VALUE_FLAGS = frozenset(
+    flag for group in SAMPLE_FLAGS.values() for flag, _, metavar, _ in group if metavar is not None
+)
+
+
 def run_sample(argv: list[str]) -> int:
     parser = _sample_parser("tidewell", DESCRIPTION, EXAMPLES, how_sure=True)
-    args = parser.parse_args(argv)
+    args = parser.parse_args(join_units(argv))
     inputs = sample_inputs(args)
     if not inputs:
         parser.print_help()
@@ -546,7 +515,7 @@ def run_how_sure(argv: list[str]) -> int:
     draws.add_argument(
         "--error", action="append", default=[], metavar="KEY=ERROR", help="measurement error of one input"
     )
-    args = parser.parse_args(argv)
+    args = parser.parse_args(join_units(argv))
     inputs = sample_inputs(args)
     request_inputs: dict = {"sample": inputs}
     errors: dict = {}
@@ -600,7 +569,7 @@ def run_calc(argv: list[str]) -> int:
         "duration=60min\n"
         "  tidewell calc uncertainty sample.ph=7.34 sample.pco2=6.6kPa sample.hco3=26mmol/L seed=7\n\n"
         "calculations: " + ", ".join(available()),
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpFormatter,
         allow_abbrev=False,
     )
     parser.add_argument("name", nargs="?", help="the calculation, e.g. altitude or blood_gas")
@@ -641,8 +610,9 @@ def run_batch(argv: list[str]) -> int:
         "(an id, a date) are copied through. A row's problems go in its 'error' column and the batch goes\n"
         "on; a summary of counts per disorder, chronicity and finding is printed at the end.",
         epilog="example:\n  tidewell batch gases.csv -o gases-read.csv --kpa\n\n"
-        "exit status: 0 done (rows with errors included), 2 the file cannot be read, 1 internal fault.",
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        "exit status: 0 done (rows with errors included), 2 the file cannot be read or no row\n"
+        "could be, 1 internal fault.",
+        formatter_class=HelpFormatter,
         allow_abbrev=False,
     )
     parser.add_argument("source", metavar="IN.csv", help="the samples ('-' reads standard input)")
@@ -673,7 +643,7 @@ def run_batch(argv: list[str]) -> int:
         counts = batch.run(
             args.source,
             args.output,
-            pressure_unit=args.pressure_unit or "mmHg",
+            pressure_unit=args.pressure_unit,
             progress=args.progress,
             full_precision=args.full_precision,
         )
@@ -682,11 +652,13 @@ def run_batch(argv: list[str]) -> int:
         return 2
     except batch.TableError as exc:
         sys.stderr.write(f"tidewell: {args.source}: {exc}\n")
-        return 2
+        counts = getattr(exc, "counts", None)  # no row read: the summary was made all the same
+        if counts is None:
+            return 2
     if args.summary_json:
         with open(args.summary_json, "w", encoding="utf-8") as f:
-            json.dump(counts, f, indent=2)
-    return 0
+            json.dump(counts, f, indent=2, ensure_ascii=False)
+    return 2 if counts["rows"] and not counts["interpreted"] else 0
 
 
 def run_course(argv: list[str]) -> int:

@@ -79,13 +79,25 @@ def read_course(text: str) -> tuple[dict, list[int], list[str]]:
     times = table.by_column[names.index(TIME_COLUMN)]
     events = table.by_column[names.index(EVENTS_COLUMN)] if EVENTS_COLUMN in names else [""] * len(table)
     samples = []
+    no_site = []
     for i in range(len(table)):
-        sample = {"time": _time_value(times[i]), "inputs": batch.row_inputs(table, i)}
+        # one patient's bedside series: a gas without a site is read as the blood_gas default (arterial),
+        # and the output says so
+        inputs = batch.row_inputs(table, i, site_default="")
+        if not inputs.get("sample"):
+            inputs["sample"] = "arterial"
+            no_site.append(str(table.line[i]))
+        sample = {"time": _time_value(times[i]), "inputs": inputs}
         words = event_words(events[i])
         if words:
             sample["events"] = words
         samples.append(sample)
     warnings = [w for w in table.warnings if f"'{TIME_COLUMN}'" not in w and f"'{EVENTS_COLUMN}'" not in w]
+    if no_site:
+        warnings.append(
+            f"no sample site on line{'s' if len(no_site) > 1 else ''} {', '.join(no_site)}: read as arterial "
+            "(add a 'sample' column: arterial, capillary or venous)"
+        )
     return {"samples": samples}, list(table.line), warnings
 
 

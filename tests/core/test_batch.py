@@ -177,8 +177,9 @@ def to_csv(samples: list[dict], rng: random.Random, *, units_row: bool = False) 
     return out.getvalue()
 
 
-def expected_row(response: dict) -> dict:
-    """The batch output columns as the scalar bridge response gives them."""
+def expected_row(response: dict, pressure_unit: str = "mmHg") -> dict:
+    """The batch output columns as the scalar bridge response gives them (the P/F ratio, which the bridge
+    gives in mmHg, in the batch's pressure unit)."""
     o, findings = response["outputs"], response["findings"]
     ds = o["disorders"]
     respiratory = [d for d in ds if d["code"].startswith("respiratory")]
@@ -209,7 +210,9 @@ def expected_row(response: dict) -> dict:
         "pao2_alveolar": value("pao2_alveolar"),
         "a_a_gradient": value("a_a_gradient"),
         "a_a_category": o.get("a_a_category"),
-        "pf_ratio": value("pf_ratio"),
+        "pf_ratio": None
+        if "pf_ratio" not in o
+        else units.convert(o["pf_ratio"]["value"], o["pf_ratio"]["unit"], pressure_unit),
         "respiratory_failure": o.get("respiratory_failure"),
         "spo2_target": f"{o['spo2_target']['low']}-{o['spo2_target']['high']}",
         "spo2_on_target": None,  # filled below when an SpO2 was given
@@ -245,7 +248,7 @@ def _scalar_row(inputs: dict, pressure_unit: str):
     response = bridge.handle_obj(request)
     if not response["ok"]:
         return None
-    want = expected_row(response)
+    want = expected_row(response, pressure_unit)
     spo2 = want.pop("_spo2")
     if "spo2" in inputs:
         want["spo2_on_target"] = spo2
@@ -263,9 +266,14 @@ def _rows_equal_scalar(table, audit, pressure_unit, checked) -> dict:
         inputs = batch.row_inputs(table, i)
         if checked is not None and i >= checked:
             bridge.RESPONSE_HOOKS[:] = []
+        where = f"row {i} {json.dumps(inputs)}"
+        if i in table.shifted:  # cells beyond the header: refused by the batch before any reading
+            counts["errors"] += 1
+            assert audit.errors[i] and "shifted" in audit.errors[i][0], where
+            assert not any(audit.present[name][i] for name in batch.OUTPUT_NAMES), where
+            continue
         request = {"calc": "blood_gas", "inputs": inputs, "options": {"pressure_unit": pressure_unit}}
         response = bridge.handle_obj(request)
-        where = f"row {i} {json.dumps(inputs)}"
         if not response["ok"]:
             counts["errors"] += 1
             assert audit.errors[i] == [batch._csv_message(e["message"]) for e in response["errors"]], where
@@ -304,7 +312,8 @@ def test_batch_equals_scalar_row_by_row(seed, rows, pressure_unit, units_row):
     table = batch.read_table(to_csv(samples, rng, units_row=units_row))
     assert len(table) == rows
     for i in (0, rows // 2, rows - 1):  # the CSV round trip gives back the generated request
-        assert batch.row_inputs(table, i) == _canonical(samples[i])
+        # a row without a site is sent as the batch reads it: as a venous sample (batch.SITE_NOT_GIVEN)
+        assert batch.row_inputs(table, i) == {"sample": "venous", **_canonical(samples[i])}
     audit = batch.interpret_table(table, pressure_unit=pressure_unit)
     counts = assert_rows_equal_scalar(table, audit, pressure_unit=pressure_unit, checked=200)
     # the generator exercises both paths: plainly valid rows on arrays and refused rows
@@ -396,15 +405,15 @@ def test_worked_cases_through_a_csv():
     """Published worked cases (tests/cases/reference_cases.json) read from a CSV give their expected calls."""
     cases = load_cases()
     text = (
-        "id,ph,pco2[mmHg],hco3[mmol/L],na[mmol/L],cl[mmol/L],po2[mmHg],fio2,age\n"
-        "AB-01,7.28,26,12,140,100,,,\n"
-        "AB-03,7.25,60,26,,,,,\n"
-        "AB-04,7.33,60,31,,,,,\n"
-        "AB-05,7.24,70,29.7,,,,,\n"
-        "AB-06,7.50,47,36,138,90,,,\n"
-        "AB-08,7.30,40,28,,,,,\n"
-        "AB-09,7.16,80,28,,,48,0.21,30\n"
-        "AB-10,7.33,60,31,,,45,0.21,65\n"
+        "id,ph,pco2[mmHg],hco3[mmol/L],na[mmol/L],cl[mmol/L],po2[mmHg],fio2,age,sample\n"
+        "AB-01,7.28,26,12,140,100,,,,arterial\n"
+        "AB-03,7.25,60,26,,,,,,arterial\n"
+        "AB-04,7.33,60,31,,,,,,arterial\n"
+        "AB-05,7.24,70,29.7,,,,,,arterial\n"
+        "AB-06,7.50,47,36,138,90,,,,arterial\n"
+        "AB-08,7.30,40,28,,,,,,arterial\n"
+        "AB-09,7.16,80,28,,,48,0.21,30,arterial\n"
+        "AB-10,7.33,60,31,,,45,0.21,65,arterial\n"
     )
     table = batch.read_table(text)
     audit = batch.interpret_table(table)
@@ -459,8 +468,8 @@ def _audit(text: str, **kw):
 
 
 def test_missing_required_column_is_refused_with_a_hint():
-    with pytest.raises(batch.TableError, match=r"no 'pco2' column \('paco2' looks like it"):
-        batch.read_table("ph,paco2[kPa]\n7.3,8\n")
+    with pytest.raises(batch.TableError, match=r"no 'pco2' column \('pc02\[kPa\]' looks like it"):
+        batch.read_table("ph,pc02[kPa]\n7.3,8\n")
     with pytest.raises(batch.TableError, match="no 'ph' column"):
         batch.read_table("pco2[kPa]\n8\n")
 
@@ -472,8 +481,14 @@ def test_missing_optional_columns_and_empty_cells_mean_not_given():
         "b,7.24,9.3,NA,n/a,-\n"  # markers of "not given"
         "c,7.24,9.3, ,null,none\n"
     )
-    assert batch.row_inputs(table, 0) == {"ph": 7.24, "pco2": q(9.3, "kPa"), "hco3": q(29.7, "mmol/L")}
-    assert batch.row_inputs(table, 1) == {"ph": 7.24, "pco2": q(9.3, "kPa")}
+    venous = {"sample": "venous"}  # no site given: read as a venous sample would be
+    assert batch.row_inputs(table, 0) == {
+        "ph": 7.24,
+        "pco2": q(9.3, "kPa"),
+        "hco3": q(29.7, "mmol/L"),
+        **venous,
+    }
+    assert batch.row_inputs(table, 1) == {"ph": 7.24, "pco2": q(9.3, "kPa"), **venous}
     assert audit.errors == [[], [], []]
     assert audit.value("consistency", 1) == "consistent" and "hco3_calculated" in audit.findings(1)
     assert audit.value("anion_gap", 0) is None
@@ -516,15 +531,19 @@ def test_bad_rows_go_to_the_error_column_and_the_batch_goes_on():
     assert any("Write a plain number" in m for m in audit.errors[2]), audit.errors[2]
     assert any("inputs.pco2" in m and "Did you mean 5.3 kPa?" in m for m in audit.errors[3]), audit.errors[3]
     assert any("inputs.fio2" in m and "Did you mean 28 %" in m for m in audit.errors[4]), audit.errors[4]
-    assert any("Did you mean 'arterial'?" in m for m in audit.errors[5]), audit.errors[5]
-    assert any("hypercapnia_risk must be true or false" in m for m in audit.errors[5]), audit.errors[5]
+    # optional cells that cannot be read: the row is read without them, and its notes name them
+    assert audit.errors[5] == [] and audit.value("ph_status", 5) == "acidaemia"
+    assert "sample 'arterail' not read (did you mean 'arterial'?)" in audit.notes[5]
+    assert "hypercapnia_risk 'maybe' not read: read without it" in audit.notes[5]
     assert audit.errors[1], "a row whose cells shifted is refused, not silently misread"
+    assert "shifted" in audit.errors[1][0] and audit.error_kinds[1] == ["row: cells shifted"]
     assert_rows_equal_scalar(table, audit)
     out = io.StringIO()
     batch.write_csv(table, audit, out)
     written = list(csv.reader(io.StringIO(out.getvalue())))
-    assert written[0][: len(table.header)] == table.header and written[0][-1] == "error"
-    assert written[1][-1] == "" and "inputs.pco2" in written[4][-1]
+    assert written[0][: len(table.header)] == table.header and written[0][-2:] == ["error", "notes"]
+    assert written[1][-2:] == ["", ""] and "inputs.pco2" in written[4][-2]
+    assert "arterail" in written[6][-1]
     assert written[3][0] == "text" and written[3][len(table.header)] == ""  # no outputs on a refused row
 
 
@@ -558,9 +577,10 @@ def test_semicolons_quotes_short_and_long_rows_and_blank_lines():
     text = 'id;ph;pco2[kPa];hco3[mmol/L]\n"a;1";7.24;9.3;29.7\n\nb;7.24;9.3\nc;7.24;9.3;29.7;extra\n'
     table, audit = _audit(text)
     assert len(table) == 3 and table.rows[0][0] == "a;1"
-    assert batch.row_inputs(table, 1) == {"ph": 7.24, "pco2": q(9.3, "kPa")}
-    assert any("beyond the last named column" in w for w in table.warnings)
-    assert audit.errors == [[], [], []]
+    assert batch.row_inputs(table, 1) == {"ph": 7.24, "pco2": q(9.3, "kPa"), "sample": "venous"}
+    assert any("line 5: 1 cell(s) beyond the last named column" in w for w in table.warnings)
+    # a short row is read; a long one has shifted cells (a decimal comma, a delimiter in a cell): refused
+    assert audit.errors[:2] == [[], []] and "shifted" in audit.errors[2][0]
 
 
 def test_age_header_unit_years_is_the_bare_number():
@@ -569,7 +589,7 @@ def test_age_header_unit_years_is_the_bare_number():
 
 
 def test_written_csv_units_and_rounding(tmp_path: Path):
-    text = "id,ph,pco2[kPa],hco3[mmol/L],po2[kPa],fio2\nx,7.24,9.3,29.7,7.1,28%\n"
+    text = "id,ph,pco2[kPa],hco3[mmol/L],po2[kPa],fio2,sample\nx,7.24,9.3,29.7,7.1,28%,arterial\n"
     table, audit = _audit(text, pressure_unit="kPa")
     out = io.StringIO()
     batch.write_csv(table, audit, out)
@@ -605,7 +625,7 @@ def test_summary_counts_match_the_rows():
         1 for i in ok if audit.value("respiratory_chronicity", i)
     )
     text = batch.summary_text(counts)
-    assert "Disorders" in text and "Findings:" in text and "Chronicity" in text
+    assert "Disorders" in text and "Findings (of" in text and "Chronicity" in text
 
 
 def test_progress_bar_only_on_a_terminal_or_when_asked(tmp_path: Path):
@@ -675,7 +695,7 @@ def test_written_csv_quotes_like_the_csv_module():
     batch.write_csv(table, audit, out)
     parsed = list(csv.reader(io.StringIO(out.getvalue())))
     assert parsed[1][:4] == ["a,1", 'said "stable"', "7.24", "9.3"]
-    assert parsed[2][0] == "b\nc" and "Did you mean 5.3 kPa?" in parsed[2][-1]
+    assert parsed[2][0] == "b\nc" and "Did you mean 5.3 kPa?" in parsed[2][-2]
     reference = io.StringIO()
     csv.writer(reference, lineterminator="\n").writerows(parsed)
     assert out.getvalue() == reference.getvalue()
@@ -715,12 +735,16 @@ def test_a_carriage_return_inside_a_line_is_a_file_problem():
 
 
 def test_nan_and_infinite_cells_are_refused_like_the_scalar_bridge():
-    # "nan" (any case) means not given; "-nan" and "inf" are not numbers the bridge takes
+    # "nan" (any case) means not given; "-nan" and "inf" are not numbers the bridge takes: in an optional
+    # column the row is read without them (and its notes say so), in pH or PCO2 the row is refused
     table, audit = _audit(
-        "ph,pco2[kPa],hco3[mmol/L]\n7.24,9.3,NaN\n7.24,9.3,-nan\n7.24,9.3,inf\n7.24,9.3,29\n"
+        "ph,pco2[kPa],hco3[mmol/L]\n7.24,9.3,NaN\n7.24,9.3,-nan\n7.24,9.3,inf\n7.24,9.3,29\n7.24,inf,29\n"
     )
-    assert audit.errors[0] == [] and audit.errors[3] == []
-    assert audit.errors[1] and audit.errors[2]
+    assert audit.errors[:4] == [[], [], [], []] and audit.errors[4]
+    assert audit.notes[0] == audit.notes[3] == [batch.SITE_NOTE]
+    assert audit.notes[1][0] == "HCO3 '-nan' not read: read without it"
+    assert audit.notes[2][0] == "HCO3 'inf' not read: read without it"
+    assert "hco3" not in batch.row_inputs(table, 1)
     assert_rows_equal_scalar(table, audit)
 
 

@@ -153,7 +153,37 @@ def test_help_reads_for_a_clinician(capsys):
         "exit status: 0 answered, 2 bad input",
         "tidewell batch gases.csv -o gases-read.csv",
     ):
-        assert words in out, words
+        assert words in " ".join(out.split()), words
+
+
+@pytest.mark.parametrize("command", [[], ["calc"], ["how-sure"], ["batch"]])
+def test_help_lines_fit_80_columns_on_a_wide_terminal(capsys, monkeypatch, command):
+    monkeypatch.setenv("COLUMNS", "200")
+    status, out, _ = main(capsys, *command, "--help")
+    assert status == 0
+    wide = [line for line in out.splitlines() if len(line) > 80]
+    assert not wide, wide
+    assert max(map(len, out.splitlines())) > 60  # the text is filled, not cut to a narrow column
+
+
+def test_a_value_and_its_unit_written_apart(capsys):
+    together = main(capsys, "--ph", "7.30", "--pco2", "60mmHg", "--po2", "55mmHg", "--fio2", "28%", "--json")
+    apart = main(
+        capsys, "--ph", "7.30", "--pco2", "60", "mmHg", "--po2=55", "mmHg", "--fio2", "28", "%", "--json"
+    )
+    assert together[0] == apart[0] == 0
+    assert json.loads(apart[1])["outputs"] == json.loads(together[1])["outputs"]
+    # a number alone is still refused for a pressure: the next flag is not taken for a unit
+    status, _, err = main(capsys, "--ph", "7.30", "--pco2", "60", "--po2", "55mmHg")
+    assert status == 2 and "--pco2" in err and "bad_unit" in err
+
+
+def test_json_on_an_input_error_is_json_on_stdout(capsys):
+    status, out, err = main(capsys, "--ph", "7.30", "--pco2", "60", "--json")
+    assert status == 2 and "--pco2" in err
+    response = json.loads(out)
+    assert response["ok"] is False and response["errors"][0]["field"] == "inputs.pco2"
+    assert response["errors"][0]["code"] == "bad_unit"
 
 
 def test_internal_fault_exits_1(capsys, monkeypatch):
@@ -289,12 +319,13 @@ def test_batch_writes_the_file_and_prints_the_summary(tmp_path: Path):
     target = tmp_path / "read.csv"
     done = run("batch", str(source), "-o", str(target), "--kpa", "--summary-json", str(tmp_path / "s.json"))
     assert done.returncode == 0, done.stderr
-    assert "Rows: 3; interpreted: 2; with errors: 1" in done.stdout
-    assert "respiratory_acidosis" in done.stdout and "Findings:" in done.stdout
+    assert "Rows: 3; interpreted: 2; with errors (not read): 1" in done.stdout
+    assert "respiratory acidosis" in done.stdout and "Findings (of 2 rows interpreted):" in done.stdout
+    assert "the file has no sample site column" in done.stdout
     assert "rows/s" not in done.stderr  # no progress bar when stderr is not a terminal
     lines = target.read_text(encoding="utf-8").splitlines()
     assert lines[0].startswith("id,ph,pco2[kPa],hco3[mmol/L],po2[kPa],fio2,ph_status")
-    assert lines[0].endswith(",error") and "a_a_gradient[kPa]" in lines[0]
+    assert lines[0].endswith(",error,notes") and "hco3_read[mmol/L]" in lines[0]
     assert "Did you mean 5.3 kPa?" in lines[3]
     assert json.loads((tmp_path / "s.json").read_text())["with_errors"] == 1
     shown = run("batch", str(source), "-o", str(tmp_path / "again.csv"), "--progress")
@@ -324,6 +355,20 @@ def test_batch_unreadable_file_exits_2(tmp_path: Path, text, words):
     source.write_text(text, encoding="utf-8")
     done = run("batch", str(source), "-o", str(tmp_path / "out.csv"))
     assert done.returncode == 2 and words in done.stderr, done.stderr
+
+
+def test_batch_where_no_row_could_be_read_exits_2_and_says_why(tmp_path: Path):
+    source = tmp_path / "gases.csv"
+    source.write_text('ph,pco2[kPa]\n"7,24",9.3\n"7,40",5.3\n', encoding="utf-8")
+    done = run(
+        "batch", str(source), "-o", str(tmp_path / "out.csv"), "--summary-json", str(tmp_path / "s.json")
+    )
+    assert done.returncode == 2, done.stderr
+    assert "no row could be read (2 rows, all with errors)" in done.stderr
+    assert json.loads((tmp_path / "s.json").read_text())["errors_by_kind"] == {"pH: not a number": 2}
+    assert "pH: not a number" in done.stderr and "line 2:" in done.stderr
+    assert "2 cells hold a decimal comma" in done.stdout  # said once, for the file
+    assert (tmp_path / "out.csv").read_text(encoding="utf-8").count("\n") == 3  # the rows' errors are written
 
 
 def test_batch_missing_file_exits_2(tmp_path: Path):

@@ -45,13 +45,18 @@ def test_the_file_becomes_the_course_request():
                     "ph": 7.25,
                     "pco2": {"value": 10.4, "unit": "kPa"},
                     "hco3": {"value": 33.0, "unit": "mmol/L"},
+                    "sample": "arterial",
                 },
                 "events": ["niv_started", "oxygen_decreased"],
             },
-            {"time": 90, "inputs": {"ph": 7.3, "pco2": {"value": 9.4, "unit": "kPa"}}},
+            {"time": 90, "inputs": {"ph": 7.3, "pco2": {"value": 9.4, "unit": "kPa"}, "sample": "arterial"}},
         ]
     }
-    assert lines == [2, 3] and warnings == []
+    # no site column: each gas read as arterial (the blood_gas default), and the warning says so
+    assert lines == [2, 3] and warnings == [
+        "no sample site on lines 2, 3: read as arterial (add a 'sample' column: arterial, capillary or "
+        "venous)"
+    ]
 
 
 def test_event_cells():
