@@ -388,11 +388,66 @@ def aim_of(inputs: dict) -> float:
 @pytest.mark.parametrize(("fraction", "fires"), [(1 - PCO2_STEP, True), (1 - PCO2_STEP + 0.005, False)])
 def test_pco2_falling_fast_at_eight_percent_below_the_aim(fraction, fires):
     aim = aim_of({**RETAINER, "hypercapnia_risk": True})
-    later = gas(180, 7.40, aim * fraction)
+    later = gas(180, 7.42, aim * fraction)
     response = ok([{"time": 0, "inputs": RETAINER}, later], hypercapnia_risk=True)
     assert ("pco2_falling_fast" in codes(response)) is fires
     if fires:
-        assert codes(response)["pco2_falling_fast"] == "notable"  # pH 7.40: not alkalaemic
+        assert codes(response)["pco2_falling_fast"] == "notable"  # pH 7.42: not alkalaemic
+
+
+def p735(pco2: float, ph: float) -> float:
+    """henderson1908 with the HCO3 held: the PCO2 that gives pH 7.35 is PCO2 x 10^(pH - 7.35) (derived)."""
+    return pco2 * 10 ** (ph - 7.35)
+
+
+@pytest.mark.parametrize(("ph", "fires"), [(7.42, True), (7.41, False), (7.40, False)])
+def test_pco2_falling_fast_below_the_aim_needs_a_ph_of_742(ph, fires):
+    # posthypercapnic_alkalosis (common practice): below 7.42 the pH has little room left above 7.35; the
+    # kidneys are already shedding the retained HCO3, and easing towards the old aim would acidify the blood
+    aim = aim_of({**RETAINER, "hypercapnia_risk": True})
+    later = gas(240, ph, aim * 0.75)
+    response = ok([{"time": 0, "inputs": RETAINER}, later], hypercapnia_risk=True)
+    assert ("pco2_falling_fast" in codes(response)) is fires
+
+
+def test_a_normal_ph_with_the_hco3_falling_is_not_eased_towards_a_stale_aim():
+    # an invented course: NIV from pH 7.27, PCO2 9.5 kPa, HCO3 32; at 4 h pH 7.40, PCO2 6.0 kPa, HCO3 28.
+    # Letting the PCO2 rise to the first gas's aim with today's HCO3 would give (henderson1908, derived):
+    first = {"ph": 7.27, "pco2": {"value": 9.5, "unit": "kPa"}, "hco3": {"value": 32, "unit": "mmol/L"}}
+    later = {"ph": 7.40, "pco2": {"value": 6.0, "unit": "kPa"}, "hco3": {"value": 28, "unit": "mmol/L"}}
+    aim_kpa = one_gas({**first, "hypercapnia_risk": True}, "kPa")["pco2_target"]["value"]
+    ph_at_old_aim = 6.1 + math.log10(28 / (0.0307 * aim_kpa * MMHG_PER_KPA))
+    assert ph_at_old_aim < 7.30  # acidaemic again
+    samples = [{"time": 0, "inputs": first, "events": ["niv_started"]}, {"time": 240, "inputs": later}]
+    response = ok(samples, "kPa", hypercapnia_risk=True)
+    assert "pco2_falling_fast" not in codes(response)
+    assert not any("ease ventilation" in s for s in response["summary"])
+
+
+def test_easing_goes_no_higher_than_the_pco2_of_ph_735_today():
+    # the earlier aim above P(7.35) of the latest gas: the text names P(7.35) as the goal
+    aim = aim_of({**RETAINER, "hypercapnia_risk": True})
+    ph, pco2, hco3 = 7.47, 44.0, 0.0307 * 44.0 * 10 ** (7.47 - 6.1)  # henderson1908
+    assert p735(pco2, ph) < aim and hco3 > 26
+    samples = [{"time": 0, "inputs": RETAINER}, gas(300, ph, pco2)]
+    response = ok(samples, hypercapnia_risk=True)
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_falling_fast"]
+    assert f"towards {p735(pco2, ph):.0f} mmHg, the PCO2 that would give pH 7.35" in text
+    # the earlier aim below P(7.35): eased towards the aim itself
+    ph, pco2 = 7.50, aim * 0.85
+    assert aim < p735(pco2, ph)
+    response = ok([{"time": 0, "inputs": RETAINER}, gas(300, ph, pco2)], hypercapnia_risk=True)
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_falling_fast"]
+    assert f"towards the aim of {aim:.0f} mmHg" in text
+
+
+def test_a_venous_falling_fast_finding_names_no_aim():
+    # venous_gas (from memory): a venous gas gives no PaCO2 aim; its alkalaemia is real (arterial pH higher)
+    samples = [gas(0, 7.26, 82, ["niv_started"], sample="venous"), gas(180, 7.49, 47, sample="venous")]
+    response = ok(samples, hypercapnia_risk=True)
+    assert codes(response)["pco2_falling_fast"] == "urgent"
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_falling_fast"]
+    assert "towards" not in text and "no PaCO2 aim" in text and "arterial or earlobe" in text
 
 
 @pytest.mark.parametrize(("ph", "severity"), [(7.46, "urgent"), (7.45, None)])
@@ -413,7 +468,7 @@ def test_pco2_falling_fast_needs_a_retainer():
     response = ok([{"time": 0, "inputs": acute}, gas(120, 7.40, 38)])
     assert "pco2_falling_fast" not in codes(response)
     # the same fall with a known usual PaCO2 is judged
-    response = ok([{"time": 0, "inputs": acute}, gas(120, 7.40, 30)], baseline_pco2=mmhg(58))
+    response = ok([{"time": 0, "inputs": acute}, gas(120, 7.43, 30)], baseline_pco2=mmhg(58))
     aim = one_gas({**acute, "baseline_pco2": mmhg(58)})["pco2_target"]["value"]
     assert ("pco2_falling_fast" in codes(response)) is (30 <= aim * (1 - PCO2_STEP))
 
@@ -435,7 +490,10 @@ def test_invented_course_oxygen_induced_rise():
         gas(110, 7.31, 64),
     ]
     response = ok(samples, hypercapnia_risk=True)
-    assert codes(response)["pco2_rising_after_oxygen"] == "urgent"
+    # the next gas after the rise is no longer the latest, and the latest shows the pH recovering: history
+    assert codes(response)["pco2_rising_after_oxygen"] == "notable"
+    # the latest gas, pH 7.31 with 64 mmHg (8.5 kPa), meets the NIV threshold (bts_ics2016)
+    assert codes(response)["latest_gas_meets_niv_threshold"] == "urgent"
     outputs = response["outputs"]
     assert outputs["intervals"][0]["pco2_rate"]["value"] == pytest.approx(15 / (50 / 60))  # derived
     assert outputs["intervals"][0]["direction"] == "worsening"
