@@ -98,7 +98,9 @@ def test_each_reading_copies_the_blood_gas_reading_of_that_gas(unit):
     response = ok(SERIES, unit, hypercapnia_risk=True)
     for reading in response["outputs"]["readings"]:
         sample = SERIES[reading["index"]]
-        alone = one_gas({**sample["inputs"], "hypercapnia_risk": True}, unit)
+        # gases taken on NIV after a respiratory acidosis carry that history (docs/course.md)
+        history = {"previous_hypercapnic_failure": True} if reading["on_niv"] else {}
+        alone = one_gas({**sample["inputs"], "hypercapnia_risk": True, **history}, unit)
         for name in ("ph_status", "disorders", "hco3", "pco2_target", "spo2_target", "interpretation"):
             assert reading.get(name) == alone.get(name), name
         assert reading["ph"] == sample["inputs"]["ph"]
@@ -616,3 +618,271 @@ def test_junk_never_raises(text):
     response = json.loads(handle(text))
     assert response["ok"] is False
     assert all(e["code"] != "internal_error" for e in response["errors"])
+
+
+# -- NIV: a deterioration after an early gain, a fall that leaves the pH normal, already on NIV --------------
+
+
+def hh_pco2(ph: float, hco3: float) -> float:
+    """henderson1908 (S 0.0307, pK 6.1): the PCO2 [mmHg] of a plausible triple with this pH and HCO3."""
+    return hco3 / (0.0307 * 10 ** (ph - 6.1))
+
+
+@pytest.mark.parametrize(("ph_last", "severity"), [(7.26, "urgent"), (7.28, None)])
+def test_niv_deterioration_after_an_early_gain_is_urgent(ph_last, severity):
+    # BTS/ICS 2016 (bts_ics2016_niv_monitoring): 7.22 -> 7.30 at 90 min, then 7.26 at 5 h is a fall of 0.04
+    # since the previous gas on NIV (the reference change is 0.03), though still 0.04 above the start
+    samples = [
+        gas(0, 7.22, hh_pco2(7.22, 33), ["niv_started"]),
+        gas(90, 7.30, hh_pco2(7.30, 33)),
+        gas(300, ph_last, hh_pco2(ph_last, 33)),
+    ]
+    response = ok(samples, hypercapnia_risk=True)
+    assert codes(response).get("niv_not_improving") == severity
+    if severity:
+        (text,) = [f["text"] for f in response["findings"] if f["code"] == "niv_not_improving"]
+        assert "fallen since the gas at 90 min" in text
+
+
+@pytest.mark.parametrize(
+    ("ph_end", "severity"),
+    [
+        (7.37, "notable"),  # fell 0.03 (the reference change), still >= 7.35
+        (7.35, "notable"),
+        (7.34, "urgent"),  # fell 0.06 into acidaemia
+        (7.38, None),  # fell 0.02: no change
+    ],
+)
+def test_a_ph_fall_on_niv_is_urgent_only_into_acidaemia(ph_end, severity):
+    samples = [gas(0, 7.40, hh_pco2(7.40, 31), ["niv_started"]), gas(120, ph_end, hh_pco2(ph_end, 31))]
+    assert codes(ok(samples, hypercapnia_risk=True)).get("niv_not_improving") == severity
+
+
+@pytest.mark.parametrize(("minutes", "severity"), [(59, None), (60, "notable"), (240, "urgent")])
+def test_already_on_niv_at_the_first_gas(minutes, severity):
+    # the first NIV event is niv_changed: NIV was running at that gas; thresholds count from it (a minimum)
+    samples = [gas(0, 7.27, hh_pco2(7.27, 32), ["niv_changed"]), gas(minutes, 7.27, hh_pco2(7.27, 32))]
+    response = ok(samples, hypercapnia_risk=True)
+    niv = response["outputs"]["niv_response"]
+    assert (niv["earlier"], niv["later"], niv["started"]) == (0, 1, 0)
+    assert niv["start_known"] is False and niv["minutes_on_niv"] == minutes and niv["running"] is True
+    assert codes(response).get("niv_not_improving") == severity
+    assert [r["on_niv"] for r in response["outputs"]["readings"]] == [True, True]
+    if severity:
+        (text,) = [f["text"] for f in response["findings"] if f["code"] == "niv_not_improving"]
+        assert "start not recorded" in text and "at least" in text
+
+
+def test_a_later_niv_changed_does_not_start_a_run():
+    samples = [gas(0, 7.27, 71), gas(60, 7.27, 71, ["niv_started"]), gas(300, 7.27, 70, ["niv_changed"])]
+    samples.append(gas(400, 7.27, 70))
+    niv = ok(samples)["outputs"]["niv_response"]
+    assert (niv["started"], niv["earlier"], niv["start_known"]) == (1, 1, True)
+    assert "niv_response" not in ok([gas(0, 7.27, 71), gas(300, 7.27, 70)])["outputs"]
+
+
+# -- the latest gas meets the NIV threshold -----------------------------------------------------------------
+
+#: bts_ics2016: pH below 7.35 with PaCO2 above 6.5 kPa (bipm2019: 6.5 kPa = 48.75 mmHg)
+NIV_PCO2_MMHG = 6.5 * MMHG_PER_KPA
+
+
+def threshold(response: dict) -> tuple[str | None, str]:
+    found = [f for f in response["findings"] if f["code"] == "latest_gas_meets_niv_threshold"]
+    return (found[0]["severity"], found[0]["text"]) if found else (None, "")
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "severity"),
+    [
+        (7.30, 66, "urgent"),
+        (7.35, 66, None),  # not below 7.35
+        (7.34, NIV_PCO2_MMHG + 0.5, "urgent"),
+        (7.34, NIV_PCO2_MMHG - 0.5, None),  # not above 6.5 kPa
+    ],
+)
+def test_the_latest_gas_meeting_the_niv_threshold_is_a_course_finding(ph, pco2, severity):
+    response = ok([gas(0, 7.38, 55), gas(60, ph, pco2)], hypercapnia_risk=True)
+    found, text = threshold(response)
+    assert found == severity
+    if severity:
+        assert text in response["summary"] and response["summary"].index(text) == 0
+
+
+def test_the_threshold_after_niv_stopped_or_extubation_is_a_relapse():
+    stopped = [
+        gas(0, 7.27, 71, ["niv_started"]),
+        gas(120, 7.33, 62),
+        gas(720, 7.38, 56, ["niv_stopped"]),
+        gas(900, 7.30, 67),
+    ]
+    found, text = threshold(ok(stopped, hypercapnia_risk=True))
+    assert found == "urgent" and text.startswith("Relapse after NIV was stopped at 720 min")
+    extubated = [gas(0, 7.40, 51, ["extubated"]), gas(120, 7.31, 65)]
+    found, text = threshold(ok(extubated, hypercapnia_risk=True))
+    assert found == "urgent" and text.startswith("Relapse after extubation at 0 min")
+
+
+def test_the_threshold_is_not_urgent_while_intubated_or_on_niv():
+    intubated = [
+        gas(0, 7.24, 79, ["niv_started"]),
+        gas(90, 7.20, 86, ["intubated"]),
+        gas(150, 7.30, 67),
+    ]
+    response = ok(intubated, hypercapnia_risk=True)
+    assert threshold(response)[0] is None
+    readings = response["outputs"]["readings"]
+    assert [r["intubated"] for r in readings] == [False, False, True]
+    # the intubated gas's own reading meets the threshold, but the course shows it as information only
+    assert one_gas({**intubated[2]["inputs"], "hypercapnia_risk": True}) is not None
+    assert {"code": "niv_criteria_met", "severity": "info"} in readings[2]["findings"]
+    assert {"code": "niv_criteria_met", "severity": "urgent"} in readings[1]["findings"]
+    # extubated later: the threshold counts again, as a relapse
+    extubated = [*intubated[:2], gas(150, 7.36, 58, ["extubated"]), gas(300, 7.30, 67)]
+    found, text = threshold(ok(extubated, hypercapnia_risk=True))
+    assert found == "urgent" and "extubation" in text
+    # on NIV and improving: said, but not urgent (the NIV checks decide)
+    on_niv = [gas(0, 7.26, 74, ["niv_started"]), gas(90, 7.30, 67)]
+    assert threshold(ok(on_niv, hypercapnia_risk=True))[0] == "notable"
+    # NIV started just after the latest gas
+    started = [gas(0, 7.38, 55), gas(60, 7.30, 67, ["niv_started"])]
+    assert threshold(ok(started, hypercapnia_risk=True))[0] == "notable"
+    # a venous latest gas: the threshold is not read from it
+    venous = [gas(0, 7.38, 55), gas(60, 7.28, 75, sample="venous")]
+    assert threshold(ok(venous, hypercapnia_risk=True))[0] is None
+
+
+# -- the history of this course: NIV or intubation for hypercapnic failure -----------------------------------
+
+
+OVERVENTILATED = [
+    gas(0, 7.25, hh_pco2(7.25, 34), ["niv_started"], hco3={"value": 34, "unit": "mmol/L"}),
+    gas(120, 7.38, hh_pco2(7.38, 33)),
+    gas(360, 7.50, hh_pco2(7.50, 33)),
+]
+
+
+def test_gases_after_niv_are_read_with_the_history_of_hypercapnic_failure():
+    # bts2017_o2 (verified): 88-92 % once the patient has needed NIV or IMV for hypercapnic failure
+    response = ok(OVERVENTILATED, hypercapnia_risk=True)
+    last = OVERVENTILATED[2]["inputs"]
+    alone = one_gas({**last, "hypercapnia_risk": True})
+    with_history = one_gas({**last, "hypercapnia_risk": True, "previous_hypercapnic_failure": True})
+    assert (alone["spo2_target"]["low"], with_history["spo2_target"]["low"]) == (94, 88)  # the premise
+    readings = response["outputs"]["readings"]
+    assert readings[2]["spo2_target"] == with_history["spo2_target"]
+    assert any("BTS 2017" in s and "360 min" in s for s in response["summary"])
+    # patient-level false is this course's past, not its present: still 88-92 % after the NIV
+    readings = ok(OVERVENTILATED, hypercapnia_risk=True, previous_hypercapnic_failure=False)["outputs"][
+        "readings"
+    ]
+    assert readings[2]["spo2_target"] == with_history["spo2_target"]
+    # the gas's own value wins
+    own = [
+        *OVERVENTILATED[:2],
+        {**OVERVENTILATED[2], "inputs": {**last, "previous_hypercapnic_failure": False}},
+    ]
+    readings = ok(own, hypercapnia_risk=True)["outputs"]["readings"]
+    assert readings[2]["spo2_target"] == alone["spo2_target"]
+
+
+def test_no_history_without_niv_or_intubation_after_hypercapnia():
+    no_niv = [{**g, "events": []} for g in OVERVENTILATED]
+    last = OVERVENTILATED[2]["inputs"]
+    alone = one_gas({**last, "hypercapnia_risk": True})
+    response = ok(no_niv, hypercapnia_risk=True)
+    assert response["outputs"]["readings"][2]["spo2_target"] == alone["spo2_target"]
+    assert not any("BTS 2017" in s for s in response["summary"])
+    # intubated without any respiratory acidosis in the course: not for hypercapnic failure
+    normocapnic = [gas(0, 7.40, 40, ["intubated"]), gas(60, 7.42, 38)]
+    readings = ok(normocapnic, hypercapnia_risk=True)["outputs"]["readings"]
+    assert (
+        readings[1]["spo2_target"]
+        == one_gas({**normocapnic[1]["inputs"], "hypercapnia_risk": True})["spo2_target"]
+    )
+
+
+# -- the comparison group of the latest gas -----------------------------------------------------------------
+
+
+def test_a_venous_first_gas_leaves_the_arterial_course_judged():
+    samples = [
+        gas(0, 7.25, hh_pco2(7.25, 33), ["niv_started"], sample="venous"),
+        gas(60, 7.29, hh_pco2(7.29, 33)),
+        gas(150, 7.33, hh_pco2(7.33, 33)),
+    ]
+    outputs = ok(samples, hypercapnia_risk=True)["outputs"]
+    assert outputs["response"] == "improving"  # 7.29 -> 7.33: rose 0.04 (derived)
+    assert (outputs["response_span"]["earlier"], outputs["response_span"]["later"]) == (1, 2)
+    niv = outputs["niv_response"]
+    assert (niv["started"], niv["earlier"], niv["later"], niv["minutes_on_niv"]) == (0, 1, 2, 150)
+    assert niv["ph_change"] == pytest.approx(0.04) and niv["verdict"] == "improving"
+
+
+def test_a_verdict_left_out_across_kinds_says_why():
+    response = ok([gas(0, 7.30, 70, sample="venous"), gas(30, 7.36, 55)])
+    assert "response" not in response["outputs"]
+    assert any("not compared" in s for s in response["summary"])
+
+
+# -- an oxygen-induced rise that has since recovered -------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("ph_last", "severity"),
+    [
+        (None, "urgent"),  # the gas after the rise is the latest, acidaemic
+        (7.30, "notable"),  # rose 0.03 since: recovering (history)
+        (7.29, "urgent"),  # rose 0.02: not recovered, still acidaemic
+        (7.35, "notable"),  # no longer acidaemic
+    ],
+)
+def test_an_oxygen_induced_rise_becomes_history_once_the_ph_recovers(ph_last, severity):
+    samples = [
+        gas(0, 7.36, hh_pco2(7.36, 30.5), ["oxygen_increased"]),
+        gas(50, 7.27, hh_pco2(7.27, 31.5), ["oxygen_decreased"]),
+    ]
+    if ph_last is not None:
+        samples.append(gas(110, ph_last, hh_pco2(ph_last, 31.5)))
+    response = ok(samples, hypercapnia_risk=True)
+    assert codes(response)["pco2_rising_after_oxygen"] == severity
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_rising_after_oxygen"]
+    assert ("Since then the pH has recovered" in text) is (severity == "notable")
+
+
+# -- the summary: urgent first, then notable, each statement once ------------------------------------------
+
+
+COURSES = {
+    "oxygen then threshold": [gas(0, 7.36, 56, ["oxygen_increased"]), gas(50, 7.27, 71)],
+    "niv failing": [
+        gas(0, 7.26, 74, ["niv_started"]),
+        gas(90, 7.27, 72, ["niv_changed"]),
+        gas(300, 7.27, 71),
+    ],
+    "niv falling back": [
+        gas(0, 7.22, hh_pco2(7.22, 33), ["niv_started"]),
+        gas(90, 7.30, hh_pco2(7.30, 33)),
+        gas(300, 7.26, hh_pco2(7.26, 33)),
+    ],
+    "overventilated": OVERVENTILATED,
+    "oxygen history": [
+        gas(0, 7.36, 56, ["oxygen_increased"]),
+        gas(45, 7.28, 70, ["oxygen_decreased"]),
+        gas(100, 7.33, 61),
+    ],
+    "metabolic alkalosis, oxygen": [gas(0, 7.47, 46.5, ["oxygen_increased"]), gas(45, 7.40, 55.5)],
+}
+
+
+@pytest.mark.parametrize("name", sorted(COURSES))
+def test_the_summary_leads_with_urgent_then_notable_findings_each_once(name):
+    response = ok(COURSES[name], hypercapnia_risk=True)
+    urgent = [f["text"] for f in response["findings"] if f["severity"] == "urgent"]
+    notable = [f["text"] for f in response["findings"] if f["severity"] == "notable"]
+    summary = response["summary"]
+    assert summary[: len(urgent) + len(notable)] == urgent + notable
+    sentences = [s.strip() for item in summary for s in item.split(". ") if s.strip()]
+    assert len(sentences) == len(set(sentences)), sentences
+    if "niv_not_improving" in codes(response):  # the NIV verdict is not said a second time
+        assert not any(s.startswith("On NIV for") for s in summary)
