@@ -28,8 +28,14 @@ course adds is the comparison over time; docs/course.md says how each word is de
 - ``verdict`` (``response``, ``niv_response``): ``worsening`` when the pH fell by 0.03 or more over the
   stretch or its last interval is worsening (a current deterioration is said before an earlier gain: safety
   first); else ``improving`` when the pH rose by 0.03 or more or is at or above 7.35; else ``not_improving``.
-- The findings that call for action now (``niv_not_improving``, ``pco2_falling_fast``) are judged on the
-  latest comparable gas; ``pco2_rising_after_oxygen`` is judged for every rise of oxygen.
+  Both are judged within the kind (venous, or arterial and earlobe) of the latest gas.
+- The events mark each gas taken on NIV or while intubated; a first NIV event ``niv_changed`` means NIV was
+  already running. After NIV or intubation for a respiratory acidosis, later gases are read with
+  ``previous_hypercapnic_failure`` true (the BTS 2017 SpO2 target) unless a gas gives its own.
+- The findings that call for action now (``niv_not_improving``, ``pco2_falling_fast``,
+  ``latest_gas_meets_niv_threshold``) are judged on the latest comparable gas; ``pco2_rising_after_oxygen`` is
+  judged for every rise of oxygen and is no longer urgent once a later gas shows the pH recovered.
+- The summary says the urgent findings, then the notable ones, then the course; each statement once.
 """
 
 from __future__ import annotations
