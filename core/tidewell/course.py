@@ -882,8 +882,8 @@ class _Course:
         since = ""
         if recovered:
             since = (
-                f" Since then the pH has recovered to {last.ph:.2f} (PCO2 {self.p(last.pco2)}) at "
-                f"{self.when(last)}."
+                f" Since then the pH has {'recovered' if last.ph >= PH_LOW else 'risen'} to {last.ph:.2f} "
+                f"(PCO2 {self.p(last.pco2)}) at {self.when(last)}."
             )
         self.r.finding(
             "pco2_rising_after_oxygen",
