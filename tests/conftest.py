@@ -440,7 +440,7 @@ def _blood_gas(inputs, outputs, response) -> None:
         _need(outputs, "respiratory_failure", why="arterial or capillary sample")
     if "respiratory_failure" in outputs:
         # type 2 whenever a respiratory acidosis is named with PCO2 above 6.0 kPa (BTS 2017 clarification)
-        type_2 = "respiratory_acidosis" in codes and _mmhg(inputs["pco2"]) > 45.0
+        type_2 = "respiratory_acidosis" in codes and _mmhg(inputs["pco2"]) > 6.0 * 1000 / 133.322387415
         assert (outputs["respiratory_failure"] == "type_2") == type_2, outputs["respiratory_failure"]
 
 

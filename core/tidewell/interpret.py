@@ -121,6 +121,8 @@ NIV_INVASIVE_PH = 7.25
 #: consciousness thresholds [mmHg] (common practice)
 NARCOSIS_NORMAL_MMHG, NARCOSIS_CHRONIC_MMHG = 75.0, 90.0
 NARCOSIS_RISE_MMHG = NARCOSIS_NORMAL_MMHG - ab.NORMAL_PCO2_MMHG
+#: PCO2 above which the SpO2 target and type 2 failure read hypercapnia: 6.0 kPa [mmHg] (BTS 2017)
+HYPERCAPNIA_MMHG = round(units.convert(6.0, "kPa", "mmHg"), 9)
 #: hypoxaemia threshold for respiratory failure [mmHg] (8 kPa)
 HYPOXAEMIA_MMHG = 60.0
 #: P/F ratio bands [mmHg]: impaired oxygenation at or below 300, more severe at or below 200 and 100 (ARDS
@@ -1182,9 +1184,14 @@ def decide(x) -> Decision:
     d.target_route = d.pco2_target_basis
     f["baseline_estimate_unreliable"] = target & unknown & acidaemic & chronic_part
     f["pco2_target"] = target
-    f["pco2_below_baseline"] = has_b & (p < b - 5.0) & (b > PCO2_HIGH)
+    # below the usual PaCO2 only reads as over-correction when the pH is not acidaemic (independent review)
+    f["pco2_below_baseline"] = has_b & (p < b - 5.0) & (b > PCO2_HIGH) & (ph >= PH_LOW)
     meets = (ph < NIV_PH) & (p > NIV_PCO2_MMHG)
-    d.niv = where(meets & venous, "not_assessable", where(meets, "met", "not_met"))
+    d.niv = where(
+        meets & venous,
+        "not_assessable",
+        where(meets & (primary == MET_ACID), "not_applicable", where(meets, "met", "not_met")),
+    )
     f["niv_criteria_need_arterial_sample"] = meets & venous
     # the NIV threshold belongs to a primary respiratory acidosis; with a primary metabolic acidosis the same
     # numbers say that ventilation is failing to compensate
@@ -1192,7 +1199,7 @@ def decide(x) -> Decision:
     f["ventilation_failing_to_compensate"] = meets & not_(venous) & metabolic_acidosis_primary
     # pH < 7.35 with a raised PaCO2 is never "compensated as expected" (BTS/ICS 2016 definition)
     f["compensation_incomplete"] = (
-        (primary == RESP_ACID) & acidaemic & (d.chronicity == "chronic") & not_(venous)
+        (primary == RESP_ACID) & acidaemic & (d.chronicity == "chronic") & not_(venous) & not_(has_ma)
     )
     # chronic retention, without a known baseline: the PaCO2 is raised and the HCO3 rules (before any high
     # anion gap) read it chronic or acute-on-chronic, with no other metabolic acidosis named (it would hide
@@ -1247,7 +1254,8 @@ def decide(x) -> Decision:
     d.a_a_category = where(readable, category, NONE)
     on_oxygen = fio2_given & (fio2 > 0.21)
     f["a_a_on_oxygen"] = readable & fio2_given & (fio2 > 0.3)
-    hyper = p > PCO2_HIGH
+    # "above 6.0 kPa" (BTS 2017; 45.004 mmHg), so 6.0 kPa itself is not above
+    hyper = p > HYPERCAPNIA_MMHG
     # respiratory failure: type 2 from the PaCO2 whenever a respiratory acidosis is named (with or without a
     # PO2); else type 1 from an arterial PaO2 below 8 kPa, or on oxygen a P/F at or below 300 mmHg, which the
     # oxygen would otherwise hide (ARDS Definition Task Force 2012 for the P/F bands; BTS 2017)
@@ -1266,10 +1274,11 @@ def decide(x) -> Decision:
     f["hypoxaemia_masked_by_oxygen"] = pf_low & not_(low_po2)
     f["respiratory_failure_type_1"] = not_(type_2) & type_1
     f["respiratory_failure_type_2"] = type_2
-    f["pure_hypoventilation"] = readable & hyper & (category == "normal")
-    f["gas_exchange_impaired"] = readable & hyper & (category == "raised")
+    # the A-a reading of hypercapnia belongs to a respiratory acidosis (not to compensation of an alkalosis)
+    f["pure_hypoventilation"] = readable & hyper & has_ra & (category == "normal")
+    f["gas_exchange_impaired"] = readable & hyper & has_ra & (category == "raised")
     f["low_inspired_oxygen"] = readable & not_(hyper) & (category == "normal") & low_po2
-    f["a_a_needs_age"] = readable & hyper & (category == "needs_age")
+    f["a_a_needs_age"] = readable & hyper & has_ra & (category == "needs_age")
     f["capillary_po2"] = has_po2 & capillary
     f["air_assumed"] = readable & not_(fio2_given)
 
@@ -2658,10 +2667,10 @@ def _below_baseline(w: _Work) -> None:
             "notable",
             f"PaCO2 {w.p(s.pco2)} is below the patient's usual {w.p(s.baseline_pco2)}"
             + (
-                f" and HCO3 is {h:.1f} mmol/L: this fits a post-hypercapnic metabolic alkalosis "
-                "(over-correction of chronic hypercapnia)."
-                if h > HCO3_HIGH
-                else "."
+                f" and HCO3 is {h:.1f} mmol/L with pH {s.ph:.2f}: this fits a post-hypercapnic metabolic "
+                "alkalosis (over-correction of chronic hypercapnia)."
+                if h > HCO3_HIGH and s.ph > PH_HIGH
+                else ": over-correction of chronic hypercapnia is possible."
             ),
         )
 
@@ -3300,10 +3309,14 @@ def _summary(w: _Work) -> None:
     if w.oxygen.get("readable"):
         o = w.oxygen
         fio2 = f"FiO2 {s.fio2:.2f}" if s.fio2_given else "air (assumed: no FiO2 recorded)"
+        category = (
+            "below zero: check the FiO2, the barometric pressure and the unit of PO2"
+            if w.fires("po2_above_alveolar")
+            else o["category"].replace("_", " ")
+        )
         r.say(
-            f"PaO2 {w.p(s.po2)} on {fio2}: A-a gradient {w.p(o['aa'])} "
-            f"({o['category'].replace('_', ' ')}), P/F {w.pf(o['pf'])}; respiratory failure: "
-            f"{failure_words[failure]}."
+            f"PaO2 {w.p(s.po2)} on {fio2}: A-a gradient {w.p(o['aa'])} ({category}), P/F {w.pf(o['pf'])}; "
+            f"respiratory failure: {failure_words[failure]}."
         )
     elif failure:
         r.say(f"Respiratory failure: {failure_words[failure]} (oxygenation not assessed from this sample).")

@@ -388,7 +388,7 @@ def _report(report, sample, point, cloud, used, errors, given_errors, errors_raw
         "chronicity": chronicity,
         "findings": findings,
         "primary": by_primary,
-        "niv_criteria": words(cloud.niv, ("met", "not_met", "not_assessable")),
+        "niv_criteria": words(cloud.niv, ("met", "not_met", "not_assessable", "not_applicable")),
     }
     if point.rf_given:
         probabilities["respiratory_failure"] = words(cloud.respiratory_failure, ("none", "type_1", "type_2"))

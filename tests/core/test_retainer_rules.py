@@ -297,3 +297,58 @@ def test_each_summary_statement_once():
     assert len(r["summary"]) == len(set(r["summary"]))
     assert sum("NIV threshold" in s for s in r["summary"]) == 1
     assert not any("Decision support only" in s for s in r["summary"])
+
+
+# -- second review: contradictions and boundaries ----------------------------------------------------------
+
+
+def test_an_acidaemic_gas_below_the_usual_pco2_is_not_called_over_corrected():
+    # Usual 9 kPa, gas 7.30 / 8.0 kPa / 29: acidaemic, so the aim is P(7.35) and nothing says "do not lower"
+    r = bg(
+        {"ph": 7.30, "pco2": q(8.0, "kPa"), "hco3": q(29, "mmol/L"), "baseline_pco2": q(9.0, "kPa")}, "kPa"
+    )
+    assert "pco2_below_baseline" not in codes(r)
+    assert r["outputs"]["pco2_target"]["value"] == pytest.approx(min(p_at(8.0, 7.30, 7.35), 9.0))
+    assert not any("lower it further" in s for s in r["summary"])
+    # the same usual PaCO2 with an alkalaemic gas is over-correction (post-hypercapnic alkalosis)
+    r = bg(
+        {"ph": 7.50, "pco2": q(6.0, "kPa"), "hco3": q(35, "mmol/L"), "baseline_pco2": q(9.0, "kPa")}, "kPa"
+    )
+    assert "post-hypercapnic" in next(f["text"] for f in r["findings"] if f["code"] == "pco2_below_baseline")
+
+
+def test_compensation_is_not_called_incomplete_beside_a_named_metabolic_acidosis():
+    r = bg({"ph": 7.25, "pco2": q(70, "mmHg"), "hco3": q(30, "mmol/L"), "lactate": q(6, "mmol/L")})
+    assert (MA, "concurrent") in reading(r)
+    assert "compensation_incomplete" not in codes(r)
+
+
+def test_compensating_hypoventilation_is_not_called_pure_hypoventilation():
+    # 7.49 / 7.5 kPa / 41 on air: metabolic alkalosis with compensatory hypoventilation (Narins & Emmett 1980)
+    inputs = {"ph": 7.49, "pco2": q(7.5, "kPa"), "hco3": q(41, "mmol/L"), "po2": q(9, "kPa"), "fio2": 0.21}
+    r = bg({**inputs, "age": 60}, "kPa")
+    assert reading(r)[0] == (MK, "primary")
+    assert "pure_hypoventilation" not in codes(r) and "gas_exchange_impaired" not in codes(r)
+
+
+def test_a_negative_a_a_gradient_is_not_called_normal_in_the_summary():
+    r = bg({"ph": 7.40, "pco2": q(5.3, "kPa"), "po2": q(20.0, "kPa"), "fio2": 0.21}, "kPa")
+    assert "po2_above_alveolar" in codes(r)
+    assert not any("(normal)" in s for s in r["summary"])
+
+
+@pytest.mark.parametrize(("pco2_kpa", "low"), [(6.0, 94), (6.01, 88)])
+def test_above_6_kpa_means_above(pco2_kpa, low):
+    # BTS 2017 (verified): 88-92 % when the PCO2 is above 6.0 kPa
+    r = bg({"ph": 7.38, "pco2": q(pco2_kpa, "kPa")}, "kPa")
+    assert r["outputs"]["spo2_target"]["low"] == low
+
+
+def test_niv_numbers_with_a_primary_metabolic_acidosis_are_not_an_niv_indication():
+    # 7.10 / 6.8 kPa / HCO3 15.5: Winters 31.25 mmHg; ventilation failing to compensate
+    ph = 7.10
+    r = bg({"ph": ph, "pco2": q(6.8, "kPa"), "hco3": q(15.5, "mmol/L")}, "kPa")
+    assert reading(r)[0] == (MA, "primary")
+    assert r["outputs"]["niv_criteria"] == "not_applicable"
+    assert severity(r, "ventilation_failing_to_compensate") == "urgent"
+    assert "niv_criteria_met" not in codes(r)
