@@ -28,8 +28,14 @@ course adds is the comparison over time; docs/course.md says how each word is de
 - ``verdict`` (``response``, ``niv_response``): ``worsening`` when the pH fell by 0.03 or more over the
   stretch or its last interval is worsening (a current deterioration is said before an earlier gain: safety
   first); else ``improving`` when the pH rose by 0.03 or more or is at or above 7.35; else ``not_improving``.
-- The findings that call for action now (``niv_not_improving``, ``pco2_falling_fast``) are judged on the
-  latest comparable gas; ``pco2_rising_after_oxygen`` is judged for every rise of oxygen.
+  Both are judged within the kind (venous, or arterial and earlobe) of the latest gas.
+- The events mark each gas taken on NIV or while intubated; a first NIV event ``niv_changed`` means NIV was
+  already running. After NIV or intubation for a respiratory acidosis, later gases are read with
+  ``previous_hypercapnic_failure`` true (the BTS 2017 SpO2 target) unless a gas gives its own.
+- The findings that call for action now (``niv_not_improving``, ``pco2_falling_fast``,
+  ``latest_gas_meets_niv_threshold``) are judged on the latest comparable gas; ``pco2_rising_after_oxygen`` is
+  judged for every rise of oxygen and is no longer urgent once a later gas shows the pH recovered.
+- The summary says the urgent findings, then the notable ones, then the course; each statement once.
 """
 
 from __future__ import annotations
@@ -71,11 +77,19 @@ PCO2_CHANGE = 0.08
 PH_LOW, PH_HIGH = 7.35, 7.45
 #: the HCO3 above which an alkalaemic gas after hypercapnia reads as post-hypercapnic alkalosis [mmol/L]
 HCO3_HIGH = 26.0
+#: the pH from which a PCO2 below an earlier aim may be eased towards it (below it the kidneys are shedding
+#: the retained HCO3 and the pH has little room left above 7.35)
+EASE_PH = 7.42
+#: below this pH the NIV threshold calls for ready access to invasive ventilation (BTS/ICS 2016)
+NIV_INVASIVE_PH = 7.25
+#: the PaCO2 above which an acidaemic gas meets the NIV threshold (BTS/ICS 2016) [kPa]
+NIV_PCO2_KPA = 6.5
 #: minutes on NIV before a gas without improvement is a finding; from this many minutes it is urgent
 NIV_FIRST_CHECK_MIN, NIV_ESCALATION_MIN = 60.0, 240.0
 #: accepted span of a time given in minutes
 TIME_LIMIT_MIN = 1_000_000.0
 _ROUND = 6
+_ORDER = {"urgent": 0, "notable": 1, "info": 2}
 _SOURCES_CHANGE = ("reference_change_value", "analyser_imprecision")
 
 #: an ISO 8601 date-time: date, T (or a space), hours:minutes, optional seconds, optional UTC offset
@@ -131,6 +145,16 @@ def verdict(ph_start: float, ph_end: float, latest_direction: str | None) -> str
     if change >= PH_CHANGE or ph_end >= PH_LOW:
         return "improving"
     return "not_improving"
+
+
+def ph_735_pco2(pco2: float, ph: float) -> float:
+    """The PCO2 that would give pH 7.35 at the HCO3 of a gas with ``pco2`` and ``ph``: with the HCO3 fixed,
+    Henderson-Hasselbalch gives PCO2 x 10^(pH - 7.35) (the ceiling of easing ventilation).
+
+    >>> round(ph_735_pco2(45.0, 7.40), 2), round(ph_735_pco2(60.0, 7.35), 2)
+    (50.49, 60.0)
+    """
+    return pco2 * 10 ** (ph - PH_LOW)
 
 
 def pco2_trend(pco2_before: float, pco2_after: float) -> str:
@@ -201,17 +225,37 @@ def parse_time(value: object) -> tuple[str, object]:
 class _Gas:
     """One sample: where it came from, when, and what the blood_gas reading said about it."""
 
-    def __init__(self, index: int, time, kind: str, moment, events: tuple[str, ...], raw: dict, out: dict):
+    def __init__(
+        self,
+        index: int,
+        time,
+        kind: str,
+        moment,
+        events: tuple[str, ...],
+        raw: dict,
+        own: set[str],
+        reading: tuple[dict, list[dict]],
+    ):
         self.index = index
         self.time = time
         self.kind = kind
         self.moment = moment
         self.minutes = 0.0
         self.events = events
+        self.raw = raw  # the inputs the gas was read with (its own and the patient's)
+        self.own = own  # the names of the inputs the sample gave itself
         self.site = raw.get("sample") or "arterial"
         self.group = "venous" if self.site == "venous" else "arterial"
         self.ph = float(raw["ph"])
         self.pco2 = round(Inputs(raw).quantity("pco2", unit="mmHg", low=0.0, high=1e9), 9)
+        self.at_risk = raw.get("hypercapnia_risk") is True
+        self.baseline_given = raw.get("baseline_pco2") is not None
+        self.on_niv = False  # taken on NIV (the course's events say so)
+        self.intubated = False  # taken while intubated
+        self.read(*reading)
+
+    def read(self, out: dict, findings: list[dict]) -> None:
+        """Keep what the blood_gas reading ``out`` (with its ``findings``) says about this gas."""
         self.hco3 = out["hco3"]["value"]
         self.ph_status = out["ph_status"]
         self.disorders = out["disorders"]
@@ -219,13 +263,14 @@ class _Gas:
         self.pco2_target = None if target is None else target["value"]
         self.spo2_target = out.get("spo2_target")
         self.interpretation = out.get("interpretation")
-        self.findings: list[dict] = []
-        self.at_risk = raw.get("hypercapnia_risk") is True
-        self.baseline_given = raw.get("baseline_pco2") is not None
+        self.findings = findings
         codes = {d["code"]: d for d in self.disorders}
         acid = codes.get("respiratory_acidosis")
         self.respiratory_acidosis = acid is not None
         self.chronic = acid is not None and acid.get("chronicity") in ("chronic", "acute_on_chronic")
+
+    def codes(self) -> set[str]:
+        return {f["code"] for f in self.findings}
 
 
 @cache
@@ -253,8 +298,7 @@ def _read_one_gas(raw: dict, prefix: str) -> tuple[dict | None, list[dict], list
     except InputError as exc:
         return None, [], [exc]
     findings = [{"code": f["code"], "severity": f["severity"]} for f in report.findings]
-    order = {"urgent": 0, "notable": 1, "info": 2}
-    return report.outputs, sorted(findings, key=lambda f: order[f["severity"]]), []
+    return report.outputs, sorted(findings, key=lambda f: _ORDER[f["severity"]]), []
 
 
 #: a plain gas in which a patient-level input is checked by the blood_gas reader itself
@@ -395,9 +439,8 @@ def _samples(inputs: Inputs) -> list[_Gas] | None:
         if kind is not None:
             times.append((i, kind, moment))
         if outputs is not None and kind is not None:
-            gas = _Gas(i, time, kind, moment, events, merged, outputs)
-            gas.findings = findings
-            gases.append(gas)
+            own = {k for k, v in raw.items() if v is not None}
+            gases.append(_Gas(i, time, kind, moment, events, merged, own, (outputs, findings)))
     _check_times(inputs, times)
     if inputs.errors:
         return None
@@ -467,7 +510,20 @@ def course(inputs: Inputs, report: Report) -> None:
     c.niv()
     c.oxygen_finding()
     c.falling_fast_finding()
+    c.threshold_finding()
     c.summary_and_cautions(inputs)
+
+
+class _Episode:
+    """One run of NIV: the gas it started after (or was already running at), the gas its change is measured
+    from, the comparable gases on NIV after that one, and whether NIV was still running at the last."""
+
+    def __init__(self, start: _Gas, known: bool, reference: _Gas, window: list[_Gas], running: bool):
+        self.start = start
+        self.known = known  # False: already on NIV at ``start``, the true start is earlier and not recorded
+        self.reference = reference
+        self.window = window
+        self.running = running
 
 
 class _Course:
@@ -486,6 +542,12 @@ class _Course:
         self.position = {id(g): k for k, g in enumerate(self.gases)}
         self.pairs: list[tuple[_Gas, _Gas, dict]] = []
         self.ending: dict[int, dict] = {}  # id(later gas) -> its interval
+        self.runs: list[tuple[_Gas, bool]] = []  # (gas, start known) of each NIV run
+        self.history_from: _Gas | None = None  # the first gas whose SpO2 target the course's history changed
+        self.response_span = None
+        self.niv_episode: _Episode | None = None
+        self.support()
+        self.history()
 
     # -- helpers --------------------------------------------------------------------------------------------
     def p(self, mmhg: float) -> str:
@@ -501,16 +563,75 @@ class _Course:
         k = self.position[id(g)]
         return [x for x in self.gases[k + 1 :] if x.group == g.group]
 
+    # -- what the events say about each gas -----------------------------------------------------------------
+    def support(self) -> None:
+        """Mark each gas taken on NIV or while intubated, and find the runs of NIV.
+
+        An event follows its gas. A course whose first NIV event is ``niv_changed`` or ``niv_stopped``
+        (no ``niv_started`` before it) was already on NIV at that gas: the run starts there, its true start
+        unrecorded."""
+        on = intubated = seen = False
+        for g in self.gases:
+            niv_events = {"niv_started", "niv_changed", "niv_stopped"} & set(g.events)
+            if niv_events and not seen and "niv_started" not in niv_events:
+                on = True
+                self.runs.append((g, False))
+            seen = seen or bool(niv_events)
+            g.on_niv, g.intubated = on, intubated
+            if "niv_started" in g.events:
+                on = True
+                self.runs.append((g, True))
+            if "niv_stopped" in g.events or "intubated" in g.events:
+                on = False
+            if "intubated" in g.events:
+                intubated = True
+            if "extubated" in g.events:
+                intubated = False
+
+    def history(self) -> None:
+        """Read the gases after NIV or intubation in this course as after ventilation for hypercapnic failure.
+
+        From the first gas taken on NIV or while intubated (or after either), when a gas at or before it reads
+        a respiratory acidosis, each gas that does not give its own ``previous_hypercapnic_failure`` is read
+        with it true: BTS 2017 keeps 88-92 % for a patient who has needed NIV or invasive ventilation for
+        hypercapnic failure."""
+        key = "previous_hypercapnic_failure"
+        if key not in blood_gas_keys():
+            return
+        ventilated = [k for k, g in enumerate(self.gases) if g.on_niv or g.intubated]
+        if not ventilated:
+            return
+        first = ventilated[0]
+        if not any(g.respiratory_acidosis for g in self.gases[: first + 1]):
+            return
+        for g in self.gases[first:]:
+            if key in g.own or g.raw.get(key) is True:
+                continue
+            g.raw = {**g.raw, key: True}
+            outputs, findings, errors = _read_one_gas(g.raw, "course")
+            assert outputs is not None and not errors, errors  # the same gas read without it was valid
+            before = g.spo2_target
+            g.read(outputs, findings)
+            if self.history_from is None and g.spo2_target != before:
+                self.history_from = g  # the first gas whose target it changed: the summary says so
+
     # -- outputs --------------------------------------------------------------------------------------------
     def readings(self) -> None:
         out = []
         for g in self.gases:
+            findings = g.findings
+            if g.intubated:  # the NIV threshold does not apply to a gas taken while intubated
+                findings = [
+                    {**f, "severity": "info"} if f["code"] == "niv_criteria_met" else f for f in findings
+                ]
             reading = {
                 "index": g.index,
                 "time": g.time,
                 "minutes": g.minutes,
                 "site": g.site,
                 "events": list(g.events),
+                "on_niv": g.on_niv,
+                "intubated": g.intubated,
                 "ph": g.ph,
                 "pco2": self.r.pressure_value(g.pco2),
                 "hco3": {"value": g.hco3, "unit": "mmol/L"},
@@ -523,7 +644,7 @@ class _Course:
                 reading["spo2_target"] = g.spo2_target
             if g.interpretation:
                 reading["interpretation"] = g.interpretation
-            reading["findings"] = g.findings
+            reading["findings"] = sorted(findings, key=lambda f: _ORDER[f["severity"]])
             out.append(reading)
         self.r.put("readings", out)
         self.r.step(
@@ -592,14 +713,13 @@ class _Course:
         }
 
     def response(self) -> None:
-        first = next((g for g in self.gases if g.ph_status == "acidaemia"), None)
-        if first is None:
+        """From the first acidaemic gas of the latest gas's kind (venous, or arterial and earlobe)."""
+        latest = self.gases[-1]
+        first = next((g for g in self.gases if g.group == latest.group and g.ph_status == "acidaemia"), None)
+        if first is None or first is latest:
             return
-        later = self.later_in_group(first)
-        if not later:
-            return
-        span = self._stretch(first, later[-1])
-        self.response_span = (first, later[-1], span)
+        span = self._stretch(first, latest)
+        self.response_span = (first, latest, span)
         self.r.put("response", span["verdict"])
         self.r.put("response_span", span)
         self.r.step(
@@ -611,23 +731,29 @@ class _Course:
             output="response",
         )
 
-    def _niv_episode(self):
-        """(start gas, the comparable gases on NIV after it, still running) of the latest NIV start that has
-        a later comparable gas, or None."""
+    def _niv_episode(self) -> _Episode | None:
+        """The latest run of NIV that can be judged: the comparable gases are those of the kind of the last
+        gas on NIV (else of the other kind); the change is measured from the gas NIV started after, or from
+        the first gas of that kind on NIV when the start gas is of the other kind."""
         best = None
-        for k, g in enumerate(self.gases):
-            if "niv_started" not in g.events:
-                continue
-            window: list[_Gas] = []
+        for start, known in self.runs:
+            k = self.position[id(start)]
+            on = [] if known else [start]
             running = True
             for x in self.gases[k + 1 :]:
-                if x.group == g.group:
-                    window.append(x)
+                on.append(x)
                 if "niv_stopped" in x.events or "intubated" in x.events:
                     running = False
                     break
-            if window:
-                best = (g, window, running)
+            if not on:
+                continue
+            other = "venous" if on[-1].group == "arterial" else "arterial"
+            for group in (on[-1].group, other):
+                pool = [start] if start.group == group else []
+                pool += [x for x in on if x.group == group and x is not start]
+                if len(pool) >= 2:
+                    best = _Episode(start, known, pool[0], pool[1:], running)
+                    break
         return best
 
     def niv(self) -> None:
@@ -635,35 +761,48 @@ class _Course:
         self.niv_episode = episode
         if episode is None:
             return
-        start, window, running = episode
-        end = window[-1]
-        span = self._stretch(start, end)
+        start, ref, end = episode.start, episode.reference, episode.window[-1]
+        span = self._stretch(ref, end)
+        t = end.minutes - start.minutes
         out = {
-            "minutes_on_niv": span["minutes"],
+            "minutes_on_niv": t,
             "ph_change": span["ph_change"],
             "pco2_change": span["pco2_change"],
             "verdict": span["verdict"],
             "earlier": span["earlier"],
             "later": span["later"],
-            "running": running,
+            "started": self.position[id(start)],
+            "start_known": episode.known,
+            "running": episode.running,
         }
         self.r.put("niv_response", out)
         self.r.step(
-            f"pH change on NIV from {self.when(start)} to {self.when(end)}",
-            "as for the response, from the gas at the start of NIV",
+            f"pH change on NIV from {self.when(ref)} to {self.when(end)}",
+            "as for the response, from the gas at the start of NIV (or the first comparable gas on NIV)",
             span["ph_change"],
             ("bts_ics2016_niv_monitoring", "reference_change_value"),
             output="niv_response",
         )
-        if not running:
+        if not episode.running:
             return
-        t = end.minutes - start.minutes
         change = span["ph_change"]
-        base = (
-            f"On NIV since {self.when(start)} (pH {start.ph:.2f}, PCO2 {self.p(start.pco2)}), the gas at "
-            f"{self.when(end)} shows pH {end.ph:.2f} and PCO2 {self.p(end.pco2)} after {_duration(t)}: "
+        base = self._niv_base(episode, t)
+        latest = self.ending.get(id(end))
+        fell_lately = (
+            latest is not None
+            and latest["earlier"] >= self.position[id(ref)]
+            and latest["direction"] == "worsening"
+            and end.ph < PH_LOW
         )
-        if change <= -PH_CHANGE:
+        if change <= -PH_CHANGE and end.ph >= PH_LOW:
+            self.r.finding(
+                "niv_not_improving",
+                "notable",
+                base + f"the pH has fallen by {-change:.2f} but is not acidaemic. Check mask, leak, settings "
+                "and synchrony, and repeat the gas, following local protocols and senior advice "
+                "(BTS/ICS 2016).",
+            )
+        elif change <= -PH_CHANGE:
             self.r.finding(
                 "niv_not_improving",
                 "urgent",
@@ -671,6 +810,16 @@ class _Course:
                 + f"the pH has fallen by {-change:.2f}. A falling pH on NIV calls for the senior team now: "
                 "check mask, leak, settings and synchrony, and consider escalation within the agreed ceiling "
                 "of treatment, following local protocols (BTS/ICS 2016).",
+            )
+        elif fell_lately:
+            before = self.gases[latest["earlier"]]
+            self.r.finding(
+                "niv_not_improving",
+                "urgent",
+                base + f"the pH has fallen since the gas at {self.when(before)} on NIV (pH {before.ph:.2f}, "
+                f"PCO2 {self.p(before.pco2)}): a deterioration on NIV after an earlier gain calls for the "
+                "senior team now: check mask, leak, settings and synchrony, and consider escalation within "
+                "the agreed ceiling of treatment, following local protocols (BTS/ICS 2016).",
             )
         elif t >= NIV_FIRST_CHECK_MIN - 1e-9 and end.ph < PH_LOW and change < PH_CHANGE:
             if t >= NIV_ESCALATION_MIN - 1e-9:
@@ -690,6 +839,22 @@ class _Course:
                     "synchrony, and repeat the gas (about an hour after any change of settings), following "
                     "local protocols and senior advice (BTS/ICS 2016).",
                 )
+
+    def _niv_base(self, episode: _Episode, t: float) -> str:
+        """The opening of an NIV finding: since when, compared with which gas, what the latest gas shows."""
+        start, ref, end = episode.start, episode.reference, episode.window[-1]
+        values = f"pH {ref.ph:.2f}, PCO2 {self.p(ref.pco2)}"
+        if not episode.known:
+            since = f"Already on NIV at {self.when(start)}, its start not recorded"
+        else:
+            since = f"On NIV since {self.when(start)}"
+        if ref is start:
+            opening = f"{since} ({values}), the gas at "
+        else:
+            kind = "venous" if ref.group == "venous" else "arterial or earlobe"
+            opening = f"{since}; from the first {kind} gas on NIV ({self.when(ref)}, {values}) the gas at "
+        length = _duration(t) if episode.known else f"at least {_duration(t)} on NIV"
+        return f"{opening}{self.when(end)} shows pH {end.ph:.2f} and PCO2 {self.p(end.pco2)} after {length}: "
 
     def oxygen_finding(self) -> None:
         fired = None
@@ -711,19 +876,29 @@ class _Course:
             if target
             else ""
         )
+        later = self.later_in_group(nxt)
+        last = later[-1] if later else None
+        recovered = last is not None and (last.ph >= PH_LOW or _r(last.ph - nxt.ph) >= PH_CHANGE)
+        since = ""
+        if recovered:
+            since = (
+                f" Since then the pH has {'recovered' if last.ph >= PH_LOW else 'risen'} to {last.ph:.2f} "
+                f"(PCO2 {self.p(last.pco2)}) at {self.when(last)}."
+            )
         self.r.finding(
             "pco2_rising_after_oxygen",
-            "urgent" if nxt.ph < PH_LOW else "notable",
+            "urgent" if nxt.ph < PH_LOW and not recovered else "notable",
             f"After oxygen was increased at {self.when(g)}, the next gas ({self.when(nxt)}) shows PCO2 up "
             f"from {self.p(g.pco2)} to {self.p(nxt.pco2)} (+{rise:.0f} %) and pH down from {g.ph:.2f} to "
             f"{nxt.ph:.2f}: oxygen-induced hypercapnia is possible (Austin 2010; BTS 2017). Check the oxygen "
             f"given against the target saturation range{aim}, adjust it with senior advice and local "
-            "protocols, and repeat the gas 30-60 minutes after any change.",
+            "protocols, and repeat the gas 30-60 minutes after any change." + since,
         )
 
     def falling_fast_finding(self) -> None:
         fired = None
-        for group in ("arterial", "venous"):
+        latest_group = self.gases[-1].group
+        for group in sorted(("arterial", "venous"), key=lambda x: x == latest_group):  # the latest's last
             members = [g for g in self.gases if g.group == group]
             if len(members) < 2:
                 continue
@@ -736,7 +911,11 @@ class _Course:
             if not earlier:
                 continue
             a = earlier[-1]
-            below_aim = a.pco2_target is not None and _r(latest.pco2 / a.pco2_target - 1) <= -PCO2_CHANGE
+            below_aim = (
+                a.pco2_target is not None
+                and latest.ph >= EASE_PH
+                and _r(latest.pco2 / a.pco2_target - 1) <= -PCO2_CHANGE
+            )
             alkalaemic = latest.ph > PH_HIGH and latest.hco3 > HCO3_HIGH and latest.pco2 < a.pco2
             if below_aim or alkalaemic:
                 fired = (a, latest, below_aim)
@@ -750,41 +929,140 @@ class _Course:
                 f"below the aim of {self.p(a.pco2_target)} read from the gas at {self.when(a)}"
             )
         if b.ph > PH_HIGH:
-            said.append(f"pH {b.ph:.2f} with HCO3 {b.hco3:.1f} mmol/L")
+            said.append(f"pH {b.ph:.2f} with HCO3 {b.hco3:.1f} mmol/L at {self.when(b)}")
+        if b.group == "venous":
+            ease = (
+                "The team may ease ventilation; a venous gas gives no PaCO2 aim, so confirm on an arterial "
+                "or earlobe gas before setting one"
+            )
+        else:
+            floor = ph_735_pco2(b.pco2, b.ph)
+            if a.pco2_target is not None and a.pco2_target <= floor:
+                towards = f"the aim of {self.p(a.pco2_target)}"
+            else:
+                towards = (
+                    f"{self.p(floor)}, the PCO2 that would give pH 7.35 with today's HCO3 (Henderson-"
+                    "Hasselbalch): letting it rise further would make the blood acidaemic again"
+                )
+                if a.pco2_target is not None:
+                    towards += f" (the earlier aim of {self.p(a.pco2_target)} no longer fits)"
+            ease = f"The team may ease ventilation towards {towards}"
         self.r.finding(
             "pco2_falling_fast",
             "urgent" if b.ph > PH_HIGH else "notable",
             "; ".join(said)
             + ". The CO2 is coming down faster than the kidneys can shed the HCO3 they retained: "
-            "post-hypercapnic alkalosis. The team may ease ventilation towards the aim, with senior advice "
-            "and local protocols.",
+            f"post-hypercapnic alkalosis. {ease}, with senior advice and local protocols.",
+        )
+
+    def threshold_finding(self) -> None:
+        """The latest arterial or earlobe gas meets the NIV threshold (its reading's ``niv_criteria_met``)."""
+        last = self.gases[-1]
+        if last.intubated or "niv_criteria_met" not in last.codes():
+            return
+        limit = self.p(units.convert(NIV_PCO2_KPA, "kPa", "mmHg"))
+        values = f"pH {last.ph:.2f} (below 7.35) with PaCO2 {self.p(last.pco2)} (above {limit})"
+        if last.on_niv:
+            if "niv_not_improving" in {f["code"] for f in self.r.findings}:
+                return  # that finding already says it
+            self.r.finding(
+                "latest_gas_meets_niv_threshold",
+                "notable",
+                f"The latest gas ({self.when(last)}), taken on NIV, still meets the NIV threshold: {values}. "
+                "Repeat the gas 1-2 hours after NIV starts and at 4-6 hours, and act on the NIV verdict "
+                "(BTS/ICS 2016).",
+            )
+            return
+        then = [e for e in ("niv_started", "intubated") if e in last.events]
+        if then:
+            self.r.finding(
+                "latest_gas_meets_niv_threshold",
+                "notable",
+                f"The latest gas ({self.when(last)}) meets the NIV threshold: {values}; "
+                f"{then[0].replace('_', ' ').replace('niv', 'NIV')} after it. Repeat the gas 1-2 hours later "
+                "(BTS/ICS 2016).",
+            )
+            return
+        before = [(g, e) for g in self.gases[:-1] for e in ("niv_stopped", "extubated") if e in g.events]
+        if before:
+            g, event = before[-1]
+            what = "NIV was stopped" if event == "niv_stopped" else "extubation"
+            opening = (
+                f"Relapse after {what} at {self.when(g)}: the latest gas ({self.when(last)}) meets the NIV "
+                f"threshold: {values}. "
+            )
+        else:
+            opening = f"The latest gas ({self.when(last)}) meets the NIV threshold: {values}. "
+        invasive = (
+            f" pH below {NIV_INVASIVE_PH:.2f}: the guideline calls for a setting with ready access to "
+            "invasive ventilation."
+            if last.ph < NIV_INVASIVE_PH
+            else ""
+        )
+        self.r.finding(
+            "latest_gas_meets_niv_threshold",
+            "urgent",
+            opening + "BTS/ICS 2016 recommends NIV when this persists after optimal medical treatment "
+            "(controlled oxygen included); decide with senior advice and local protocols." + invasive,
         )
 
     def summary_and_cautions(self, inputs: Inputs) -> None:
         gases, r = self.gases, self.r
         first, last = gases[0], gases[-1]
-        for f in r.findings:  # what changes care first
-            if f["severity"] == "urgent":
-                r.say(f["text"])
-        r.say(
+        said = r.summary
+
+        def say(sentence: str) -> None:
+            if sentence not in said:
+                r.say(sentence)
+
+        codes = set()
+        for severity in ("urgent", "notable"):  # what changes care first, each statement once
+            for f in r.findings:
+                if f["severity"] == severity:
+                    say(f["text"])
+                    codes.add(f["code"])
+        say(
             f"{len(gases)} gases over {_duration(last.minutes)}: pH {first.ph:.2f} to {last.ph:.2f}, PCO2 "
             f"{self.p(first.pco2)} to {self.p(last.pco2)}, HCO3 {first.hco3:.1f} to {last.hco3:.1f} mmol/L."
         )
-        if "response" in r.outputs:
+        niv = r.outputs.get("niv_response")
+        niv_said = "niv_not_improving" in codes
+        same = (
+            niv is not None
+            and self.response_span is not None
+            and (niv["earlier"], niv["later"])
+            == (self.response_span[2]["earlier"], self.response_span[2]["later"])
+        )
+        if self.response_span is not None and not (same and niv_said):
             start, end, span = self.response_span
-            r.say(
-                f"Since the first acidaemic gas ({self.when(start)}, pH {start.ph:.2f}): "
-                f"{span['verdict'].replace('_', ' ')} (pH {end.ph:.2f} at {self.when(end)})."
+            on_niv = f", on NIV for {_niv_length(niv)}" if same else ""
+            say(
+                f"Since the first acidaemic gas ({self.when(start)}, pH {start.ph:.2f}){on_niv}: "
+                f"{span['verdict'].replace('_', ' ')} (pH {end.ph:.2f} at {self.when(end)})"
+                + ("; NIV since stopped." if same and not niv["running"] else ".")
             )
-        if self.niv_episode is not None:
-            niv = r.outputs["niv_response"]
-            r.say(
-                f"On NIV for {_duration(niv['minutes_on_niv'])}: pH change {niv['ph_change']:+.2f}, "
+        elif self.response_span is None and any(
+            g.ph_status == "acidaemia" and g.group != last.group for g in gases
+        ):
+            say(
+                "No verdict since the first acidaemic gas: it was "
+                + ("venous" if last.group == "arterial" else "arterial or earlobe")
+                + " and venous gases are not compared with arterial or earlobe ones."
+            )
+        if niv is not None and not niv_said and not same:
+            say(
+                f"On NIV for {_niv_length(niv)}: pH change {niv['ph_change']:+.2f}, "
                 f"{niv['verdict'].replace('_', ' ')}" + ("." if niv["running"] else " (NIV since stopped).")
             )
         if last.interpretation:
             aim = f"; PaCO2 aim {self.p(last.pco2_target)}" if last.pco2_target is not None else ""
-            r.say(f"Latest gas ({self.when(last)}): {last.interpretation.rstrip('.')}{aim}.")
+            say(f"Latest gas ({self.when(last)}): {last.interpretation.rstrip('.')}{aim}.")
+        if self.history_from is not None:
+            say(
+                f"From the gas at {self.when(self.history_from)} on, the SpO2 target is that after NIV or "
+                "intubation for hypercapnic failure, which this course shows: 88-92 % unless a range is "
+                "prescribed (BTS 2017)."
+            )
         for key in PATIENT_KEYS:
             if inputs.given(key) and key not in blood_gas_keys():
                 r.caution(
@@ -795,6 +1073,11 @@ class _Course:
             "or 8 % PCO2 counts as none). They do not replace assessing the patient, senior advice or local "
             "protocols."
         )
+
+
+def _niv_length(niv: dict) -> str:
+    """How long on NIV, from the ``niv_response`` output (``at least`` when the start was not recorded)."""
+    return ("" if niv["start_known"] else "at least ") + _duration(niv["minutes_on_niv"])
 
 
 def _duration(minutes: float) -> str:

@@ -98,7 +98,9 @@ def test_each_reading_copies_the_blood_gas_reading_of_that_gas(unit):
     response = ok(SERIES, unit, hypercapnia_risk=True)
     for reading in response["outputs"]["readings"]:
         sample = SERIES[reading["index"]]
-        alone = one_gas({**sample["inputs"], "hypercapnia_risk": True}, unit)
+        # gases taken on NIV after a respiratory acidosis carry that history (docs/course.md)
+        history = {"previous_hypercapnic_failure": True} if reading["on_niv"] else {}
+        alone = one_gas({**sample["inputs"], "hypercapnia_risk": True, **history}, unit)
         for name in ("ph_status", "disorders", "hco3", "pco2_target", "spo2_target", "interpretation"):
             assert reading.get(name) == alone.get(name), name
         assert reading["ph"] == sample["inputs"]["ph"]
@@ -388,11 +390,66 @@ def aim_of(inputs: dict) -> float:
 @pytest.mark.parametrize(("fraction", "fires"), [(1 - PCO2_STEP, True), (1 - PCO2_STEP + 0.005, False)])
 def test_pco2_falling_fast_at_eight_percent_below_the_aim(fraction, fires):
     aim = aim_of({**RETAINER, "hypercapnia_risk": True})
-    later = gas(180, 7.40, aim * fraction)
+    later = gas(180, 7.42, aim * fraction)
     response = ok([{"time": 0, "inputs": RETAINER}, later], hypercapnia_risk=True)
     assert ("pco2_falling_fast" in codes(response)) is fires
     if fires:
-        assert codes(response)["pco2_falling_fast"] == "notable"  # pH 7.40: not alkalaemic
+        assert codes(response)["pco2_falling_fast"] == "notable"  # pH 7.42: not alkalaemic
+
+
+def p735(pco2: float, ph: float) -> float:
+    """henderson1908 with the HCO3 held: the PCO2 that gives pH 7.35 is PCO2 x 10^(pH - 7.35) (derived)."""
+    return pco2 * 10 ** (ph - 7.35)
+
+
+@pytest.mark.parametrize(("ph", "fires"), [(7.42, True), (7.41, False), (7.40, False)])
+def test_pco2_falling_fast_below_the_aim_needs_a_ph_of_742(ph, fires):
+    # posthypercapnic_alkalosis (common practice): below 7.42 the pH has little room left above 7.35; the
+    # kidneys are already shedding the retained HCO3, and easing towards the old aim would acidify the blood
+    aim = aim_of({**RETAINER, "hypercapnia_risk": True})
+    later = gas(240, ph, aim * 0.75)
+    response = ok([{"time": 0, "inputs": RETAINER}, later], hypercapnia_risk=True)
+    assert ("pco2_falling_fast" in codes(response)) is fires
+
+
+def test_a_normal_ph_with_the_hco3_falling_is_not_eased_towards_a_stale_aim():
+    # an invented course: NIV from pH 7.27, PCO2 9.5 kPa, HCO3 32; at 4 h pH 7.40, PCO2 6.0 kPa, HCO3 28.
+    # Letting the PCO2 rise to the first gas's aim with today's HCO3 would give (henderson1908, derived):
+    first = {"ph": 7.27, "pco2": {"value": 9.5, "unit": "kPa"}, "hco3": {"value": 32, "unit": "mmol/L"}}
+    later = {"ph": 7.40, "pco2": {"value": 6.0, "unit": "kPa"}, "hco3": {"value": 28, "unit": "mmol/L"}}
+    aim_kpa = one_gas({**first, "hypercapnia_risk": True}, "kPa")["pco2_target"]["value"]
+    ph_at_old_aim = 6.1 + math.log10(28 / (0.0307 * aim_kpa * MMHG_PER_KPA))
+    assert ph_at_old_aim < 7.30  # acidaemic again
+    samples = [{"time": 0, "inputs": first, "events": ["niv_started"]}, {"time": 240, "inputs": later}]
+    response = ok(samples, "kPa", hypercapnia_risk=True)
+    assert "pco2_falling_fast" not in codes(response)
+    assert not any("ease ventilation" in s for s in response["summary"])
+
+
+def test_easing_goes_no_higher_than_the_pco2_of_ph_735_today():
+    # the earlier aim above P(7.35) of the latest gas: the text names P(7.35) as the goal
+    aim = aim_of({**RETAINER, "hypercapnia_risk": True})
+    ph, pco2, hco3 = 7.47, 44.0, 0.0307 * 44.0 * 10 ** (7.47 - 6.1)  # henderson1908
+    assert p735(pco2, ph) < aim and hco3 > 26
+    samples = [{"time": 0, "inputs": RETAINER}, gas(300, ph, pco2)]
+    response = ok(samples, hypercapnia_risk=True)
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_falling_fast"]
+    assert f"towards {p735(pco2, ph):.0f} mmHg, the PCO2 that would give pH 7.35" in text
+    # the earlier aim below P(7.35): eased towards the aim itself
+    ph, pco2 = 7.50, aim * 0.85
+    assert aim < p735(pco2, ph)
+    response = ok([{"time": 0, "inputs": RETAINER}, gas(300, ph, pco2)], hypercapnia_risk=True)
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_falling_fast"]
+    assert f"towards the aim of {aim:.0f} mmHg" in text
+
+
+def test_a_venous_falling_fast_finding_names_no_aim():
+    # venous_gas (from memory): a venous gas gives no PaCO2 aim; its alkalaemia is real (arterial pH higher)
+    samples = [gas(0, 7.26, 82, ["niv_started"], sample="venous"), gas(180, 7.49, 47, sample="venous")]
+    response = ok(samples, hypercapnia_risk=True)
+    assert codes(response)["pco2_falling_fast"] == "urgent"
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_falling_fast"]
+    assert "towards" not in text and "no PaCO2 aim" in text and "arterial or earlobe" in text
 
 
 @pytest.mark.parametrize(("ph", "severity"), [(7.46, "urgent"), (7.45, None)])
@@ -413,7 +470,7 @@ def test_pco2_falling_fast_needs_a_retainer():
     response = ok([{"time": 0, "inputs": acute}, gas(120, 7.40, 38)])
     assert "pco2_falling_fast" not in codes(response)
     # the same fall with a known usual PaCO2 is judged
-    response = ok([{"time": 0, "inputs": acute}, gas(120, 7.40, 30)], baseline_pco2=mmhg(58))
+    response = ok([{"time": 0, "inputs": acute}, gas(120, 7.43, 30)], baseline_pco2=mmhg(58))
     aim = one_gas({**acute, "baseline_pco2": mmhg(58)})["pco2_target"]["value"]
     assert ("pco2_falling_fast" in codes(response)) is (30 <= aim * (1 - PCO2_STEP))
 
@@ -435,7 +492,10 @@ def test_invented_course_oxygen_induced_rise():
         gas(110, 7.31, 64),
     ]
     response = ok(samples, hypercapnia_risk=True)
-    assert codes(response)["pco2_rising_after_oxygen"] == "urgent"
+    # the next gas after the rise is no longer the latest, and the latest shows the pH recovering: history
+    assert codes(response)["pco2_rising_after_oxygen"] == "notable"
+    # the latest gas, pH 7.31 with 64 mmHg (8.5 kPa), meets the NIV threshold (bts_ics2016)
+    assert codes(response)["latest_gas_meets_niv_threshold"] == "urgent"
     outputs = response["outputs"]
     assert outputs["intervals"][0]["pco2_rate"]["value"] == pytest.approx(15 / (50 / 60))  # derived
     assert outputs["intervals"][0]["direction"] == "worsening"
@@ -558,3 +618,273 @@ def test_junk_never_raises(text):
     response = json.loads(handle(text))
     assert response["ok"] is False
     assert all(e["code"] != "internal_error" for e in response["errors"])
+
+
+# -- NIV: a deterioration after an early gain, a fall that leaves the pH normal, already on NIV --------------
+
+
+def hh_pco2(ph: float, hco3: float) -> float:
+    """henderson1908 (S 0.0307, pK 6.1): the PCO2 [mmHg] of a plausible triple with this pH and HCO3."""
+    return hco3 / (0.0307 * 10 ** (ph - 6.1))
+
+
+@pytest.mark.parametrize(("ph_last", "severity"), [(7.26, "urgent"), (7.28, None)])
+def test_niv_deterioration_after_an_early_gain_is_urgent(ph_last, severity):
+    # BTS/ICS 2016 (bts_ics2016_niv_monitoring): 7.22 -> 7.30 at 90 min, then 7.26 at 5 h is a fall of 0.04
+    # since the previous gas on NIV (the reference change is 0.03), though still 0.04 above the start
+    samples = [
+        gas(0, 7.22, hh_pco2(7.22, 33), ["niv_started"]),
+        gas(90, 7.30, hh_pco2(7.30, 33)),
+        gas(300, ph_last, hh_pco2(ph_last, 33)),
+    ]
+    response = ok(samples, hypercapnia_risk=True)
+    assert codes(response).get("niv_not_improving") == severity
+    if severity:
+        (text,) = [f["text"] for f in response["findings"] if f["code"] == "niv_not_improving"]
+        assert "fallen since the gas at 90 min" in text
+
+
+@pytest.mark.parametrize(
+    ("ph_end", "severity"),
+    [
+        (7.37, "notable"),  # fell 0.03 (the reference change), still >= 7.35
+        (7.35, "notable"),
+        (7.34, "urgent"),  # fell 0.06 into acidaemia
+        (7.38, None),  # fell 0.02: no change
+    ],
+)
+def test_a_ph_fall_on_niv_is_urgent_only_into_acidaemia(ph_end, severity):
+    samples = [gas(0, 7.40, hh_pco2(7.40, 31), ["niv_started"]), gas(120, ph_end, hh_pco2(ph_end, 31))]
+    assert codes(ok(samples, hypercapnia_risk=True)).get("niv_not_improving") == severity
+
+
+@pytest.mark.parametrize(("minutes", "severity"), [(59, None), (60, "notable"), (240, "urgent")])
+def test_already_on_niv_at_the_first_gas(minutes, severity):
+    # the first NIV event is niv_changed: NIV was running at that gas; thresholds count from it (a minimum)
+    samples = [gas(0, 7.27, hh_pco2(7.27, 32), ["niv_changed"]), gas(minutes, 7.27, hh_pco2(7.27, 32))]
+    response = ok(samples, hypercapnia_risk=True)
+    niv = response["outputs"]["niv_response"]
+    assert (niv["earlier"], niv["later"], niv["started"]) == (0, 1, 0)
+    assert niv["start_known"] is False and niv["minutes_on_niv"] == minutes and niv["running"] is True
+    assert codes(response).get("niv_not_improving") == severity
+    assert [r["on_niv"] for r in response["outputs"]["readings"]] == [True, True]
+    if severity:
+        (text,) = [f["text"] for f in response["findings"] if f["code"] == "niv_not_improving"]
+        assert "start not recorded" in text and "at least" in text
+
+
+def test_a_later_niv_changed_does_not_start_a_run():
+    samples = [gas(0, 7.27, 71), gas(60, 7.27, 71, ["niv_started"]), gas(300, 7.27, 70, ["niv_changed"])]
+    samples.append(gas(400, 7.27, 70))
+    niv = ok(samples)["outputs"]["niv_response"]
+    assert (niv["started"], niv["earlier"], niv["start_known"]) == (1, 1, True)
+    assert "niv_response" not in ok([gas(0, 7.27, 71), gas(300, 7.27, 70)])["outputs"]
+
+
+# -- the latest gas meets the NIV threshold -----------------------------------------------------------------
+
+#: bts_ics2016: pH below 7.35 with PaCO2 above 6.5 kPa (bipm2019: 6.5 kPa = 48.75 mmHg)
+NIV_PCO2_MMHG = 6.5 * MMHG_PER_KPA
+
+
+def threshold(response: dict) -> tuple[str | None, str]:
+    found = [f for f in response["findings"] if f["code"] == "latest_gas_meets_niv_threshold"]
+    return (found[0]["severity"], found[0]["text"]) if found else (None, "")
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "severity"),
+    [
+        (7.30, 66, "urgent"),
+        (7.35, 66, None),  # not below 7.35
+        (7.34, NIV_PCO2_MMHG + 0.5, "urgent"),
+        (7.34, NIV_PCO2_MMHG - 0.5, None),  # not above 6.5 kPa
+    ],
+)
+def test_the_latest_gas_meeting_the_niv_threshold_is_a_course_finding(ph, pco2, severity):
+    response = ok([gas(0, 7.38, 55), gas(60, ph, pco2)], hypercapnia_risk=True)
+    found, text = threshold(response)
+    assert found == severity
+    if severity:
+        assert text in response["summary"] and response["summary"].index(text) == 0
+
+
+def test_the_threshold_after_niv_stopped_or_extubation_is_a_relapse():
+    stopped = [
+        gas(0, 7.27, 71, ["niv_started"]),
+        gas(120, 7.33, 62),
+        gas(720, 7.38, 56, ["niv_stopped"]),
+        gas(900, 7.30, 67),
+    ]
+    found, text = threshold(ok(stopped, hypercapnia_risk=True))
+    assert found == "urgent" and text.startswith("Relapse after NIV was stopped at 720 min")
+    extubated = [gas(0, 7.40, 51, ["extubated"]), gas(120, 7.31, 65)]
+    found, text = threshold(ok(extubated, hypercapnia_risk=True))
+    assert found == "urgent" and text.startswith("Relapse after extubation at 0 min")
+
+
+def test_the_threshold_is_not_urgent_while_intubated_or_on_niv():
+    intubated = [
+        gas(0, 7.24, 79, ["niv_started"]),
+        gas(90, 7.20, 86, ["intubated"]),
+        gas(150, 7.30, 67),
+    ]
+    response = ok(intubated, hypercapnia_risk=True)
+    assert threshold(response)[0] is None
+    readings = response["outputs"]["readings"]
+    assert [r["intubated"] for r in readings] == [False, False, True]
+    # the intubated gas's own reading meets the threshold, but the course shows it as information only
+    assert one_gas({**intubated[2]["inputs"], "hypercapnia_risk": True}) is not None
+    assert {"code": "niv_criteria_met", "severity": "info"} in readings[2]["findings"]
+    assert {"code": "niv_criteria_met", "severity": "urgent"} in readings[1]["findings"]
+    # extubated later: the threshold counts again, as a relapse
+    extubated = [*intubated[:2], gas(150, 7.36, 58, ["extubated"]), gas(300, 7.30, 67)]
+    found, text = threshold(ok(extubated, hypercapnia_risk=True))
+    assert found == "urgent" and "extubation" in text
+    # on NIV and improving: said, but not urgent (the NIV checks decide)
+    on_niv = [gas(0, 7.26, 74, ["niv_started"]), gas(90, 7.30, 67)]
+    assert threshold(ok(on_niv, hypercapnia_risk=True))[0] == "notable"
+    # NIV started just after the latest gas
+    started = [gas(0, 7.38, 55), gas(60, 7.30, 67, ["niv_started"])]
+    assert threshold(ok(started, hypercapnia_risk=True))[0] == "notable"
+    # a venous latest gas: the threshold is not read from it
+    venous = [gas(0, 7.38, 55), gas(60, 7.28, 75, sample="venous")]
+    assert threshold(ok(venous, hypercapnia_risk=True))[0] is None
+
+
+# -- the history of this course: NIV or intubation for hypercapnic failure -----------------------------------
+
+
+OVERVENTILATED = [
+    gas(0, 7.25, hh_pco2(7.25, 34), ["niv_started"], hco3={"value": 34, "unit": "mmol/L"}),
+    gas(120, 7.38, hh_pco2(7.38, 33)),
+    gas(360, 7.50, hh_pco2(7.50, 33)),
+]
+
+
+def test_gases_after_niv_are_read_with_the_history_of_hypercapnic_failure():
+    # bts2017_o2 (verified): 88-92 % once the patient has needed NIV or IMV for hypercapnic failure
+    response = ok(OVERVENTILATED, hypercapnia_risk=True)
+    last = OVERVENTILATED[2]["inputs"]
+    alone = one_gas({**last, "hypercapnia_risk": True})
+    with_history = one_gas({**last, "hypercapnia_risk": True, "previous_hypercapnic_failure": True})
+    assert (alone["spo2_target"]["low"], with_history["spo2_target"]["low"]) == (94, 88)  # the premise
+    readings = response["outputs"]["readings"]
+    assert readings[2]["spo2_target"] == with_history["spo2_target"]
+    assert any("BTS 2017" in s and "360 min" in s for s in response["summary"])
+    # patient-level false is this course's past, not its present: still 88-92 % after the NIV
+    readings = ok(OVERVENTILATED, hypercapnia_risk=True, previous_hypercapnic_failure=False)["outputs"][
+        "readings"
+    ]
+    assert readings[2]["spo2_target"] == with_history["spo2_target"]
+    # the gas's own value wins
+    own = [
+        *OVERVENTILATED[:2],
+        {**OVERVENTILATED[2], "inputs": {**last, "previous_hypercapnic_failure": False}},
+    ]
+    readings = ok(own, hypercapnia_risk=True)["outputs"]["readings"]
+    assert readings[2]["spo2_target"] == alone["spo2_target"]
+
+
+def test_no_history_without_niv_or_intubation_after_hypercapnia():
+    no_niv = [{**g, "events": []} for g in OVERVENTILATED]
+    last = OVERVENTILATED[2]["inputs"]
+    alone = one_gas({**last, "hypercapnia_risk": True})
+    response = ok(no_niv, hypercapnia_risk=True)
+    assert response["outputs"]["readings"][2]["spo2_target"] == alone["spo2_target"]
+    assert not any("BTS 2017" in s for s in response["summary"])
+    # intubated without any respiratory acidosis in the course: not for hypercapnic failure
+    normocapnic = [gas(0, 7.40, 40, ["intubated"]), gas(60, 7.42, 38)]
+    readings = ok(normocapnic, hypercapnia_risk=True)["outputs"]["readings"]
+    assert (
+        readings[1]["spo2_target"]
+        == one_gas({**normocapnic[1]["inputs"], "hypercapnia_risk": True})["spo2_target"]
+    )
+
+
+# -- the comparison group of the latest gas -----------------------------------------------------------------
+
+
+def test_a_venous_first_gas_leaves_the_arterial_course_judged():
+    samples = [
+        gas(0, 7.25, hh_pco2(7.25, 33), ["niv_started"], sample="venous"),
+        gas(60, 7.29, hh_pco2(7.29, 33)),
+        gas(150, 7.33, hh_pco2(7.33, 33)),
+    ]
+    outputs = ok(samples, hypercapnia_risk=True)["outputs"]
+    assert outputs["response"] == "improving"  # 7.29 -> 7.33: rose 0.04 (derived)
+    assert (outputs["response_span"]["earlier"], outputs["response_span"]["later"]) == (1, 2)
+    niv = outputs["niv_response"]
+    assert (niv["started"], niv["earlier"], niv["later"], niv["minutes_on_niv"]) == (0, 1, 2, 150)
+    assert niv["ph_change"] == pytest.approx(0.04) and niv["verdict"] == "improving"
+
+
+def test_a_verdict_left_out_across_kinds_says_why():
+    response = ok([gas(0, 7.30, 70, sample="venous"), gas(30, 7.36, 55)])
+    assert "response" not in response["outputs"]
+    assert any("not compared" in s for s in response["summary"])
+
+
+# -- an oxygen-induced rise that has since recovered -------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("ph_last", "severity"),
+    [
+        (None, "urgent"),  # the gas after the rise is the latest, acidaemic
+        (7.30, "notable"),  # rose 0.03 since: recovering (history)
+        (7.29, "urgent"),  # rose 0.02: not recovered, still acidaemic
+        (7.35, "notable"),  # no longer acidaemic
+    ],
+)
+def test_an_oxygen_induced_rise_becomes_history_once_the_ph_recovers(ph_last, severity):
+    samples = [
+        gas(0, 7.36, hh_pco2(7.36, 30.5), ["oxygen_increased"]),
+        gas(50, 7.27, hh_pco2(7.27, 31.5), ["oxygen_decreased"]),
+    ]
+    if ph_last is not None:
+        samples.append(gas(110, ph_last, hh_pco2(ph_last, 31.5)))
+    response = ok(samples, hypercapnia_risk=True)
+    assert codes(response)["pco2_rising_after_oxygen"] == severity
+    (text,) = [f["text"] for f in response["findings"] if f["code"] == "pco2_rising_after_oxygen"]
+    assert ("Since then the pH has" in text) is (severity == "notable")
+    if ph_last is not None and severity == "notable":
+        assert ("recovered" if ph_last >= 7.35 else "risen") in text
+
+
+# -- the summary: urgent first, then notable, each statement once ------------------------------------------
+
+
+COURSES = {
+    "oxygen then threshold": [gas(0, 7.36, 56, ["oxygen_increased"]), gas(50, 7.27, 71)],
+    "niv failing": [
+        gas(0, 7.26, 74, ["niv_started"]),
+        gas(90, 7.27, 72, ["niv_changed"]),
+        gas(300, 7.27, 71),
+    ],
+    "niv falling back": [
+        gas(0, 7.22, hh_pco2(7.22, 33), ["niv_started"]),
+        gas(90, 7.30, hh_pco2(7.30, 33)),
+        gas(300, 7.26, hh_pco2(7.26, 33)),
+    ],
+    "overventilated": OVERVENTILATED,
+    "oxygen history": [
+        gas(0, 7.36, 56, ["oxygen_increased"]),
+        gas(45, 7.28, 70, ["oxygen_decreased"]),
+        gas(100, 7.33, 61),
+    ],
+    "metabolic alkalosis, oxygen": [gas(0, 7.47, 46.5, ["oxygen_increased"]), gas(45, 7.40, 55.5)],
+}
+
+
+@pytest.mark.parametrize("name", sorted(COURSES))
+def test_the_summary_leads_with_urgent_then_notable_findings_each_once(name):
+    response = ok(COURSES[name], hypercapnia_risk=True)
+    urgent = [f["text"] for f in response["findings"] if f["severity"] == "urgent"]
+    notable = [f["text"] for f in response["findings"] if f["severity"] == "notable"]
+    summary = response["summary"]
+    assert summary[: len(urgent) + len(notable)] == urgent + notable
+    sentences = [s.strip() for item in summary for s in item.split(". ") if s.strip()]
+    assert len(sentences) == len(set(sentences)), sentences
+    if "niv_not_improving" in codes(response):  # the NIV verdict is not said a second time
+        assert not any(s.startswith("On NIV for") for s in summary)
