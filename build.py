@@ -524,7 +524,10 @@ def _q(value: float, unit: str) -> dict:
 
 #: one worked case of every other calculation (the non-blood-gas cases of tests/browser/test_worked_cases)
 CHECK_OTHER = [
-    {"calc": "alveolar_gas", "inputs": {"fio2": 0.21, "pco2": _q(40, "mmHg"), "po2": _q(70, "mmHg"), "age": 60}},
+    {
+        "calc": "alveolar_gas",
+        "inputs": {"fio2": 0.21, "pco2": _q(40, "mmHg"), "po2": _q(70, "mmHg"), "age": 60},
+    },
     {"calc": "oxygen_content", "inputs": {"hb": _q(15, "g/dL"), "spo2": 98, "po2": _q(100, "mmHg")}},
     {
         "calc": "temperature_correction",
@@ -532,15 +535,26 @@ CHECK_OTHER = [
     },
     {
         "calc": "ventilation",
-        "inputs": {"rr": 16, "vt": _q(500, "mL"), "vd": _q(150, "mL"), "pco2": _q(60, "mmHg"),
-                   "target_pco2": _q(45, "mmHg")},
+        "inputs": {
+            "rr": 16,
+            "vt": _q(500, "mL"),
+            "vd": _q(150, "mL"),
+            "pco2": _q(60, "mmHg"),
+            "target_pco2": _q(45, "mmHg"),
+        },
     },
-    {"calc": "altitude", "inputs": {"altitude": _q(8000, "ft"), "fio2": 0.21, "pco2": _q(40, "mmHg"),
-                                    "po2": _q(70, "mmHg")}},
+    {
+        "calc": "altitude",
+        "inputs": {"altitude": _q(8000, "ft"), "fio2": 0.21, "pco2": _q(40, "mmHg"), "po2": _q(70, "mmHg")},
+    },
     {
         "calc": "oxygen_supply",
-        "inputs": {"cylinder_water_capacity": _q(2, "L"), "cylinder_pressure": _q(230, "bar"),
-                   "flow": _q(4, "L/min"), "duration": _q(60, "min")},
+        "inputs": {
+            "cylinder_water_capacity": _q(2, "L"),
+            "cylinder_pressure": _q(230, "bar"),
+            "flow": _q(4, "L/min"),
+            "duration": _q(60, "min"),
+        },
     },
 ]
 
@@ -586,7 +600,7 @@ for _m in pkgutil.iter_modules(tidewell.__path__, "tidewell."):
             importlib.import_module(_m.name)
         except ImportError:
             pass  # needs numpy: loaded on first use, from the archive
-_tidewell_handle('{"calc": "blood_gas", "inputs": {"ph": 7.31, "pco2": {"value": 9.1, "unit": "kPa"}, "hco3": {"value": 33, "unit": "mmol/L"}}}')
+_tidewell_handle(${JSON.stringify(JSON.stringify(job.requests[0]))})
 _tidewell_missing()
 os.environ.pop("PYTHONHASHSEED")
 random.seed(0)
@@ -635,9 +649,17 @@ def make_snapshot(runtime: dict[str, bytes], archive: bytes, label: str, cache: 
         return stored.read_bytes()
     node = shutil.which("node")
     if node is None:
-        raise BuildError("node is needed to make the engine snapshot (apt-get install nodejs), or --no-snapshot")
+        raise BuildError(
+            "node is needed to make the engine snapshot (apt-get install nodejs), or --no-snapshot"
+        )
     with tempfile.TemporaryDirectory(dir=cache) as tmp:
-        for name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip", "pyodide-lock.json"):
+        for name in (
+            "pyodide.mjs",
+            "pyodide.asm.js",
+            "pyodide.asm.wasm",
+            "python_stdlib.zip",
+            "pyodide-lock.json",
+        ):
             (Path(tmp) / name).write_bytes(runtime[name])
         (Path(tmp) / "snapshot.mjs").write_text(SNAPSHOT_SCRIPT)
         (Path(tmp) / "tidewell.zip").write_bytes(archive)
@@ -715,7 +737,7 @@ def build_info(
         f"export const TIDEWELL_ZIP = {json.dumps(archive[0])};",
         f"export const TIDEWELL_ZIP_SHA256 = {json.dumps(sha256_bytes(archive[1]))};",
         f"export const ZIP_PATH = {json.dumps(ZIP_PATH)};",
-        "// the engine's memory snapshot (\"\" when built --no-snapshot); used only from the offline copy",
+        '// the engine\'s memory snapshot ("" when built --no-snapshot); used only from the offline copy',
         f"export const SNAPSHOT = {json.dumps(SNAPSHOT_NAME if snapshot else '')};",
         f"export const SNAPSHOT_SHA256 = {json.dumps(sha256_bytes(snapshot) if snapshot else '')};",
         "// import name -> package name, for the packages the worker may load on demand",

@@ -11,10 +11,11 @@ from __future__ import annotations
 import json
 from collections import Counter
 
-from offline_support import show_screen
+from offline_support import precache_list, show_screen
 from screens_support import fill, wait_report
 from selenium.webdriver.common.by import By
 from selenium.webdriver.support.ui import Select
+from test_worked_cases import _close
 
 from tidewell import bridge
 
@@ -108,8 +109,8 @@ def test_offline_after_the_server_is_stopped(make_browser, make_server, dist):
     full = Counter(path for method, path, status in server.requests() if method == "GET" and status == 200)
     assert full[SUB_PATH + "pyodide/pyodide.asm.wasm"] == 1
     assert [path for path, n in full.items() if n > 1] == []
-    precached = json.loads((dist / "build-manifest.json").read_text())["files"]
-    assert {SUB_PATH + f["path"] for f in precached} <= {p for _, p, _ in server.requests()}
+    precached = precache_list(dist)  # the files stored after the first start may still be on their way
+    assert {SUB_PATH + url[2:] for url in precached} <= {p for _, p, _ in server.requests()}
 
     server.stop()
     assert not server.accepting()
@@ -132,7 +133,8 @@ def test_offline_after_the_server_is_stopped(make_browser, make_server, dist):
         assert want["ok"] is True, (request["calc"], want.get("errors"))
         got = browser.compute(request, timeout=120)
         assert got["ok"] is True, (request["calc"], got.get("errors"))
-        assert got == want, request["calc"]
+        # numpy's results differ between WebAssembly and the desktop in the last bits: floats to 1e-9
+        _close(got, want, request["calc"])
     diagnostics = browser.wait_js("return await window.tidewell.engine.diagnostics();")
     assert "numpy" in diagnostics["packages"]
     assert any("/pyodide/numpy-" in r["name"] for r in diagnostics["resources"])

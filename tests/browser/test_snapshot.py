@@ -75,7 +75,8 @@ def wait_stored(browser, site: Path) -> None:
         "for (;;) {"
         "  const cache = await caches.open(name);"
         "  const hit = await cache.match('./pyodide/engine.snapshot');"
-        "  if (hit && hex(await crypto.subtle.digest('SHA-256', await hit.arrayBuffer())) === sha) return sha;"
+        "  const got = hit && hex(await crypto.subtle.digest('SHA-256', await hit.arrayBuffer()));"
+        "  if (got === sha) return sha;"
         "  await new Promise((r) => setTimeout(r, 200)); }",
         f"tidewell-{build_id}",
         sha,
@@ -97,7 +98,9 @@ def answers(browser) -> list[tuple[str, dict]]:
     return [(case_id, browser.compute(request)) for case_id, request, _ in _requests()]
 
 
-def test_a_start_from_the_snapshot_answers_every_worked_case_as_a_normal_start(make_browser, make_server, dist):
+def test_a_start_from_the_snapshot_answers_every_worked_case_as_a_normal_start(
+    make_browser, make_server, dist
+):
     server = make_server(dist)
     browser = make_browser()
     browser.driver.execute_cdp_cmd("Emulation.setTimezoneOverride", {"timezoneId": ZONE})
@@ -129,7 +132,9 @@ def test_a_start_from_the_snapshot_answers_every_worked_case_as_a_normal_start(m
     assert python_normal["timezone"] == -12 * 3600 and python_normal["altzone"] == -13 * 3600
     for key in ("environ", "tzname", "timezone", "altzone", "daylight", "path"):
         assert python_snap[key] == python_normal[key], key
-    assert python_snap["environ"]["LANG"].endswith(".UTF-8") and "PYTHONHASHSEED" not in python_snap["environ"]
+    assert (
+        python_snap["environ"]["LANG"].endswith(".UTF-8") and "PYTHONHASHSEED" not in python_snap["environ"]
+    )
 
     # the random state is reseeded at each start from the snapshot, not the one frozen in it
     visit(browser, server.url + "#convert")

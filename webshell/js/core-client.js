@@ -131,8 +131,9 @@ class Engine extends EventTarget {
       else this.fail("The engine sent a message the page could not read.");
     };
     const snapshot = !this.snapshotOff;
+    this.snapshotInUse = false; // set when the worker says it is starting from the snapshot
     this.watchdog = setTimeout(() => {
-      if (snapshot) {
+      if (this.snapshotInUse && !this.snapshotOff) {
         // the worker's own fallback did not come through (a start from the snapshot wedged the worker):
         // once more, the normal way, with the same time
         this.snapshotOff = true;
@@ -311,6 +312,7 @@ class Engine extends EventTarget {
       return;
     }
     if (message.type === "progress") {
+      if (message.snapshot) this.snapshotInUse = true;
       if (this.state === "loading") this.setState("loading", message.text);
     } else if (message.type === "ready") {
       clearTimeout(this.watchdog);

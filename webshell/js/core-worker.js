@@ -230,10 +230,11 @@ async function start(config) {
   startInfo = { start: "normal", note: "" };
   let snapshotMs = 0;
   if (method === "zip" && config.snapshot !== false) {
-    progress("Starting the engine from its stored image");
     try {
       const stored = await storedSnapshot();
       if (stored.buffer) {
+        // the page's watchdog knows: if this wedges the worker, the next attempt starts the normal way
+        post({ type: "progress", text: "Starting the engine from its stored image", snapshot: true });
         const timeout = Number(config.snapshotTimeout) > 0 ? Number(config.snapshotTimeout) : SNAPSHOT_TIMEOUT_MS;
         pyodide = await withTimeout(startFromSnapshot(stored.buffer, archive), timeout, "the start from it");
         startInfo = { start: "snapshot", note: "" };
