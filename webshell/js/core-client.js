@@ -327,7 +327,7 @@ class Engine extends EventTarget {
         return;
       }
       this.info = message.info;
-      if (info.start !== "snapshot") storeLater();
+      if (info.start !== "snapshot" && !this.snapshotOff) storeLater();
       if (!this.everReady) performance.mark("tidewell:engine-ready");
       this.everReady = true;
       this.attempt = 0;
