@@ -481,16 +481,21 @@ SNAPSHOT_EPOCH_MS = 315532800000  # 1980-01-01, the zip format's earliest date
 
 
 def tidewell_zip(pyc: dict[str, bytes]) -> bytes:
-    """tidewell as a zip for ``sys.path``: each module's source with its compiled ``name.pyc`` beside it.
+    """tidewell as a zip for ``sys.path``: each module compiled (``name.pyc``), without its source.
 
-    zipimport takes ``name.pyc`` before ``name.py`` and never looks in ``__pycache__``, so the compiled
-    files of the wheel are stored beside their sources here. Importing from the archive needs no
-    unpacking (measured in docs/performance.md). Deterministic like the wheel.
+    zipimport takes a ``name.pyc`` that stands alone (as for the standard library, compiled_stdlib) and
+    never looks in ``__pycache__``, so the wheel's compiled files are stored under the module's own name.
+    The sources are left out: nothing in the engine reads them (a traceback still names file and line),
+    and they would cost 165 KB of the first visit's download; they stay in the wheel. Importing from the
+    archive needs no unpacking (measured in docs/performance.md). With ``--no-pyc``: the sources.
+    Deterministic like the wheel.
     """
-    members = dict(package_files())
+    members = {}
     for name, data in pyc.items():
         folder, _, file = name.rpartition("/__pycache__/")
         members[f"{folder}/{file.split('.', 1)[0]}.pyc"] = data
+    if not members:
+        members = {name: data for name, data in package_files() if name.endswith(".py")}
     return write_zip(sorted(members.items()))
 
 

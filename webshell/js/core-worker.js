@@ -46,8 +46,8 @@ const OPTIONS = {
 };
 
 // Python run once after tidewell is importable (build.py runs this same text before it takes the
-// snapshot, so keep it a plain template without substitutions). A last-resort finder records imports nobody could
-// satisfy, so the worker can load a shipped package (numpy) and run the calculation again.
+// snapshot: keep it a plain template, without substitutions). A last-resort finder records imports
+// nobody could satisfy, so the worker can load a shipped package (numpy) and run the calculation again.
 const SETUP = `
 import importlib, sys
 class _TidewellMissing:
