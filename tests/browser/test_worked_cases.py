@@ -23,20 +23,20 @@ def q(v, unit):
     return {"value": v, "unit": unit}
 
 
-def _close(a, b, path="response"):
+def _close(a, b, path="response", rel_tol=1e-9):
     """Page and CPython answers agree: same structure, floats equal to 1e-9 relative (wasm libm may differ
     from the host's in the last bits)."""
     if isinstance(a, float) or isinstance(b, float):
         assert isinstance(a, (int, float)) and isinstance(b, (int, float)), path
-        assert math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-12), f"{path}: {a} != {b}"
+        assert math.isclose(a, b, rel_tol=rel_tol, abs_tol=1e-12), f"{path}: {a} != {b}"
     elif isinstance(a, dict):
         assert isinstance(b, dict) and a.keys() == b.keys(), f"{path}: keys {sorted(a)} != {sorted(b)}"
         for k in a:
-            _close(a[k], b[k], f"{path}.{k}")
+            _close(a[k], b[k], f"{path}.{k}", rel_tol)
     elif isinstance(a, list):
         assert isinstance(b, list) and len(a) == len(b), path
         for i, (x, y) in enumerate(zip(a, b, strict=True)):
-            _close(x, y, f"{path}[{i}]")
+            _close(x, y, f"{path}[{i}]", rel_tol)
     else:
         assert a == b, f"{path}: {a!r} != {b!r}"
 
