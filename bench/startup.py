@@ -114,6 +114,8 @@ PARTS = {
     "worker_created": "worker created",
     "before_start": "worker module loading",
     "snapshot_tried": "looking for the snapshot",
+    "snapshot_read": "snapshot read (from start)",
+    "snapshot_checked": "snapshot sha256 checked (from start)",
     "runtime": "loadPyodide (snapshot: restore)",
     "install": "install tidewell",
     "import": "import tidewell",

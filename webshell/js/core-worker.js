@@ -99,6 +99,7 @@ _tidewell_environment
 
 let pyodide = null;
 let startInfo = null; // {start: "snapshot" | "normal", note}
+const snapshotReadAt = [0, 0]; // when the snapshot's bytes were read, and checked (worker clock)
 let handle = null;
 let takeMissing = null;
 let engine = null; // Promise of readiness
@@ -141,24 +142,32 @@ async function fetchChecked(name, sha256) {
   return buffer;
 }
 
-// The snapshot from the offline copy, checked: {buffer} or {reason} why it cannot be used.
+// The snapshot in the offline copy: a promise of its checked bytes (rejected when they are not this
+// build's), or a reason why there is none. Looking it up is quick; reading and checking 21 MB is not, so
+// that runs while loadPyodide loads the runtime (it awaits the promise only once it needs the bytes).
 async function storedSnapshot() {
   if (!SNAPSHOT) return { reason: "this build has no snapshot" };
   if (!self.caches) return { reason: "no offline copy here" };
   const stored = await caches.match(new URL(SNAPSHOT, INDEX_URL).href);
   if (!stored) return { reason: "not in the offline copy yet (stored after the first start)" };
-  const buffer = await stored.arrayBuffer();
-  const digest = hex(await crypto.subtle.digest("SHA-256", buffer));
-  if (digest !== SNAPSHOT_SHA256) {
-    return { reason: `the stored copy is not this build's (sha256 ${digest.slice(0, 16)}...)` };
-  }
-  return { buffer };
+  const checked = (async () => {
+    const buffer = await stored.arrayBuffer();
+    snapshotReadAt[0] = performance.now();
+    const digest = hex(await crypto.subtle.digest("SHA-256", buffer));
+    if (digest !== SNAPSHOT_SHA256) {
+      throw new Error(`the stored copy is not this build's (sha256 ${digest.slice(0, 16)}...)`);
+    }
+    snapshotReadAt[1] = performance.now();
+    return new Uint8Array(buffer);
+  })();
+  checked.catch(() => {}); // reported by loadPyodide, which awaits it
+  return { checked };
 }
 
 const lang = () => `${((self.navigator && navigator.languages && navigator.languages[0]) || "C").replace("-", "_")}.UTF-8`;
 
-async function startFromSnapshot(buffer, archive) {
-  const py = await loadPyodide({ ...OPTIONS, _loadSnapshot: new Uint8Array(buffer) });
+async function startFromSnapshot(checked, archive) {
+  const py = await loadPyodide({ ...OPTIONS, _loadSnapshot: checked });
   py.FS.writeFile(ZIP_PATH, new Uint8Array(await archive));
   if (py.globals.get("_tidewell_label") !== BUILD_LABEL) {
     throw new Error("it was made for another build");
@@ -232,11 +241,11 @@ async function start(config) {
   if (method === "zip" && config.snapshot !== false) {
     try {
       const stored = await storedSnapshot();
-      if (stored.buffer) {
+      if (stored.checked) {
         // the page's watchdog knows: if this wedges the worker, the next attempt starts the normal way
         post({ type: "progress", text: "Starting the engine from its stored image", snapshot: true });
         const timeout = Number(config.snapshotTimeout) > 0 ? Number(config.snapshotTimeout) : SNAPSHOT_TIMEOUT_MS;
-        pyodide = await withTimeout(startFromSnapshot(stored.buffer, archive), timeout, "the start from it");
+        pyodide = await withTimeout(startFromSnapshot(stored.checked, archive), timeout, "the start from it");
         startInfo = { start: "snapshot", note: "" };
       } else {
         startInfo.note = `snapshot not used: ${stored.reason}`;
@@ -261,6 +270,8 @@ async function start(config) {
       throw new Error(`the engine is tidewell ${engineVersion} but this page is ${VERSION}`);
     }
     return readyInfo(engineVersion, method, t0, {
+      snapshot_read: Math.round(snapshotReadAt[0] - t0), // its bytes read from the offline copy
+      snapshot_checked: Math.round(snapshotReadAt[1] - t0), // and their sha256 checked (both from t0)
       runtime: Math.round(t1 - t0),
       install: 0,
       import: Math.round(performance.now() - t1),
