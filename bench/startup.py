@@ -2,30 +2,39 @@
 """Start-up of Tidewell beside bare Pyodide: cold, warm, offline; with and without 4x CPU throttling.
 
     python3 bench/startup.py [--runs 5] [--rates 1,4] [--quick] [--warm-plus] [--routes]
-                             [--dist DIR] [--json FILE]
+                             [--arms bare,shipped,app,snapshot] [--dist DIR] [--json FILE]
 
-Two pages are served from one copy of the build:
-  bare  bench/bare/ copied to <dist>/bare/: a module worker loads Pyodide as released (bare/pyodide/,
-        from the pinned npm package, with the build's lock file) with the engine's options and runs
-        ``1+1``; its page marks ``bare:engine-ready`` when the answer arrives. It has a service worker
-        of the same shape as the app's (precache, cache first), holding only what it needs;
-  app   the app to ``tidewell:first-result``: a ``blood_gas`` request is sent at engine-ready.
+Four pages ("arms") are served from one copy of the build:
+  bare      bench/bare/ copied to <dist>/bare/: a module worker loads Pyodide as released (bare/pyodide/,
+            from the pinned npm package, with the build's lock file) with the engine's options and runs
+            ``1+1``; its page marks ``bare:engine-ready`` when the answer arrives. It has a service worker
+            of the same shape as the app's (precache, cache first), holding only what it needs;
+  shipped   the same bare page on the app's own runtime (<dist>/bare-shipped/: the build's
+            python_stdlib.zip, start-up modules compiled): what Pyodide alone costs as Tidewell ships it;
+  app       the app to ``tidewell:first-result`` (a ``blood_gas`` request sent at engine-ready), always
+            started the normal way (``?snapshot=off``; nothing is stored for a snapshot start);
+  snapshot  the app as a visitor gets it: after the first visit the benchmark waits until the service
+            worker has stored the snapshot, so the warm and offline visits start from it (each visit's
+            ``start`` is checked; a series where they did not is reported as a problem).
 Each *series* is one fresh headless Chromium profile and one server, visiting one page in turn:
-  cold     the first visit (nothing cached, no service worker);
+  cold     the first visit (nothing cached, no service worker; the snapshot arm starts normally too);
   warm     the 2nd visit, served by the service worker (the benchmark waits until it controls the page);
-  warm+    (with --warm-plus) the 3rd visit: V8 now also has its compiled code for pyodide.asm.wasm (it
-           keeps a wasm module's code only once the module has been seen twice), the steady state;
-  offline  the server process is stopped, then one more visit (the 3rd or 4th: V8's code cache is warm).
-Series alternate bare, app, app, bare, ... (so drift in the machine's load hits both alike) and are paired
-bare/app by run number; the ratio app / bare is taken pair by pair, then its median.
+  warm+    (with --warm-plus) the 3rd visit. An earlier version of this text said V8 keeps its compiled
+           code for pyodide.asm.wasm from the second sighting on, so this would be the steady state; in the
+           runs measured for issue 18 Chromium kept no compiled WebAssembly code between visits (served by
+           the service worker or by the HTTP cache): warm+ costs what warm costs (docs/performance.md);
+  offline  the server process is stopped, then one more visit.
+Runs rotate the order of the arms (bare, shipped, app, snapshot; then shipped, app, snapshot, bare; ...) so
+drift in the machine's load hits all alike; ratios (snapshot / bare, snapshot / app, ...) are taken run
+by run, then their median.
 
 Throttling (``--rates``, 1 = none): CDP ``Emulation.setCPUThrottlingRate`` on the page target. Chromium
 refuses that command on a worker target ("only supported for pages"), so the engine's dedicated worker
 thread is slowed by the same method Chromium uses for the page (run a slice, hold it for rate - 1 slices):
 the worker is caught paused at its start (Target.setAutoAttach with waitForDebuggerOnStart), its OS thread
 is held and released with ptrace, and only then is it let run. Service-worker and V8's background compile
-threads are not slowed (for either page). Each series ends with a CPU-bound loop timed in the page and in
-the worker, so the table shows how much each was really slowed.
+threads are not slowed (for any page). Each series ends with a CPU-bound loop timed in the page and in
+the worker with the throttling on and off in turn, so the table shows how much each was really slowed.
 
 Times are marks' ``startTime`` (ms after navigation start), so browser launch is not counted.
 A benchmark, not a test: it prints figures (medians, min, max, ratios) and passes no judgement.
@@ -59,7 +68,7 @@ sys.path.insert(0, str(ROOT / "tests" / "browser"))
 from harness import CHROMIUM, Browser, Server, build  # noqa: E402
 
 sys.path.insert(0, str(ROOT))
-from build import cache_dir, fetch_runtime, read_runtime  # noqa: E402
+from build import NODE_RUNTIME, cache_dir, fetch_runtime, read_runtime  # noqa: E402
 
 BARE = Path(__file__).resolve().parent / "bare"
 # An invented teaching gas (not a patient): chronic CO2 retention with an acute rise.
@@ -104,11 +113,34 @@ VISITS = ("cold", "warm", "warm+", "offline")
 PARTS = {
     "worker_created": "worker created",
     "before_start": "worker module loading",
-    "runtime": "loadPyodide",
+    "snapshot_tried": "looking for the snapshot",
+    "snapshot_read": "snapshot read (from start)",
+    "snapshot_checked": "snapshot sha256 checked (from start)",
+    "runtime": "loadPyodide (snapshot: restore)",
     "install": "install tidewell",
     "import": "import tidewell",
 }
-ROUTES = ("unpack", "loadPackage", "micropip")
+ROUTES = ("zip", "unpack", "loadPackage", "micropip")
+ARMS = ("bare", "shipped", "app", "snapshot")
+# (numerator, denominator) of the ratios shown, each taken run by run
+RATIOS = (
+    ("snapshot", "bare"),
+    ("snapshot", "shipped"),
+    ("snapshot", "app"),
+    ("app", "bare"),
+    ("app", "shipped"),
+)
+PAGES = {
+    "bare": ("bare/", "bare"),
+    "shipped": ("bare-shipped/", "bare"),
+    "app": ("?engine-timeout=900000&snapshot=off", "app"),
+    "snapshot": ("?engine-timeout=900000", "app"),
+}
+WAIT_SNAPSHOT = (
+    "const url = new URL('./pyodide/engine.snapshot', location.href).href;"
+    "while (!(await caches.match(url))) await new Promise((r) => setTimeout(r, 100));"
+    "return true;"
+)
 
 
 # -- the DevTools websocket (standard library only) --------------------------------------------------
@@ -416,22 +448,25 @@ class Instrumented:
 
 
 def series(dist: Path, arm: str, rate: float, *, warm_plus: bool, routes: bool) -> dict:
-    """One fresh profile and server; the visits of one page (bare or app). Figures in ms."""
+    """One fresh profile and server; the visits of one page (an arm). Figures in ms."""
     server = Server(dist).start()
     inst = Instrumented(rate)
     browser = inst.browser
     # the app's own start-up watchdog (30 s once a service worker controls the page) is for people, not
     # for a benchmark on a loaded machine: a long one, so a slow start is measured, not failed
-    url = server.url + ("bare/" if arm == "bare" else "?engine-timeout=900000")
-    script, timeout = (BARE_VISIT, 300) if arm == "bare" else (APP_VISIT, 300)
-    args = () if arm == "bare" else (BLOOD_GAS,)
+    path, kind = PAGES[arm]
+    url = server.url + path
+    script, timeout = (BARE_VISIT, 300) if kind == "bare" else (APP_VISIT, 300)
+    args = () if kind == "bare" else (BLOOD_GAS,)
     out: dict = {"arm": arm, "rate": rate}
+    problems = []
     try:
         for visit in VISITS:
             if visit == "warm+" and not warm_plus:
                 continue
             if visit == "offline":
                 server.stop()
+            browser.get("about:blank")
             browser.get(url)
             got = browser.wait_js(script, *args, timeout=timeout)
             if not got["ok"]:
@@ -444,8 +479,15 @@ def series(dist: Path, arm: str, rate: float, *, warm_plus: bool, routes: bool) 
                 out[f"{visit}:{key}"] = value
             if "time_origin" in got["info"]:  # when the page created the worker, on the page's clock
                 out[f"{visit}:worker_created"] = got["info"]["time_origin"] - got["origin"]
+            if "start" in got["info"]:
+                out[f"{visit}:start"] = got["info"]["start"]
+                wanted = "snapshot" if arm == "snapshot" and visit != "cold" else "normal"
+                if got["info"]["start"] != wanted:
+                    problems.append(f"{visit}: started {got['info']['start']} ({got['info']['start_note']})")
             if visit == "cold":
                 browser.wait_controlled(timeout=timeout)
+                if arm == "snapshot":  # stored after the first start, for the next one
+                    browser.wait_js(WAIT_SNAPSHOT, timeout=timeout)
             if visit == "warm+" and routes and arm == "app":
                 for route in ROUTES:
                     browser.get(f"{url}&install={route}")
@@ -458,7 +500,7 @@ def series(dist: Path, arm: str, rate: float, *, warm_plus: bool, routes: bool) 
         if rate > 1:  # the same loop with the throttling on and off in turn: the factor really applied
             factors = inst.check()
             out["factor:page"], out["factor:worker"] = factors.get("page"), factors.get("worker")
-        problems = browser.severe() + inst.problems
+        problems += browser.severe() + inst.problems
         if problems:
             out["problems"] = problems
     finally:
@@ -483,6 +525,12 @@ def with_bare(dist: Path, into: Path) -> Path:
         if name in ("pyodide.mjs", "pyodide.asm.js", "pyodide.asm.wasm", "python_stdlib.zip"):
             (runtime / name).write_bytes(data)
     shutil.copy(dist / "pyodide" / "pyodide-lock.json", runtime / "pyodide-lock.json")
+    # the same page on the runtime the app ships (its compiled standard library)
+    shutil.copytree(BARE, target / "bare-shipped")
+    shipped = target / "bare-shipped" / "pyodide"
+    shipped.mkdir()
+    for name in NODE_RUNTIME:
+        shutil.copy(dist / "pyodide" / name, shipped / name)
     return target
 
 
@@ -491,8 +539,8 @@ def loadavg() -> str:
     return " ".join(path.read_text().split()[:3]) if path.exists() else "unknown"
 
 
-def summarise(pairs: list[tuple[dict, dict]], rate: float) -> dict:
-    """Medians of each arm, and the median of the pair-by-pair ratios app / bare."""
+def summarise(runs: list[dict[str, dict]], rate: float) -> dict:
+    """Medians of each arm, and the medians of the run-by-run ratios (RATIOS)."""
     rows = {}
     keys = [
         *VISITS,
@@ -505,33 +553,43 @@ def summarise(pairs: list[tuple[dict, dict]], rate: float) -> dict:
         "factor:worker",
     ]
     for key in keys:
-        bare = [b[key] for b, a in pairs if b.get(key) is not None]
-        app = [a[key] for b, a in pairs if a.get(key) is not None]
-        ratios = [a[key] / b[key] for b, a in pairs if a.get(key) and b.get(key)]
-        if not app:
-            continue
-        rows[key] = {
-            "bare": statistics.median(bare) if bare else None,
-            "app": statistics.median(app),
-            "app_min": min(app),
-            "app_max": max(app),
-            "ratio": statistics.median(ratios) if ratios and key in VISITS else None,
-            "ratios": [round(r, 3) for r in ratios] if key in VISITS else [],
-            "n": len(app),
+        values = {
+            arm: [run[arm][key] for run in runs if run.get(arm, {}).get(key) is not None] for arm in ARMS
         }
+        if not any(values.values()):
+            continue
+        row: dict = {"n": max(len(v) for v in values.values())}
+        for arm, got in values.items():
+            row[arm] = statistics.median(got) if got else None
+            row[f"{arm}_range"] = [min(got), max(got)] if got else None
+        if key in VISITS:
+            for num, den in RATIOS:
+                ratios = [
+                    run[num][key] / run[den][key]
+                    for run in runs
+                    if run.get(num, {}).get(key) and run.get(den, {}).get(key)
+                ]
+                row[f"{num}/{den}"] = statistics.median(ratios) if ratios else None
+                row[f"{num}/{den}:runs"] = [round(r, 3) for r in ratios]
+        rows[key] = row
     return {"rate": rate, "rows": rows}
 
 
 def show(summary: dict) -> None:
     rate = summary["rate"]
     title = "unthrottled" if rate == 1 else f"CPU throttled {rate:g}x (page by CDP, worker thread held)"
-    print(f"\n{title}; ms after navigation start (bare: 1+1 answered; app: first blood_gas result)")
-    print(f"{'':<30} {'bare':>8} {'app':>8} {'app min-max':>13} {'app/bare':>9}  pair ratios")
+    print(
+        f"\n{title}; ms after navigation start (bare, shipped: 1+1 answered; app, snapshot: first blood_gas)"
+    )
+    ratio_names = [f"{n}/{d}" for n, d in RATIOS]
+    print(
+        f"{'':<42}"
+        + "".join(f"{arm:>9}" for arm in ARMS)
+        + f"{'snapshot min-max':>18}"
+        + "".join(f"{r:>17}" for r in ratio_names)
+    )
     for key, row in summary["rows"].items():
         f = ".2f" if key.startswith("factor:") else ".0f"
-        bare = f"{row['bare']:{f}}" if row["bare"] is not None else "-"
-        ratio = f"{row['ratio']:.3f}" if row["ratio"] is not None else ""
-        spread = f"{row['app_min']:{f}}-{row['app_max']:{f}}"
         visit, _, part = key.partition(":")
         label = {
             "warm:shell": "warm: app shell-ready",
@@ -542,8 +600,17 @@ def show(summary: dict) -> None:
             "factor:page": "factor applied, page",
             "factor:worker": "factor applied, worker",
         }.get(key, key)
-        pairs = " ".join(f"{r:.2f}" for r in row["ratios"])
-        print(f"{label:<30} {bare:>8} {row['app']:>8{f}} {spread:>13} {ratio:>9}  {pairs}")
+        cells = "".join(f"{row[arm]:>9{f}}" if row.get(arm) is not None else f"{'-':>9}" for arm in ARMS)
+        spread = row.get("snapshot_range")
+        spread = f"{spread[0]:{f}}-{spread[1]:{f}}" if spread else ""
+        ratios = "".join(f"{row[r]:>17.3f}" if row.get(r) is not None else f"{'':>17}" for r in ratio_names)
+        print(f"{label:<42}{cells}{spread:>18}{ratios}")
+    for key, row in summary["rows"].items():
+        if key in VISITS:
+            runs = "; ".join(
+                f"{r} " + " ".join(f"{x:.2f}" for x in row.get(f"{r}:runs", [])) for r in ratio_names
+            )
+            print(f"  {key} run ratios: {runs}")
 
 
 def main() -> int:
@@ -555,6 +622,7 @@ def main() -> int:
     parser.add_argument("--dist", type=Path, default=ROOT / "dist")
     parser.add_argument("--routes", action="store_true", help="also time the worker's install routes (app)")
     parser.add_argument("--json", type=Path, help="also write every series and the summaries here")
+    parser.add_argument("--arms", default=",".join(ARMS), help="which pages to run (default: all four)")
     parser.add_argument("--show", type=Path, help="only print the tables of an earlier --json file")
     parser.add_argument(
         "--check-throttle", action="store_true", help="only: the CPU loop with throttling on and off, 5 times"
@@ -571,15 +639,19 @@ def main() -> int:
     build_id = json.loads((args.dist / "build-manifest.json").read_text())["build_id"]
     chromium = subprocess.run([CHROMIUM, "--version"], capture_output=True, text=True).stdout.strip()
     print(f"build {build_id}; {chromium}; {platform.machine()}, {os.cpu_count()} CPUs")
-    print(f"{runs} pair(s) per rate, rates {', '.join(f'{r:g}' for r in rates)}; load average {loadavg()}")
+    print(
+        f"{runs} run(s) of every arm per rate, rates {', '.join(f'{r:g}' for r in rates)}; "
+        f"load average {loadavg()}"
+    )
     everything: dict = {"build_id": build_id, "chromium": chromium, "cpus": os.cpu_count(), "series": []}
     summaries = []
     with tempfile.TemporaryDirectory(prefix="tidewell-bench-") as tmp:
         site = with_bare(args.dist, Path(tmp))
+        arms = [a for a in args.arms.split(",") if a in ARMS]
         for rate in rates:
-            pairs = []
+            runs_done: list[dict[str, dict]] = []
             for i in range(runs):
-                order = ("bare", "app") if i % 2 == 0 else ("app", "bare")
+                order = arms[i % len(arms) :] + arms[: i % len(arms)]
                 got = {}
                 for arm in order:
                     t = time.monotonic()
@@ -590,17 +662,17 @@ def main() -> int:
                     figures = ", ".join(f"{v} {s[v]:.0f}" for v in VISITS if v in s)
                     spin = f"spin page {s['spin:page']:.0f} worker {s['spin:worker'] or 0:.0f}"
                     print(
-                        f"  rate {rate:g} pair {i + 1}/{runs} {arm:<4}: {figures}; {spin} "
+                        f"  rate {rate:g} run {i + 1}/{runs} {arm:<8}: {figures}; {spin} "
                         f"({time.monotonic() - t:.0f} s, load {loadavg()})",
                         flush=True,
                     )
                     for problem in s.get("problems", []):
                         print(f"    ! {problem}")
                     everything["series"].append(s)
-                pairs.append((got["bare"], got["app"]))
-                if args.json:  # after every pair, so a run cut short keeps what it measured
-                    write_json(args.json, everything, [*summaries, summarise(pairs, rate)])
-            summaries.append(summarise(pairs, rate))
+                runs_done.append(got)
+                if args.json:  # after every run, so a run cut short keeps what it measured
+                    write_json(args.json, everything, [*summaries, summarise(runs_done, rate)])
+            summaries.append(summarise(runs_done, rate))
     for summary in summaries:
         show(summary)
     print(f"\n(load average at the end: {loadavg()}; other work on the machine slows every figure)")

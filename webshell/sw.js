@@ -7,6 +7,11 @@
 //   are fetched with cache: "no-cache" (revalidated, so what the page has just downloaded comes back as
 //   a 304 instead of a second copy). Every stored file is then checked against its sha256; a mismatch
 //   (a stale copy from some cache on the way) is fetched again past every cache, then refused.
+// - later: the files of DEFERRED (the engine's memory snapshot, and the wheel only the benchmark's other
+//   install routes use) are not part of the install: a first visit never waits for them. The page posts
+//   "tidewell:store-later" once its engine is ready; then each is fetched, checked against its sha256 and
+//   stored in this build's cache (an install copies them from an older build when their bytes did not
+//   change). An update's new cache starts without the old snapshot, so the old one goes with its cache.
 // - activate: delete the caches of older builds (every "tidewell-*" cache but ours), take control;
 // - fetch: cache first; navigations get ./index.html; anything not precached goes to the network;
 // - a new version waits until the page posts "tidewell:skip-waiting" (the user tapped "Reload").
@@ -15,6 +20,8 @@
 const BUILD_ID = "__BUILD_ID__";
 const CACHE = `tidewell-${BUILD_ID}`;
 const PRECACHE = __PRECACHE__;
+const DEFERRED = __DEFERRED__;
+const EXPECTED = { ...PRECACHE, ...DEFERRED };
 
 // the build's cache, opened once per service-worker start rather than once per request
 let cacheOpened = null;
@@ -25,7 +32,7 @@ const hex = (buffer) => Array.from(new Uint8Array(buffer), (b) => b.toString(16)
 async function matches(cache, url) {
   const stored = await cache.match(url);
   if (!stored) return false;
-  return hex(await crypto.subtle.digest("SHA-256", await stored.arrayBuffer())) === PRECACHE[url];
+  return hex(await crypto.subtle.digest("SHA-256", await stored.arrayBuffer())) === EXPECTED[url];
 }
 
 async function reuseOlderBuilds(cache) {
@@ -40,7 +47,7 @@ async function reuseOlderBuilds(cache) {
       continue; // not a complete older build
     }
     const hashes = new Map(manifest.files.map((f) => [`./${f.path}`, f.sha256]));
-    for (const [url, sha256] of Object.entries(PRECACHE)) {
+    for (const [url, sha256] of Object.entries(EXPECTED)) {
       if (reused.has(url) || hashes.get(url) !== sha256) continue;
       const copy = await old.match(url);
       if (copy) {
@@ -66,6 +73,20 @@ async function precache() {
   } catch (err) {
     await caches.delete(CACHE); // nothing half-stored; the next visit tries again
     throw err;
+  }
+}
+
+// The deferred files, once per service-worker start (each checked; a bad one is dropped, not kept).
+let storing = null;
+async function storeLater() {
+  const cache = await opened();
+  for (const [url, sha256] of Object.entries(DEFERRED)) {
+    if (await matches(cache, url)) continue;
+    const response = await fetch(new Request(url, { cache: "no-cache" }));
+    if (!response.ok) continue;
+    const body = await response.arrayBuffer();
+    if (hex(await crypto.subtle.digest("SHA-256", body)) !== sha256) continue;
+    await cache.put(url, new Response(body, { headers: response.headers }));
   }
 }
 
@@ -102,7 +123,12 @@ self.addEventListener("fetch", (event) => {
 });
 
 self.addEventListener("message", (event) => {
-  if (event.data === "tidewell:skip-waiting") {
+  if (event.data === "tidewell:store-later") {
+    storing ||= storeLater().finally(() => {
+      storing = null;
+    });
+    event.waitUntil(storing.catch(() => {})); // offline now: the next start asks again
+  } else if (event.data === "tidewell:skip-waiting") {
     self.skipWaiting();
   } else if (event.data === "tidewell:build-id" && event.source) {
     event.source.postMessage(`tidewell:build-id:${BUILD_ID}`);

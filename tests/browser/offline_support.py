@@ -68,11 +68,12 @@ def manifest(site: Path) -> dict:
     return json.loads((site / "build-manifest.json").read_text())
 
 
-def precache_list(site: Path) -> dict[str, str]:
-    """url (relative, "./...") -> sha256: the list build.py stamped into the built sw.js."""
+def precache_list(site: Path, name: str = "PRECACHE") -> dict[str, str]:
+    """url (relative, "./...") -> sha256: the list build.py stamped into the built sw.js (``DEFERRED``:
+    the files stored after the engine's first start)."""
     text = (site / "sw.js").read_text()
-    match = re.search(r"^const PRECACHE = (\{.*?^\});", text, re.S | re.M)
-    assert match, "the built sw.js has no PRECACHE object"
+    match = re.search(rf"^const {name} = (\{{.*?^\}});", text, re.S | re.M)
+    assert match, f"the built sw.js has no {name} object"
     return json.loads(match.group(1))
 
 

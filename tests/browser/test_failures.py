@@ -78,10 +78,10 @@ def test_csp_without_wasm_eval_fails_clearly(make_browser, make_server, dist):
 def test_a_corrupted_tidewell_wheel_is_refused(make_browser, make_server, dist, tmp_path):
     site = tmp_path / "site"
     shutil.copytree(dist, site)
-    wheel = next((site / "pyodide").glob("tidewell-*.whl"))
-    data = bytearray(wheel.read_bytes())
-    data[len(data) // 2] ^= 0xFF  # one flipped byte in the middle of the archive
-    wheel.write_bytes(bytes(data))
+    for archive in (site / "pyodide").glob("tidewell-*.*"):  # the zip (default route) and the wheel
+        data = bytearray(archive.read_bytes())
+        data[len(data) // 2] ^= 0xFF  # one flipped byte in the middle of the archive
+        archive.write_bytes(bytes(data))
     server = make_server(site)
     browser = make_browser()
 

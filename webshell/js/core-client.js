@@ -50,9 +50,22 @@ function configuredTimeout() {
 }
 
 function configuredInstall() {
-  // for the benchmark: ?install=micropip or ?install=loadPackage measures the other install routes
+  // for the benchmark: ?install=unpack, micropip or loadPackage measures the other install routes
   const query = new URLSearchParams(self.location.search).get("install");
-  return ["micropip", "loadPackage"].includes(query) ? query : "unpack";
+  return ["unpack", "micropip", "loadPackage"].includes(query) ? query : "zip";
+}
+
+// The engine starts from its snapshot when the offline copy holds it (core-worker.js); ?snapshot=off
+// (benchmark, tests) starts it the normal way.
+const snapshotWanted = () => new URLSearchParams(self.location.search).get("snapshot") !== "off";
+
+// Once an engine is ready without the snapshot, the service worker stores the files kept out of the
+// install (the snapshot among them) for the next start; a first visit never waits for them.
+function storeLater() {
+  if (!navigator.serviceWorker) return;
+  navigator.serviceWorker.ready
+    .then((registration) => registration.active && registration.active.postMessage("tidewell:store-later"))
+    .catch(() => {});
 }
 
 const seconds = (ms) => `${Math.round(ms / 100) / 10} s`;
@@ -82,6 +95,7 @@ class Engine extends EventTarget {
     this.restarts = 0; // automatic restarts after a fault, for the status line and tests
     this.restarting = false;
     this.begun = false;
+    this.snapshotOff = !snapshotWanted(); // after a start with the snapshot stalled: normal starts only
     this.lastFault = "";
     this.faultTimes = [];
     this.requestTimeout = configured("request-timeout", REQUEST_TIMEOUT_MS);
@@ -116,13 +130,28 @@ class Engine extends EventTarget {
       if (this.state === "ready") this.fault("the engine sent a message the page could not read");
       else this.fail("The engine sent a message the page could not read.");
     };
+    const snapshot = !this.snapshotOff;
+    this.snapshotInUse = false; // set when the worker says it is starting from the snapshot
     this.watchdog = setTimeout(() => {
+      if (this.snapshotInUse && !this.snapshotOff) {
+        // the worker's own fallback did not come through (a start from the snapshot wedged the worker):
+        // once more, the normal way, with the same time
+        this.snapshotOff = true;
+        this.attempt -= 1;
+        this.start(text);
+        return;
+      }
       this.fail(
         `The engine did not start within ${Math.round(timeout / 1000)} s. The Python runtime may have ` +
           "failed to load (a slow or broken connection, or a server sending the wrong type for .wasm files).",
       );
     }, timeout);
-    worker.postMessage(JSON.stringify({ type: "init", config: { install: configuredInstall() } }));
+    const config = {
+      install: configuredInstall(),
+      snapshot,
+      snapshotTimeout: configured("snapshot-timeout", 0),
+    };
+    worker.postMessage(JSON.stringify({ type: "init", config }));
   }
 
   terminate() {
@@ -283,6 +312,7 @@ class Engine extends EventTarget {
       return;
     }
     if (message.type === "progress") {
+      if (message.snapshot) this.snapshotInUse = true;
       if (this.state === "loading") this.setState("loading", message.text);
     } else if (message.type === "ready") {
       clearTimeout(this.watchdog);
@@ -297,6 +327,7 @@ class Engine extends EventTarget {
         return;
       }
       this.info = message.info;
+      if (info.start !== "snapshot" && !this.snapshotOff) storeLater();
       if (!this.everReady) performance.mark("tidewell:engine-ready");
       this.everReady = true;
       this.attempt = 0;
@@ -356,6 +387,11 @@ class Engine extends EventTarget {
 
   diagnostics() {
     return this.send({ type: "diagnostics" });
+  }
+
+  // how the engine started ("snapshot" or "normal", and why) and what its Python sees (tests, About)
+  environment() {
+    return this.send({ type: "environment" });
   }
 }
 
