@@ -19,6 +19,7 @@ from __future__ import annotations
 import itertools
 import json
 import math
+import os
 import time
 import warnings
 from functools import cache
@@ -37,6 +38,9 @@ with warnings.catch_warnings():
         pass
 
 ROOT = Path(__file__).resolve().parents[1]
+# subprocesses of the tests (the command line, fresh interpreters) import this checkout's core too, not a copy
+# installed from another clone (pyproject.toml's pythonpath covers this process only)
+os.environ["PYTHONPATH"] = os.pathsep.join(p for p in (str(ROOT / "core"), os.environ.get("PYTHONPATH")) if p)
 CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
 SCHEMA_PATH = ROOT / "schema" / "bridge.schema.json"
 

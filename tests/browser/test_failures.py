@@ -25,6 +25,8 @@ PENDING = (
 def test_watchdog_reports_a_stalled_start_and_retry_recovers(make_browser, make_server, dist):
     server = make_server(dist, stall="pyodide.asm.wasm")  # the runtime download never completes
     browser = make_browser()
+    # the server is restarted below with downloads in flight: Chromium may log the cut fetch of a script
+    browser.allow_console(r"An unknown error occurred when fetching the script")
     # 8 s for the wedged first attempt; the Retry then allows twice that for a real cold start
     browser.get(server.url + "?engine-timeout=8000#convert")
     browser.js(PENDING, REQUEST)
