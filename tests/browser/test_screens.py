@@ -95,8 +95,13 @@ def test_blood_gas_screen_shows_the_core_answer_and_the_unit_toggle_keeps_the_me
     step = next(s for s in expected["steps"] if s["output"] == "hco3_computed")
     assert step["formula"] in how and step["source"] in how and step["label"] in how
     # pictures drawn from the core's arrays
-    pictures = browser.js(
-        "return [...document.querySelectorAll('#gas figure.picture')].map((f) => f.dataset.picture)"
+    # (drawn in the background once numpy has loaded: wait for both, never read them at once)
+    pictures = browser.wait_js(
+        "let p = [];"
+        "while ((p = [...document.querySelectorAll('#gas figure.picture')].map((f) => f.dataset.picture))"
+        "  .length < 2) await new Promise((r) => setTimeout(r, 20));"
+        "return p;",
+        timeout=120,
     )
     assert pictures == ["acidbase", "odc"]
     curve = answer(
