@@ -41,11 +41,11 @@ def shell_format(value: float, decimals) -> str:
     return f"{value:.6g}"
 
 
-def phone(browser) -> None:
-    """A 360 x 640 viewport (the window is sized so that the page itself is 360 x 640)."""
-    browser.driver.set_window_size(*PHONE)
+def phone(browser, size: tuple[int, int] = PHONE) -> None:
+    """A 360 x 640 viewport, or ``size`` (the window is sized so that the page itself is that size)."""
+    browser.driver.set_window_size(*size)
     inner = browser.js("return [innerWidth, innerHeight]")
-    browser.driver.set_window_size(PHONE[0] * 2 - inner[0], PHONE[1] * 2 - inner[1])
+    browser.driver.set_window_size(size[0] * 2 - inner[0], size[1] * 2 - inner[1])
 
 
 def open_screen(browser, url: str, screen: str) -> None:
