@@ -18,6 +18,7 @@ import tempfile
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "tests"))  # compare.py, which screens_support imports
 sys.path.insert(0, str(ROOT / "tests" / "browser"))
 sys.path.insert(0, str(ROOT / "core"))
 

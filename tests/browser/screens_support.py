@@ -185,3 +185,14 @@ def tap(browser, by: str, selector: str) -> None:
     element = browser.driver.find_element(by, selector)
     browser.js("arguments[0].scrollIntoView({block: 'center'})", element)
     element.click()
+
+
+def add_to_course(browser) -> str:
+    """Under the blood-gas report shown: "Add to course" (a new course, the time now); its status line."""
+    tap(browser, By.ID, "add-course-go")
+    return browser.wait_js(
+        "const s = document.querySelector('#add-course-status');"
+        "while (!/^(Added|Not added)/.test(s.textContent)) await new Promise((r) => setTimeout(r, 20));"
+        "return s.textContent;",
+        timeout=20,
+    )

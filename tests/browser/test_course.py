@@ -221,6 +221,8 @@ def test_an_upgrade_from_a_version_1_log_keeps_every_case(browser, server, tmp_p
     assert json.loads(before) == V1_CASES
     phone(browser, PHONE)
     open_screen(browser, server.url, "log")
+    browser.wait_engine()
+    browser.wait_controlled()  # the offline copy stored: nothing of the page's start is still in flight
     assert [i["text"] for i in log_labels(browser, 2)] == ["teaching two", "teaching one"]
     # the app opened it at version 2: the cases are exactly as they were, and the course store is there
     assert json.loads(case_records(browser)) == json.loads(before)

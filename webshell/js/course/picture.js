@@ -8,7 +8,7 @@
 // upright line through both strips, labelled with a short word.
 
 const NS = "http://www.w3.org/2000/svg";
-const W = 340, L = 46, R = 14, TOP = 30, STRIP = 104, GAP = 30, BOTTOM = 34;
+const W = 340, L = 46, R = 14, TOP = 40, STRIP = 104, GAP = 30, BOTTOM = 34;
 const H = TOP + STRIP + GAP + STRIP + BOTTOM;
 
 // short flag words for the events (the table and the handover use the long ones)
@@ -30,7 +30,25 @@ function svg(tag, attrs = {}, text) {
 }
 
 const q = (v) => (v && typeof v === "object" ? v.value : v);
-const short = (v) => String(Number(v.toPrecision(3)));
+const short = (v) => String(Number(v.toFixed(6)));
+
+// axis ticks at round values (1, 2, 2.5 or 5 times a power of ten), at most five: pixels only
+function ticks(lo, hi) {
+  const raw = (hi - lo) / 4;
+  const power = 10 ** Math.floor(Math.log10(raw));
+  const step = [1, 2, 2.5, 5, 10].map((m) => m * power).find((st) => st >= raw);
+  const out = [];
+  for (let v = Math.ceil(lo / step) * step; v <= hi + step * 1e-9; v += step) out.push(v);
+  return out;
+}
+// time ticks at round durations, at most five
+const TIME_STEPS = [10, 15, 30, 60, 120, 180, 240, 360, 480, 720, 1440, 2880];
+function timeTicks(last) {
+  const step = TIME_STEPS.find((st) => last / st <= 4) || Math.ceil(last / 4);
+  const out = [];
+  for (let m = 0; m <= last + 1e-9; m += step) out.push(m);
+  return out;
+}
 
 // the smallest and largest of the values, widened a little so nothing sits on the frame
 function extent(values) {
@@ -50,12 +68,11 @@ export function duration(minutes) {
 function strip(root, top, range, label) {
   const y = (v) => top + STRIP - ((v - range[0]) / (range[1] - range[0])) * STRIP;
   root.append(svg("rect", { x: L, y: top, width: W - L - R, height: STRIP, class: "cv-frame" }));
-  for (let i = 0; i <= 3; i++) {
-    const v = range[0] + ((range[1] - range[0]) * i) / 3;
+  for (const v of ticks(range[0], range[1])) {
     root.append(svg("line", { x1: L - 3, x2: L, y1: y(v), y2: y(v), class: "cv-tick" }));
     root.append(svg("text", { x: L - 5, y: y(v) + 3, class: "cv-num", "text-anchor": "end" }, short(v)));
   }
-  root.append(svg("text", { x: L + 4, y: top - 5, class: "cv-label" }, label));
+  root.append(svg("text", { x: L, y: top - 4, class: "cv-label" }, label));
   return y;
 }
 
@@ -100,10 +117,10 @@ export function coursePicture(response, display) {
 
   // time axis: four ticks, labelled as time since the first gas
   const axisY = top2 + STRIP;
-  for (let i = 0; i <= 3; i++) {
-    const m = (last * i) / 3;
+  for (const m of timeTicks(last)) {
+    const anchor = x(m) > W - R - 24 ? "end" : x(m) < L + 20 ? "start" : "middle";
     root.append(svg("line", { x1: x(m), x2: x(m), y1: axisY, y2: axisY + 3, class: "cv-tick" }));
-    root.append(svg("text", { x: x(m), y: axisY + 13, class: "cv-num", "text-anchor": "middle" }, duration(m)));
+    root.append(svg("text", { x: x(m), y: axisY + 13, class: "cv-num", "text-anchor": anchor }, duration(m)));
   }
   root.append(svg("text", { x: (L + W - R) / 2, y: H - 4, class: "cv-label", "text-anchor": "middle" },
     "time since the first gas"));
@@ -112,9 +129,12 @@ export function coursePicture(response, display) {
   readings.forEach((r, i) => {
     if (!r.events.length) return;
     const ex = x(r.minutes);
-    root.append(svg("line", { x1: ex, x2: ex, y1: TOP - 12, y2: axisY, class: "cv-event", "data-gas": i }));
+    root.append(svg("line", { x1: ex, x2: ex, y1: TOP - 16 - (r.events.length - 1) * 10, y2: axisY, class: "cv-event",
+      "data-gas": i }));
     r.events.forEach((e, k) => {
-      root.append(svg("text", { x: ex + 3, y: TOP - 14 - k * 10, class: "cv-flag", "data-event": e },
+      const right = ex > W - R - 40;
+      root.append(svg("text", { x: right ? ex - 3 : ex + 3, y: TOP - 18 - k * 10, class: "cv-flag", "data-event": e,
+        "text-anchor": right ? "end" : "start" },
         FLAG[e] || e));
     });
   });

@@ -126,10 +126,11 @@ export class CourseScreen {
     this.editor = el("section", { class: "course-editor", "aria-labelledby": "course-gases-title" },
       el("h3", { id: "course-gases-title" }, "Gases and what was changed after each"), this.gases, this.patient,
       el("div", { class: "row-buttons" }, this.remove));
-    s.append(
-      el("p", { class: "warn-text" }, el("strong", {}, "No patient identifiers. "),
-        "Courses stay on this device only, beside the case log, and are exported with it. ", WARNING),
-      this.empty, this.head, this.report, this.editor, this.message);
+    // what changes care comes first: the reading; the warning about labels sits with the label entry and
+    // above the course's own data
+    this.editor.prepend(el("p", { class: "warn-text" }, el("strong", {}, "No patient identifiers. "),
+      "Courses stay on this device only, beside the case log, and are exported with it. ", WARNING));
+    s.append(this.empty, this.head, this.report, this.editor, this.message);
   }
 
   showIfOpen() {
@@ -389,8 +390,8 @@ export class CourseScreen {
       const events = r.events.map((e) => EVENT_TEXT[e] || e).join("; ");
       const row = el("tr", { class: `course-row site-${r.site}`, "data-gas": i },
         el("th", { scope: "row" }, String(i + 1)),
-        el("td", {}, `${when}${dayNote}`, el("br"), el("small", {}, i ? `+${duration(r.minutes)}` : "first"),
-          r.site !== "arterial" ? el("small", {}, ` ${r.site}`) : null),
+        el("td", {}, `${when}${dayNote}`, el("small", {}, i ? `+${duration(r.minutes)}` : "first"),
+          r.site !== "arterial" ? el("small", {}, r.site) : null),
         el("td", { "data-out": "ph" }, num(r.ph, "readings.ph", display)),
         el("td", { "data-out": "pco2" }, num(r.pco2, "readings.pco2", display)),
         el("td", { "data-out": "hco3" }, num(r.hco3, "readings.hco3", display)),
