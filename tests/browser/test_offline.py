@@ -61,6 +61,17 @@ OFFLINE_REQUESTS = [
         },
     },
     {
+        "calc": "course",
+        "inputs": {
+            "samples": [
+                {"time": 0, "inputs": {"ph": 7.25, "pco2": q(78, "mmHg")}, "events": ["niv_started"]},
+                {"time": 90, "inputs": {"ph": 7.31, "pco2": q(68, "mmHg")}},
+            ],
+            "hypercapnia_risk": True,
+        },
+        "options": {"pressure_unit": "kPa"},
+    },
+    {
         "calc": "uncertainty",
         "inputs": {
             "sample": {"ph": 7.24, "pco2": q(9.3, "kPa"), "hco3": q(29.7, "mmol/L")},
