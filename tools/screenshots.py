@@ -1,4 +1,5 @@
-"""PNG screenshots of the main screens, from the real built app in headless Chromium at 360 x 640.
+"""PNG screenshots of the main screens, from the real built app in headless Chromium at 360 x 640 (the
+course screens at 360 x 740).
 
     python3 tools/screenshots.py            # builds dist/ into a temporary directory first
     python3 tools/screenshots.py --dist DIR # an existing build
@@ -10,11 +11,14 @@ The examples shown are Tidewell's invented teaching scenarios, not patients.
 from __future__ import annotations
 
 import argparse
+import csv
+import datetime as dt
 import sys
 import tempfile
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "tests"))  # compare.py, which screens_support imports
 sys.path.insert(0, str(ROOT / "tests" / "browser"))
 sys.path.insert(0, str(ROOT / "core"))
 
@@ -22,7 +26,79 @@ from harness import Browser, Server, build  # noqa: E402
 from screens_support import fill, open_screen, phone, wait_report  # noqa: E402
 from selenium.webdriver.common.by import By  # noqa: E402
 
+from tidewell.coursefile import event_words  # noqa: E402
+
 OUT = ROOT / "docs" / "screenshots"
+EXAMPLES = ROOT / "docs" / "examples"
+# the three invented courses of docs/examples, in the order of the README
+COURSES = (
+    ("course-oxygen", "invented: oxygen turned up, CO2 rose"),
+    ("course-niv-working", "invented: NIV working"),
+    ("course-niv-failing", "invented: NIV failing"),
+)
+# a course given in minutes is placed on an invented night for the screen, which takes date-times
+START = dt.datetime(2026, 12, 4, 1, 0)
+
+
+def course_record(name: str, label: str, n: int) -> dict:
+    """A stored course (js/course/records.js) from docs/examples/NAME.csv: each row's typed fields."""
+    rows = list(csv.DictReader((EXAMPLES / f"{name}.csv").read_text().splitlines()))
+    gases = []
+    for k, row in enumerate(rows):
+        time = row.pop("time")
+        if "T" not in time:
+            time = (START + dt.timedelta(minutes=float(time))).strftime("%Y-%m-%dT%H:%M")
+        events = event_words(row.pop("events", ""))
+        fields = {}
+        for column, text in row.items():
+            if not text:
+                continue
+            key, _, unit = column.partition("[")
+            if unit:
+                fields[key] = [text, unit.rstrip("]")]
+            elif key == "fio2":
+                fields[key] = [text, "fraction"]
+            else:
+                fields[key] = text
+        gases.append({"id": f"gas-{name}-{k}", "time": time, "fields": fields, "events": events})
+    stamp = 1_796_000_000_000 + n
+    return {"id": f"course-{name}", "label": label, "created": stamp, "changed": stamp,
+            "patient": {"hypercapnia_risk": True}, "gases": gases}  # fmt: skip
+
+
+def wait_course(browser, course_id: str) -> None:
+    browser.wait_js(
+        "const r = document.querySelector('#course-report');"
+        "while (document.querySelector('#course-pick').value !== arguments[0] || r.dataset.state !== 'done'"
+        "       || r.dataset.busy) await new Promise((ok) => setTimeout(ok, 50));",
+        course_id,
+        timeout=90,
+    )
+
+
+def course_shots(browser, url: str) -> None:
+    """The three invented courses on the Course screen: what comes first, the table, the picture."""
+    phone(browser, (360, 740))
+    records = [course_record(name, label, n) for n, (name, label) in enumerate(COURSES)]
+    browser.wait_js(
+        "const m = await import(new URL('js/caselog.js', document.baseURI).href);"
+        "for (const c of arguments[0]) await m.putCourse(c);",
+        records,
+    )
+    open_screen(browser, url, "course")
+    for n, ((name, _), record) in enumerate(zip(COURSES, records, strict=True)):
+        browser.js(
+            "const p = document.querySelector('#course-pick'); p.value = arguments[0];"
+            " p.dispatchEvent(new Event('change'));",
+            record["id"],
+        )
+        wait_course(browser, record["id"])
+        scroll_to(browser, "#course-title")
+        shoot(browser, f"{8 + 3 * n:02d}-{name}")
+        scroll_to(browser, "#course-table")
+        shoot(browser, f"{9 + 3 * n:02d}-{name}-table")
+        scroll_to(browser, "#course-report .course-picture")
+        shoot(browser, f"{10 + 3 * n:02d}-{name}-picture")
 
 
 def scroll_to(browser, selector: str) -> None:
@@ -86,6 +162,14 @@ def main() -> int:
             shoot(browser, "05-flight-profile")
             open_screen(browser, server.url, "log")
             shoot(browser, "06-case-log")
+            open_screen(browser, server.url, "gas")
+            phone(browser, (360, 740))
+            browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
+            wait_report(browser, "blood_gas")
+            scroll_to(browser, "#p-blood_gas .save-row")
+            shoot(browser, "17-add-to-course")
+            course_shots(browser, server.url)
+            phone(browser)
             browser.js("localStorage.setItem('tidewell:theme', 'dark');")
             open_screen(browser, server.url, "gas")
             browser.driver.refresh()

@@ -47,7 +47,7 @@ from functools import cache
 from . import units
 from .errors import NOTHING, InputError, InputErrors, is_real
 from .fields import Inputs
-from .report import Report
+from .report import PRESSURE_DECIMALS, Report
 
 #: event words, each meaning the change was made at (just after) the gas that carries it
 EVENTS = (
@@ -559,6 +559,13 @@ class _Course:
     def rate(self, mmhg_per_h: float) -> dict:
         return {"value": units.convert(mmhg_per_h, "mmHg", self.unit), "unit": f"{self.unit}/h"}
 
+    def decimals(self, output: str, **parts: int | None) -> None:
+        """Display decimals of the numbers inside a list or mapping output, by path (``readings.ph``);
+        None: as every pressure of the request's unit."""
+        for part, decimals in parts.items():
+            pressure = PRESSURE_DECIMALS[self.unit]
+            self.r.display[f"{output}.{part}"] = pressure if decimals is None else decimals
+
     def later_in_group(self, g: _Gas) -> list[_Gas]:
         k = self.position[id(g)]
         return [x for x in self.gases[k + 1 :] if x.group == g.group]
@@ -640,6 +647,11 @@ class _Course:
             }
             if g.pco2_target is not None:
                 reading["pco2_target"] = self.r.pressure_value(g.pco2_target)
+                # from the aim down to the reference change below it: lower is what pco2_falling_fast flags
+                reading["pco2_aim_band"] = {
+                    "low": self.r.pressure_value(g.pco2_target * (1 - PCO2_CHANGE)),
+                    "high": self.r.pressure_value(g.pco2_target),
+                }
             if g.spo2_target is not None:
                 reading["spo2_target"] = g.spo2_target
             if g.interpretation:
@@ -647,6 +659,9 @@ class _Course:
             reading["findings"] = sorted(findings, key=lambda f: _ORDER[f["severity"]])
             out.append(reading)
         self.r.put("readings", out)
+        self.r.put("ph_range", {"low": PH_LOW, "high": PH_HIGH})
+        self.decimals("readings", ph=2, pco2=None, hco3=1, pco2_target=None, pco2_aim_band=None)
+        self.r.display["ph_range"] = 2
         self.r.step(
             "Reference change of pH: a smaller change between two gases counts as none",
             "1.96 x sqrt(2) x SD, SD 0.01 (analyser) = 0.028, used as 0.03",
@@ -699,6 +714,7 @@ class _Course:
                 "higher and venous pH lower, with wide limits."
             )
         self.r.put("intervals", out)
+        self.decimals("intervals", ph_change=2, pco2_change=None, pco2_rate=None, hco3_change=1)
 
     def _stretch(self, start: _Gas, end: _Gas) -> dict:
         latest = self.ending.get(id(end))
@@ -722,6 +738,7 @@ class _Course:
         self.response_span = (first, latest, span)
         self.r.put("response", span["verdict"])
         self.r.put("response_span", span)
+        self.decimals("response_span", ph_change=2, pco2_change=None)
         self.r.step(
             f"pH change from the first acidaemic gas ({self.when(first)}) to the latest comparable one",
             "worsening: fell >= 0.03 or latest interval worsening; improving: rose >= 0.03 or pH >= 7.35; "
@@ -776,6 +793,7 @@ class _Course:
             "running": episode.running,
         }
         self.r.put("niv_response", out)
+        self.decimals("niv_response", ph_change=2, pco2_change=None)
         self.r.step(
             f"pH change on NIV from {self.when(ref)} to {self.when(end)}",
             "as for the response, from the gas at the start of NIV (or the first comparable gas on NIV)",

@@ -41,11 +41,11 @@ def shell_format(value: float, decimals) -> str:
     return f"{value:.6g}"
 
 
-def phone(browser) -> None:
-    """A 360 x 640 viewport (the window is sized so that the page itself is 360 x 640)."""
-    browser.driver.set_window_size(*PHONE)
+def phone(browser, size: tuple[int, int] = PHONE) -> None:
+    """A 360 x 640 viewport, or ``size`` (the window is sized so that the page itself is that size)."""
+    browser.driver.set_window_size(*size)
     inner = browser.js("return [innerWidth, innerHeight]")
-    browser.driver.set_window_size(PHONE[0] * 2 - inner[0], PHONE[1] * 2 - inner[1])
+    browser.driver.set_window_size(size[0] * 2 - inner[0], size[1] * 2 - inner[1])
 
 
 def open_screen(browser, url: str, screen: str) -> None:
@@ -185,3 +185,14 @@ def tap(browser, by: str, selector: str) -> None:
     element = browser.driver.find_element(by, selector)
     browser.js("arguments[0].scrollIntoView({block: 'center'})", element)
     element.click()
+
+
+def add_to_course(browser) -> str:
+    """Under the blood-gas report shown: "Add to course" (a new course, the time now); its status line."""
+    tap(browser, By.ID, "add-course-go")
+    return browser.wait_js(
+        "const s = document.querySelector('#add-course-status');"
+        "while (!/^(Added|Not added)/.test(s.textContent)) await new Promise((r) => setTimeout(r, 20));"
+        "return s.textContent;",
+        timeout=20,
+    )

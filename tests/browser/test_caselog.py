@@ -118,7 +118,8 @@ def test_export_import_round_trip_and_bad_import(browser, server, tmp_path):
     save(browser, 'second, with "quotes"')
     assert len(log_items(browser, 2)) == 2
     first = export_json(browser)
-    assert first["format"] == "tidewell-case-log" and first["schema"] == 1 and len(first["cases"]) == 2
+    assert first["format"] == "tidewell-case-log" and first["schema"] == 2 and len(first["cases"]) == 2
+    assert first["courses"] == []  # schema 2: the courses beside the cases
 
     # CSV: one header and one row per case
     csv_text = exported(browser, "log-export-csv", ".csv")

@@ -145,7 +145,7 @@ def forged(base: dict) -> dict[str, tuple[str, str]]:
         "word-unknown": (with_case(lambda c: c["fields"].update(sample="cord")), 'field "sample"'),
         "wrong-format": (json.dumps({**base, "format": "another-log"}), "not a Tidewell case log"),
         "a-list": ("[]", "not a Tidewell case log"),
-        "wrong-schema": (json.dumps({**base, "schema": 2}), "schema 2; this version reads schema 1"),
+        "wrong-schema": (json.dumps({**base, "schema": 3}), "schema 3; this version reads schemas 1 and 2"),
         "schema-as-text": (json.dumps({**base, "schema": "1"}), 'schema "1"'),
         "extra-top-level": (json.dumps(extra_top), 'unknown entry "script"'),
         "oversized-bytes": (text + " " * (6 << 20), "MB; Tidewell imports case logs of up to 5 MB and 5,000"),

@@ -452,6 +452,27 @@ def test_a_venous_falling_fast_finding_names_no_aim():
     assert "towards" not in text and "no PaCO2 aim" in text and "arterial or earlobe" in text
 
 
+@pytest.mark.parametrize("unit", ["mmHg", "kPa"])
+def test_the_aim_band_ends_where_pco2_falling_fast_begins(unit):
+    # The band a screen draws under each gas's aim: from the aim (the blood_gas reading's own) down to the
+    # PCO2 reference change below it (reference_change_value, derived: 8 %), the edge that the test above
+    # finds pco2_falling_fast firing at. pH range 7.35-7.45: the normal range the directions are judged by
+    # (common practice).
+    aim = aim_of({**RETAINER, "hypercapnia_risk": True})
+    response = ok([{"time": 0, "inputs": RETAINER}, gas(60, 7.30, 70)], unit, hypercapnia_risk=True)
+    factor = 1 if unit == "mmHg" else 1 / MMHG_PER_KPA
+    band = response["outputs"]["readings"][0]["pco2_aim_band"]
+    assert band["high"] == response["outputs"]["readings"][0]["pco2_target"]
+    assert math.isclose(band["high"]["value"], aim * factor, rel_tol=1e-9)
+    assert math.isclose(band["low"]["value"], aim * (1 - PCO2_STEP) * factor, rel_tol=1e-9)
+    assert band["low"]["unit"] == unit
+    assert response["outputs"]["ph_range"] == {"low": 7.35, "high": 7.45}
+    decimals = 2 if unit == "kPa" else 1  # every pressure of the unit (the report's own convention)
+    display = response["display"]
+    assert display["readings.ph"] == 2 and display["readings.hco3"] == 1
+    assert display["readings.pco2"] == display["intervals.pco2_rate"] == decimals
+
+
 @pytest.mark.parametrize(("ph", "severity"), [(7.46, "urgent"), (7.45, None)])
 def test_pco2_falling_fast_when_alkalaemic_with_a_high_hco3(ph, severity):
     aim = aim_of({**RETAINER, "hypercapnia_risk": True})

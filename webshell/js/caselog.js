@@ -11,14 +11,20 @@
 // export (clock.now(), which a test may freeze). Export, import, export gives the file back exactly.
 
 import { PANELS } from "./forms/specs.js";
+import { courseProblem, useFieldCheck } from "./course/records.js";
 
 export const FORMAT = "tidewell-case-log";
-export const SCHEMA = 1;
+// schema 2 adds "courses" (serial gases of one patient, js/course/); a schema 1 file still imports
+export const SCHEMA = 2;
+const SCHEMAS = new Set([1, 2]);
 export const MAX_IMPORT_BYTES = 5 * 1024 * 1024;
 export const MAX_IMPORT_CASES = 5_000;
 export const LIMIT_TEXT = "Tidewell imports case logs of up to 5 MB and 5,000 cases";
 const DB = "tidewell";
 const STORE = "cases";
+export const COURSES = "courses";
+// version 1: "cases"; version 2 adds "courses" and leaves every case as it was
+const DB_VERSION = 2;
 // each calculation that can be saved, and the screen that shows it (index.html)
 const SCREEN_OF = {
   blood_gas: "gas",
@@ -29,7 +35,7 @@ const SCREEN_OF = {
 };
 const CALCS = new Set(Object.keys(SCREEN_OF));
 const CASE_KEYS = new Set(["id", "time", "label", "screen", "calc", "fields", "pressure_unit", "outputs", "summary", "engine"]);
-const FILE_KEYS = new Set(["format", "schema", "exported", "cases"]);
+const FILE_KEYS = new Set(["format", "schema", "exported", "cases", "courses"]);
 const MAX_TIME = 8.64e15; // the last moment a JavaScript Date can hold
 const MAX_DEPTH = 8;
 
@@ -38,8 +44,13 @@ export const clock = { now: () => new Date() };
 
 function open() {
   return new Promise((resolve, reject) => {
-    const req = indexedDB.open(DB, 1);
-    req.onupgradeneeded = () => req.result.createObjectStore(STORE, { keyPath: "id" });
+    const req = indexedDB.open(DB, DB_VERSION);
+    // each store is created only where it is missing: an upgrade from version 1 keeps every case
+    req.onupgradeneeded = () => {
+      const db = req.result;
+      if (!db.objectStoreNames.contains(STORE)) db.createObjectStore(STORE, { keyPath: "id" });
+      if (!db.objectStoreNames.contains(COURSES)) db.createObjectStore(COURSES, { keyPath: "id" });
+    };
     req.onsuccess = () => {
       const db = req.result;
       db.onversionchange = () => db.close(); // another tab deletes all data: let it
@@ -52,12 +63,12 @@ function open() {
 
 // One transaction. It settles only when the browser has committed it (complete) or thrown it away
 // (abort): then nothing of it was kept, and the promise rejects with the first error seen.
-async function run(mode, work) {
+async function run(mode, work, stores = STORE) {
   const db = await open();
   return new Promise((resolve, reject) => {
     let tx;
     try {
-      tx = db.transaction(STORE, mode);
+      tx = db.transaction(stores, mode);
     } catch (err) {
       db.close();
       reject(err);
@@ -85,7 +96,8 @@ async function run(mode, work) {
       reject(failure || tx.error || new DOMException("The browser cancelled the write.", "AbortError"));
     };
     try {
-      Promise.resolve(work(tx.objectStore(STORE))).then((r) => {
+      const store = Array.isArray(stores) ? tx : tx.objectStore(stores);
+      Promise.resolve(work(store)).then((r) => {
         result = r;
       }, abort);
     } catch (err) {
@@ -108,7 +120,17 @@ export async function list() {
 export const count = () => run("readonly", (store) => asPromise(store.count()));
 export const put = (record) => run("readwrite", (store) => void store.put(record));
 export const remove = (id) => run("readwrite", (store) => void store.delete(id));
-export const clear = () => run("readwrite", (store) => void store.clear());
+export const clear = () =>
+  run("readwrite", (tx) => { tx.objectStore(STORE).clear(); tx.objectStore(COURSES).clear(); }, [STORE, COURSES]);
+
+// courses (js/course/): one record each, newest change first
+export async function listCourses() {
+  const all = await run("readonly", (store) => asPromise(store.getAll()), COURSES);
+  return all.sort((a, b) => b.changed - a.changed || (a.id < b.id ? -1 : 1));
+}
+export const getCourse = (id) => run("readonly", (store) => asPromise(store.get(id)), COURSES);
+export const putCourse = (record) => run("readwrite", (store) => void store.put(record), COURSES);
+export const removeCourse = (id) => run("readwrite", (store) => void store.delete(id), COURSES);
 
 // "Delete all data": empty the store, then delete the database itself.
 export async function deleteAll() {
@@ -133,14 +155,15 @@ export function writeProblem(err) {
   return `the browser refused to store it (${name}${detail})`;
 }
 
-export function newId() {
+export function newId(kind = "case") {
   const bytes = crypto.getRandomValues(new Uint8Array(8));
-  return `case-${Date.now().toString(36)}-${Array.from(bytes, (b) => b.toString(16).padStart(2, "0")).join("")}`;
+  return `${kind}-${Date.now().toString(36)}-${Array.from(bytes, (b) => b.toString(16).padStart(2, "0")).join("")}`;
 }
 
 export async function exportJson() {
   const cases = await list();
-  return JSON.stringify({ format: FORMAT, schema: SCHEMA, exported: clock.now().toISOString(), cases }, null, 1);
+  const courses = await listCourses();
+  return JSON.stringify({ format: FORMAT, schema: SCHEMA, exported: clock.now().toISOString(), cases, courses }, null, 1);
 }
 
 const csvCell = (v) => {
@@ -163,7 +186,7 @@ export async function exportCsv() {
 const TYPED = /^[^<>&"'`\u0000-\u001f\u007f]{1,40}$/;
 const isObject = (v) => v !== null && typeof v === "object" && !Array.isArray(v);
 
-function fieldProblem(calc, name, value) {
+export function fieldProblem(calc, name, value) {
   const spec = PANELS[calc].fields.find((f) => f[0] === name);
   if (!spec) return `"${name.slice(0, 40)}" is not a field of ${calc}`;
   const kind = spec[2];
@@ -178,6 +201,8 @@ function fieldProblem(calc, name, value) {
   }
   return `field "${name}" is not a typed value`;
 }
+
+useFieldCheck(fieldProblem);
 
 // stored outputs: plain JSON, at most MAX_DEPTH deep, keys of letters, digits and underscores
 function outputsProblem(value, depth = 0) {
@@ -253,8 +278,8 @@ export async function importJson(text) {
   if (!isObject(data) || data.format !== FORMAT) {
     throw new Error(`Nothing was imported: the file is not a Tidewell case log (format should be "${FORMAT}").`);
   }
-  if (data.schema !== SCHEMA) {
-    throw new Error(`Nothing was imported: the file uses schema ${JSON.stringify(data.schema)}; this version reads schema ${SCHEMA}.`);
+  if (!SCHEMAS.has(data.schema)) {
+    throw new Error(`Nothing was imported: the file uses schema ${JSON.stringify(data.schema)}; this version reads schemas 1 and ${SCHEMA}.`);
   }
   const extra = Object.keys(data).find((k) => !FILE_KEYS.has(k));
   if (extra !== undefined) throw new Error(`Nothing was imported: the file has an unknown entry "${extra.slice(0, 40)}".`);
@@ -272,16 +297,36 @@ export async function importJson(text) {
     if (ids.has(c.id)) throw new Error(`Nothing was imported: case ${i + 1} repeats the id ${c.id}.`);
     ids.add(c.id);
   }
-  let replaced = 0;
+  // schema 1 has no courses; in schema 2 the list is required
+  const courses = data.schema === 1 ? [] : data.courses;
+  if (data.schema === 1 && data.courses !== undefined) {
+    throw new Error('Nothing was imported: a schema 1 file has no "courses".');
+  }
+  if (!Array.isArray(courses)) throw new Error('Nothing was imported: the file has no list of "courses".');
+  if (courses.length > MAX_IMPORT_CASES) {
+    throw new Error(`Nothing was imported: the file holds ${courses.length.toLocaleString("en")} courses; ${LIMIT_TEXT}.`);
+  }
+  const courseIds = new Set();
+  for (const [i, c] of courses.entries()) {
+    const why = courseProblem(c, i);
+    if (why) throw new Error(`Nothing was imported: ${why}.`);
+    if (courseIds.has(c.id)) throw new Error(`Nothing was imported: course ${i + 1} repeats the id ${c.id}.`);
+    courseIds.add(c.id);
+  }
+  let replaced;
   try {
-    replaced = await run("readwrite", (store) =>
-      asPromise(store.getAllKeys()).then((keys) => {
-        for (const c of data.cases) store.put(c);
-        return keys.filter((k) => ids.has(k)).length;
-      }),
-    );
+    // cases and courses in one transaction: all of the file is kept, or none of it
+    replaced = await run("readwrite", (tx) => {
+      const cs = tx.objectStore(STORE);
+      const co = tx.objectStore(COURSES);
+      return Promise.all([asPromise(cs.getAllKeys()), asPromise(co.getAllKeys())]).then(([keys, courseKeys]) => {
+        for (const c of data.cases) cs.put(c);
+        for (const c of courses) co.put(c);
+        return [keys.filter((k) => ids.has(k)).length, courseKeys.filter((k) => courseIds.has(k)).length];
+      });
+    }, [STORE, COURSES]);
   } catch (err) {
     throw new Error(`Nothing was imported: ${writeProblem(err)}.`);
   }
-  return { imported: data.cases.length, replaced };
+  return { imported: data.cases.length, replaced: replaced[0], courses: courses.length, replacedCourses: replaced[1] };
 }

@@ -11,11 +11,12 @@ import { PANELS, EXAMPLES } from "./forms/specs.js";
 import { Panel } from "./forms/panel.js";
 import { settings, localeUnit } from "./settings.js";
 import * as caselog from "./caselog.js";
+import { CourseScreen, mountAddToCourse } from "./course/screen.js";
 
 // -- screens --
 // The screen shown when the address names none: the blood gas, the one most people open Tidewell for.
 const DEFAULT_SCREEN = "gas";
-const screens = { gas: null, breathing: null, flight: null, log: null, convert: convertScreen };
+const screens = { gas: null, breathing: null, flight: null, course: null, log: null, convert: convertScreen };
 convertScreen.mount($("#convert"), engine);
 
 // sources and cautions seen in this session, for the About part of Settings
@@ -78,6 +79,10 @@ for (const host of document.querySelectorAll(".panel-host")) {
   }
 }
 
+// -- the course of a patient (js/course/): its screen, and "Add to course" under the blood-gas report --
+const courseScreen = new CourseScreen($("#course"), engine, { seen });
+mountAddToCourse(panels.blood_gas, courseScreen);
+
 function showScreen() {
   const wanted = location.hash.slice(1);
   const name = wanted in screens ? wanted : DEFAULT_SCREEN;
@@ -88,6 +93,7 @@ function showScreen() {
   }
   document.documentElement.dataset.screen = name;
   if (name === "log") renderLog();
+  if (name === "course") courseScreen.show();
 }
 window.addEventListener("hashchange", showScreen);
 
@@ -255,9 +261,12 @@ $("#log-import").addEventListener("change", async (event) => {
     } catch {
       throw new Error("Nothing was imported: the file could not be read.");
     }
-    const { imported, replaced } = await caselog.importJson(text);
+    const { imported, replaced, courses, replacedCourses } = await caselog.importJson(text);
     const also = replaced ? ` (${replaced} of them replaced a saved case with the same id)` : "";
-    say(`Imported ${imported} case(s)${also}.`);
+    const withCourses = courses
+      ? ` and ${courses} course(s)${replacedCourses ? ` (${replacedCourses} replaced a saved course with the same id)` : ""}`
+      : "";
+    say(`Imported ${imported} case(s)${also}${withCourses}.`);
     document.documentElement.dataset.importState = "done";
   } catch (err) {
     say(`${err.message} The case log is unchanged.`);
