@@ -142,8 +142,7 @@ def _read_quantity(
         inputs.fail(key, raw, f"{label} has no value", code="missing")
         return None
     if not is_real(value) or not math.isfinite(float(value)):
-        hint = "Send numbers as JSON numbers, not text." if isinstance(value, str) else ""
-        inputs.fail(key, raw, f"{label} must be a finite number", hint, code="not_a_number")
+        inputs.fail(key, raw, f"{label} must be a number", code="not_a_number")
         return None
     number = float(value)
     given_unit = raw.get("unit")
@@ -175,6 +174,7 @@ def _read_quantity(
                 f"{label} {_g(number)} {given_unit} is outside the accepted range ({span})",
                 f"Did you mean {_g(number)} {other}?",
                 code="implausible",
+                suggest={"value": number, "unit": other},
             )
             return None
     inputs.fail(

@@ -125,14 +125,18 @@ class Report:
             self.put(name, value, decimals=decimals)
         self.step(label, formula, value, source, output=name, pressure=pressure, unit=unit, inputs=inputs)
 
-    def finding(self, code: str, severity: str, text: str) -> None:
+    def finding(self, code: str, severity: str, text: str, suggest: list[dict] | None = None) -> None:
+        """A finding; ``suggest``: values to use instead (``{"field", "value", "unit"}``), one tap each."""
         if not _CODE.match(code):
             raise ValueError(f"finding code {code!r} is not snake_case")
         if severity not in SEVERITIES:
             raise ValueError(f"finding severity {severity!r}")
         if any(f["code"] == code for f in self.findings):
             return
-        self.findings.append({"code": code, "severity": severity, "text": text})
+        entry = {"code": code, "severity": severity, "text": text}
+        if suggest:
+            entry["suggest"] = suggest
+        self.findings.append(entry)
 
     def caution(self, text: str) -> None:
         if text not in self.cautions:

@@ -476,18 +476,18 @@ def test_bad_rows_go_to_the_error_column_and_the_batch_goes_on():
     )
     table, audit = _audit(text)
     assert audit.errors[0] == [] and audit.errors[6] == []
-    assert any("Write a plain number" in m for m in audit.errors[2]), audit.errors[2]
-    assert any("inputs.pco2" in m and "Did you mean 5.3 kPa?" in m for m in audit.errors[3]), audit.errors[3]
-    assert any("inputs.fio2" in m and "Did you mean 28 %" in m for m in audit.errors[4]), audit.errors[4]
+    assert any("must be a number (entered: 'seven')" in m for m in audit.errors[2]), audit.errors[2]
+    assert any("PCO2 5.3 mmHg" in m and "Did you mean 5.3 kPa?" in m for m in audit.errors[3]), audit.errors
+    assert any("FiO2" in m and "Did you mean 28 %" in m for m in audit.errors[4]), audit.errors[4]
     assert any("Did you mean 'arterial'?" in m for m in audit.errors[5]), audit.errors[5]
-    assert any("hypercapnia_risk must be true or false" in m for m in audit.errors[5]), audit.errors[5]
+    assert any("Hypercapnia risk must be true or false" in m for m in audit.errors[5]), audit.errors[5]
     assert audit.errors[1], "a row whose cells shifted is refused, not silently misread"
     assert_rows_equal_scalar(table, audit)
     out = io.StringIO()
     batch.write_csv(table, audit, out)
     written = list(csv.reader(io.StringIO(out.getvalue())))
     assert written[0][: len(table.header)] == table.header and written[0][-1] == "error"
-    assert written[1][-1] == "" and "inputs.pco2" in written[4][-1]
+    assert written[1][-1] == "" and "PCO2 5.3 mmHg" in written[4][-1]
     assert written[3][0] == "text" and written[3][len(table.header)] == ""  # no outputs on a refused row
 
 
