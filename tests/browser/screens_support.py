@@ -12,6 +12,8 @@ from selenium.webdriver.support.ui import Select
 from tidewell import bridge
 
 PHONE = (360, 640)
+#: the phone the entry and report tests use (360 x 740: a common phone with the browser's bars shown)
+TALL_PHONE = (360, 740)
 
 
 def core(request: dict) -> dict:
@@ -25,11 +27,11 @@ def shell_format(value: float, decimals) -> str:
     return f"{value:.6g}"
 
 
-def phone(browser) -> None:
-    """A 360 x 640 viewport (the window is sized so that the page itself is 360 x 640)."""
-    browser.driver.set_window_size(*PHONE)
+def phone(browser, size: tuple[int, int] = PHONE) -> None:
+    """A viewport of ``size`` (360 x 640 by default; the window is sized so that the page itself is)."""
+    browser.driver.set_window_size(*size)
     inner = browser.js("return [innerWidth, innerHeight]")
-    browser.driver.set_window_size(PHONE[0] * 2 - inner[0], PHONE[1] * 2 - inner[1])
+    browser.driver.set_window_size(size[0] * 2 - inner[0], size[1] * 2 - inner[1])
 
 
 def open_screen(browser, url: str, screen: str) -> None:
@@ -66,13 +68,15 @@ def fill(browser, calc: str, fields: dict) -> None:
             element.send_keys(text)
 
 
-def wait_report(browser, calc: str, timeout: float = 90) -> str:
-    """Wait until panel ``calc`` shows a reading or errors (and no newer calculation is pending)."""
+def wait_report(browser, calc: str, timeout: float = 90, states=("done", "error")) -> str:
+    """Wait until panel ``calc`` shows one of ``states`` (a reading or errors by default; ``ask`` when a
+    value can be read two ways) and no newer calculation is pending."""
     return browser.wait_js(
         "const r = document.querySelector('#p-' + arguments[0] + '-report');"
         "for (;;) { await new Promise((ok) => setTimeout(ok, 50));"
-        "  if (['done', 'error'].includes(r.dataset.state) && !r.dataset.busy) return r.dataset.state; }",
+        "  if (arguments[1].includes(r.dataset.state) && !r.dataset.busy) return r.dataset.state; }",
         calc,
+        list(states),
         timeout=timeout,
     )
 

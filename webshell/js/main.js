@@ -11,6 +11,7 @@ import { PANELS, EXAMPLES } from "./forms/specs.js";
 import { Panel } from "./forms/panel.js";
 import { settings, localeUnit } from "./settings.js";
 import * as caselog from "./caselog.js";
+import { clearDraft, readDraft, writeDraft } from "./forms/entry.js";
 
 // -- screens --
 // The screen shown when the address names none: the blood gas, the one most people open Tidewell for.
@@ -41,7 +42,15 @@ function extraRequests(name, request) {
 }
 
 const panels = {};
-const hooks = { seen, extraRequests, save: saveCase };
+// the form is kept as a local draft as it is typed (a reload, pull to refresh or a killed tab loses nothing)
+let draftTimer = 0;
+let restoring = true;
+function changed() {
+  if (restoring) return;
+  clearTimeout(draftTimer);
+  draftTimer = setTimeout(() => writeDraft(panels), 300);
+}
+const hooks = { seen, extraRequests, save: saveCase, changed };
 for (const host of document.querySelectorAll(".panel-host")) {
   const screen = host.closest(".screen").id;
   const examples = EXAMPLES.filter((e) => e.screen === screen);
@@ -77,6 +86,50 @@ for (const host of document.querySelectorAll(".panel-host")) {
     panels[name].screen = screen;
   }
 }
+
+// the draft of the last visit, until New patient
+const draft = readDraft();
+for (const [name, values] of Object.entries(draft)) if (panels[name]) panels[name].fill(values);
+restoring = false;
+document.documentElement.dataset.draft = Object.keys(draft).length ? "restored" : "none";
+
+// -- New patient: every field of every screen emptied at once; a short undo instead of a confirm dialog --
+const UNDO_MS = 15000;
+let undoTimer = 0;
+let emptied = null;
+function newPatient() {
+  const snapshot = {};
+  for (const [name, panel] of Object.entries(panels)) {
+    const label = panel.saveRow ? panel.saveRow.querySelector(".case-label").value : "";
+    snapshot[name] = { values: panel.values(), label };
+    panel.clear();
+  }
+  for (const note of document.querySelectorAll(".example-note")) note.textContent = "";
+  clearTimeout(draftTimer);
+  clearDraft();
+  emptied = snapshot;
+  $("#new-patient-text").textContent = "Every field emptied for a new patient.";
+  $("#new-patient-undo").hidden = false;
+  $("#new-patient-note").hidden = false;
+  document.documentElement.dataset.newPatient = "emptied";
+  clearTimeout(undoTimer);
+  undoTimer = setTimeout(() => { $("#new-patient-note").hidden = true; emptied = null; }, UNDO_MS);
+}
+function undoNewPatient() {
+  if (!emptied) return;
+  for (const [name, { values, label }] of Object.entries(emptied)) {
+    if (Object.keys(values).length) panels[name].fill(values);
+    if (label && panels[name].saveRow) panels[name].saveRow.querySelector(".case-label").value = label;
+  }
+  emptied = null;
+  clearTimeout(undoTimer);
+  $("#new-patient-text").textContent = "The previous values are back.";
+  $("#new-patient-undo").hidden = true;
+  document.documentElement.dataset.newPatient = "undone";
+  undoTimer = setTimeout(() => { $("#new-patient-note").hidden = true; }, 4000);
+}
+for (const b of document.querySelectorAll('[data-action="new-patient"]')) b.addEventListener("click", newPatient);
+$("#new-patient-undo").addEventListener("click", undoNewPatient);
 
 function showScreen() {
   const wanted = location.hash.slice(1);

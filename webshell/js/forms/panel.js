@@ -4,6 +4,7 @@
 import { formatValue, parseNumber } from "../format.js";
 import { settings } from "../settings.js";
 import { drawPictures, shareBar } from "./pictures.js";
+import { HOLD_MS, commaReadings } from "./entry.js";
 
 const el = (tag, props = {}, ...children) => {
   const node = document.createElement(tag);
@@ -99,15 +100,20 @@ export class Panel {
     this.root.append(el("h3", { id: `${id}-title` }, spec.title));
     this.form = el("form", { class: "calc-form", autocomplete: "off", noValidate: true });
     const main = el("div", { class: "fields" });
-    const more = el("details", { class: "more" }, el("summary", {}, "More inputs (optional)"));
+    this.moreSummary = el("summary", {}, "More inputs (optional)");
+    const more = el("details", { class: "more" }, this.moreSummary);
+    this.more = more;
     const moreFields = el("div", { class: "fields" });
     more.append(moreFields);
     for (const field of spec.fields) (field[3] ? moreFields : main).append(this.makeField(...field));
     this.form.append(main, more);
     this.form.addEventListener("submit", (e) => e.preventDefault());
-    this.form.addEventListener("input", () => this.soon());
+    this.lastTyped = 0;
+    this.form.addEventListener("input", () => { this.lastTyped = performance.now(); this.soon(); });
     // text fields recompute on input; "change" only for selectors and tick boxes (a blur is no edit)
     this.form.addEventListener("change", (e) => { if (e.target.type !== "text") this.soon(); });
+    // leaving a field shows the notes held back while it was being typed
+    this.form.addEventListener("focusout", () => setTimeout(() => this.releaseHeld(), 0));
 
     this.report = el("div", { class: "report", id: `${id}-report`, "data-state": "idle", "aria-live": "polite" });
     this.status = el("span", { class: "muted", role: "status" });
@@ -174,6 +180,11 @@ export class Panel {
       box.append(el("label", { for: fid }, text), row);
     }
     box.append(el("p", { class: "field-error", id: `${fid}-error`, role: "alert" }));
+    // a question instead of a guess ("8,000"), and a "did you mean" to apply with one tap
+    entry.ask = el("div", { class: "ask", "data-ask": name, hidden: true });
+    entry.offer = el("div", { class: "offer", hidden: true });
+    box.append(entry.ask, entry.offer);
+    entry.label = text;
     this.inputs[name] = entry;
     return box;
   }
@@ -191,6 +202,57 @@ export class Panel {
     return out;
   }
 
+  // how many optional inputs hold a value: said on the collapsed "More inputs" so none is forgotten
+  updateMore() {
+    const v = this.values();
+    const n = this.spec.fields.filter((f) => f[3] && v[f[0]] !== undefined).length;
+    this.moreSummary.textContent = n ? `More inputs (${n} set)` : "More inputs (optional)";
+    this.more.dataset.set = String(n);
+  }
+
+  // empty every field (New patient): no value, no note, no answer, nothing in flight drawn later
+  clear() {
+    this.sequence++;
+    clearTimeout(this.timer);
+    clearTimeout(this.sureTimer);
+    clearTimeout(this.holdTimer);
+    for (const entry of Object.values(this.inputs)) {
+      if (entry.check) entry.check.checked = false;
+      else if (entry.select) entry.select.value = "";
+      else {
+        entry.text.value = "";
+        if (entry.unit) entry.unit.value = entry.kind === "P" ? settings.pressureUnit : entry.unit.options[0].value;
+      }
+    }
+    this.more.open = false;
+    this.clearErrors();
+    this.showAsks([]);
+    this.last = null;
+    this.sure = null;
+    this.renderIdle();
+    delete this.report.dataset.busy;
+    if (this.saveRow) {
+      this.saveRow.hidden = true;
+      this.saveRow.querySelector(".case-label").value = "";
+    }
+    this.status.textContent = "";
+    this.updateMore();
+  }
+
+  // the typed text and unit of one field, as a "did you mean" offers them: {value, unit?}
+  apply(name, suggestion) {
+    const entry = this.inputs[name];
+    if (!entry || !entry.text) return;
+    entry.text.value = String(suggestion.value);
+    if (entry.unit) {
+      let unit = suggestion.unit;
+      if (entry.kind === "fio2" && (unit === undefined || unit === "1")) unit = "fraction";
+      if (unit && [...entry.unit.options].some((o) => o.value === unit)) entry.unit.value = unit;
+    }
+    if (this.hooks.changed) this.hooks.changed(this);
+    this.calculate();
+  }
+
   fill(values) {
     for (const [name, entry] of Object.entries(this.inputs)) {
       const v = values[name];
@@ -204,6 +266,8 @@ export class Panel {
     }
     const optional = this.spec.fields.some((f) => f[3] && values[f[0]] !== undefined);
     this.form.querySelector("details.more").open = optional;
+    this.updateMore();
+    if (this.hooks.changed) this.hooks.changed(this);
     this.calculate();
   }
 
@@ -232,6 +296,52 @@ export class Panel {
     clearTimeout(this.timer);
     clearTimeout(this.sureTimer); // an edit cancels the how-sure run that was about to start
     this.timer = setTimeout(() => this.calculate(), 250);
+    this.updateMore();
+    if (this.hooks.changed) this.hooks.changed(this);
+  }
+
+  // "8,000": which reading? Each ambiguous field shows the question and one button per reading.
+  showAsks(asks) {
+    const asked = new Map(asks);
+    for (const [name, entry] of Object.entries(this.inputs)) {
+      if (!entry.ask) continue;
+      const readings = asked.get(name);
+      entry.ask.hidden = !readings;
+      if (!readings) { entry.ask.replaceChildren(); continue; }
+      const unit = entry.unit && entry.unit.value !== "fraction" ? ` ${unitWord(entry.unit.value)}` : "";
+      const typed = entry.text.value.trim();
+      const buttons = readings.map((r) => {
+        const b = el("button", { type: "button", class: "use", "data-reading": r }, `${r}${unit}`);
+        b.addEventListener("click", () => this.apply(name, { value: r, unit: entry.unit && entry.unit.value }));
+        return b;
+      });
+      entry.ask.replaceChildren(el("p", {}, `"${typed}" can be read two ways. Which did you mean?`), ...buttons);
+    }
+  }
+
+  // a field's notes are held back while the user is still typing in it (see HOLD_MS)
+  holding(name) {
+    const box = this.form.querySelector(`[data-input="${CSS.escape(name)}"]`);
+    return Boolean(box && box.contains(document.activeElement) && performance.now() - this.lastTyped < HOLD_MS);
+  }
+
+  releaseHeld() {
+    const held = [...this.form.querySelectorAll(".field-error[data-held]")];
+    const still = held.filter((p) => this.holding(p.closest("[data-input]").dataset.input));
+    for (const p of held) {
+      if (still.includes(p)) continue;
+      delete p.dataset.held;
+      p.hidden = false;
+      const box = p.closest("[data-input]");
+      box.querySelector("input, select").setAttribute("aria-invalid", "true");
+      box.querySelector(".offer").hidden = !box.querySelector(".offer").childElementCount;
+    }
+    const none = this.report.querySelector(".report-none");
+    if (none && !still.length) none.textContent = "No reading yet: see the notes at the fields.";
+    if (still.length) {
+      clearTimeout(this.holdTimer);
+      this.holdTimer = setTimeout(() => this.releaseHeld(), HOLD_MS - (performance.now() - this.lastTyped) + 20);
+    }
   }
 
   renderIdle() {
@@ -241,7 +351,13 @@ export class Panel {
   }
 
   clearErrors() {
-    for (const p of this.form.querySelectorAll(".field-error")) p.textContent = "";
+    for (const p of this.form.querySelectorAll(".field-error")) {
+      p.textContent = "";
+      p.hidden = false;
+      delete p.dataset.held;
+      delete p.dataset.code;
+    }
+    for (const o of this.form.querySelectorAll(".offer")) { o.replaceChildren(); o.hidden = true; }
     for (const i of this.form.querySelectorAll("[aria-invalid]")) i.removeAttribute("aria-invalid");
   }
 
@@ -250,6 +366,25 @@ export class Panel {
     clearTimeout(this.sureTimer);
     const mine = ++this.sequence;
     this.report.dataset.busy = "1";
+
+    // a comma before exactly three digits is never guessed: ask, and send nothing until answered
+    const asks = [];
+    for (const [name, entry] of Object.entries(this.inputs)) {
+      const readings = entry.text && commaReadings(entry.text.value);
+      if (readings) asks.push([name, readings]);
+    }
+    this.showAsks(asks);
+    if (asks.length) {
+      this.clearErrors();
+      this.last = null;
+      if (this.saveRow) this.saveRow.hidden = true;
+      const names = asks.map(([n]) => this.inputs[n].label).join(", ");
+      this.report.dataset.state = "ask";
+      this.report.replaceChildren(el("p", { class: "report-ask" },
+        `No reading yet: ${names} can be read two ways. Tap the value you meant at the field.`));
+      delete this.report.dataset.busy;
+      return;
+    }
 
     if (!this.hasRequired()) {
       this.clearErrors();
@@ -401,28 +536,71 @@ export class Panel {
           const p = box.querySelector(".field-error");
           p.textContent = p.textContent ? `${p.textContent} ${error.message}` : error.message;
           p.dataset.code = error.code;
-          const input = box.querySelector("input, select");
-          input.setAttribute("aria-invalid", "true");
+          const offer = box.querySelector(".offer");
+          if (error.suggest && typeof error.suggest.value === "number" && this.inputs[name].text) {
+            const b = el("button", { type: "button", class: "use", "data-action": "use-suggestion" },
+              `Use ${suggestionText(error.suggest, this.inputs[name])}`);
+            b.addEventListener("click", () => this.apply(name, error.suggest));
+            offer.replaceChildren(b);
+          }
+          if (this.holding(name)) {
+            // still being typed: say nothing yet (released on a pause or when the field is left)
+            p.hidden = true;
+            p.dataset.held = "1";
+            offer.hidden = true;
+          } else {
+            box.querySelector("input, select").setAttribute("aria-invalid", "true");
+            offer.hidden = !offer.childElementCount;
+          }
           const details = box.closest("details");
           if (details) details.open = true;
         } else {
           loose.append(el("li", { "data-code": error.code }, error.message));
         }
       }
-      out.push(el("p", { class: "report-none" }, "No reading yet: see the notes at the fields."));
+      const held = this.form.querySelector(".field-error[data-held]");
+      out.push(el("p", { class: "report-none" }, held && !loose.childElementCount
+        ? "No reading yet: finish the value you are typing."
+        : "No reading yet: see the notes at the fields."));
       if (loose.childElementCount) out.push(loose);
       this.report.dataset.state = "error";
       this.report.replaceChildren(...out);
+      if (held) {
+        clearTimeout(this.holdTimer);
+        this.holdTimer = setTimeout(() => this.releaseHeld(), HOLD_MS - (performance.now() - this.lastTyped) + 20);
+      }
       return;
     }
     this.last = { request, response };
     this.hooks.seen(response);
     const display = response.display || {};
 
+    // 0. a likely slip (a unit mix-up) leads the report, with its value to use in one tap
+    const offered = response.findings.filter((f) => Array.isArray(f.suggest) && f.suggest.length);
+    if (offered.length) {
+      const lead = el("section", { class: "check-first", "aria-label": "Check first" });
+      for (const f of offered) {
+        const row = el("div", { class: "row-buttons" });
+        for (const s of f.suggest) {
+          const name = String(s.field || "").replace(/^inputs\./, "");
+          const entry = this.inputs[name];
+          if (!entry || !entry.text) continue;
+          const b = el("button", { type: "button", class: "use", "data-action": "use-suggestion", "data-field": name },
+            `Use ${suggestionText(s, entry)}`);
+          b.addEventListener("click", () => this.apply(name, s));
+          row.append(b);
+        }
+        lead.append(el("p", { "data-code": f.code }, el("strong", {}, "Check first: "), f.text), row);
+      }
+      out.push(lead);
+    }
+
     // 1. the summary, to copy into the notes
-    const summaryText = (response.summary || []).join(" ");
+    const usedLine = usedText(request, this.inputs);
+    const summaryText = [...(response.summary || []), usedLine].join(" ");
     const summary = el("section", { class: "summary", "aria-label": "Summary" });
     for (const sentence of response.summary || []) summary.append(el("p", {}, sentence));
+    summary.append(el("p", { class: "used", "data-used": "" }, usedLine));
     const tools = el("div", { class: "row-buttons" });
     const copy = el("button", { type: "button", class: "copy" }, "Copy summary");
     const status = this.status;
@@ -457,6 +635,7 @@ export class Panel {
     if (response.findings.length) {
       const list = el("ul", { class: "findings", "aria-label": "Findings" });
       for (const f of response.findings) {
+        if (offered.includes(f)) continue; // already leading the report
         const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
         list.append(el("li", { class: `finding ${cls}`, "data-code": f.code, "data-severity": f.severity },
           el("span", { class: "sev-mark", "aria-hidden": "true" }),
@@ -516,6 +695,29 @@ export class Panel {
     this.report.dataset.state = "done";
     this.report.replaceChildren(...out);
   }
+}
+
+// units as a clinician writes them
+const UNIT_WORDS = { degC: "°C", degF: "°F", fraction: "", 1: "" };
+export const unitWord = (unit) => (unit in UNIT_WORDS ? UNIT_WORDS[unit] : unit);
+
+function suggestionText(s, entry) {
+  const unit = s.unit !== undefined ? s.unit : entry && entry.unit ? entry.unit.value : "";
+  const word = unitWord(unit);
+  return word ? `${s.value} ${word}` : String(s.value);
+}
+
+// "From: pH 7.28, PCO2 9.1 kPa, ...": every input the report used, with its unit, as sent
+function usedText(request, inputs) {
+  const parts = [];
+  for (const [name, v] of Object.entries(request.inputs)) {
+    const label = inputs[name] ? inputs[name].label : name;
+    if (v === true) parts.push(label);
+    else if (v && typeof v === "object") parts.push(`${label} ${v.value}${unitWord(v.unit) === "%" ? "" : " "}${unitWord(v.unit)}`);
+    else if (typeof v === "string" && inputs[name] && inputs[name].select) parts.push(`${label}: ${v}`);
+    else parts.push(`${label} ${v}`);
+  }
+  return `From: ${parts.join(", ")}.`;
 }
 
 function stepView(s, decimals) {
