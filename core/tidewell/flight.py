@@ -391,8 +391,7 @@ def _alt_text(metres: float, unit: str) -> str:
 
 
 def _p(report: Report, mmhg: float) -> str:
-    q = report.pressure_value(mmhg)
-    return f"{q['value']:.2f} kPa" if q["unit"] == "kPa" else f"{q['value']:.1f} mmHg"
+    return report.pressure_text(mmhg)
 
 
 def _alt_quantity(metres: float, unit: str) -> dict:

@@ -1201,9 +1201,7 @@ class _Work:
     # -- helpers ---------------------------------------------------------------------------------------------
     def p(self, mmhg: float) -> str:
         """A pressure in the user's unit, as text."""
-        unit = self.r.pressure_unit
-        value = units.convert(mmhg, "mmHg", unit)
-        return f"{value:.2f} kPa" if unit == "kPa" else f"{value:.1f} mmHg"
+        return self.r.pressure_text(mmhg)
 
     def codes(self) -> list[str]:
         return [d["code"] for d in self.disorders]

@@ -213,7 +213,7 @@ def test_probe_reads_and_converts(probe):
     assert response["outputs"]["fio2"] == pytest.approx(0.40)
     response = probe({"pco2": {"value": 45, "unit": "mmHg"}}, pressure_unit="kPa")
     assert response["outputs"]["pco2"] == {"value": pytest.approx(5.9995, abs=1e-4), "unit": "kPa"}
-    assert response["display"]["pco2"] == 2
+    assert response["display"]["pco2"] == 1  # kPa to one decimal (docs/bridge.md, display)
 
 
 @pytest.mark.parametrize(

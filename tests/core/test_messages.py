@@ -143,3 +143,57 @@ def test_the_command_line_prints_the_same_words(capsys):
     err = capsys.readouterr().err
     assert status == 2
     assert "(1.07 to 33.3 kPa)" in err and not PROGRAMMER_SPEAK.search(err), err
+
+
+# -- the report's words: settings as a ventilator takes them, one pressure unit, degrees as °C ----------
+
+
+def vent(**inputs) -> dict:
+    base = {"rr": 18, "vt": {"value": 450, "unit": "mL"}, "pco2": {"value": 7.5, "unit": "kPa"}}
+    request = {"calc": "ventilation", "inputs": {**base, **inputs}, "options": {"pressure_unit": "kPa"}}
+    return handle_obj(request)
+
+
+@pytest.mark.parametrize(
+    ("x", "step", "expected"), [(22.5, 1, 23), (22.49, 1, 22), (495, 10, 500), (494.9, 10, 490)]
+)
+def test_settings_round_halves_up_to_what_a_ventilator_takes(x, step, expected):
+    from tidewell.breathing import _whole
+
+    # common practice: a rate in whole breaths per minute, a tidal volume to 10 mL
+    assert _whole(x, step) == expected
+
+
+@pytest.mark.parametrize("target_kpa", [6.0, 5.5, 6.5])
+def test_breathing_leads_with_the_settings_asked_for(target_kpa):
+    from decimal import ROUND_HALF_UP, Decimal
+
+    r = vent(target_pco2={"value": target_kpa, "unit": "kPa"})
+    assert r["ok"], r
+    exact = r["outputs"]["to_target"]
+    # to_target_pco2 (the exact values, checked against the source in test_breathing.py) rounded here
+    rr = int(Decimal(exact["rr_at_same_vt"]).quantize(Decimal(1), rounding=ROUND_HALF_UP))
+    vt = int(Decimal(exact["vt_at_same_rr"]["value"] / 10).quantize(Decimal(1), rounding=ROUND_HALF_UP)) * 10
+    settings = {"rr": {"value": rr, "unit": "/min"}, "vt": {"value": vt, "unit": "mL"}}
+    assert r["outputs"]["settings"] == settings
+    first = r["summary"][0]
+    assert first.startswith(f"To reach PaCO2 {target_kpa:.1f} kPa: rate {rr}/min at VT 450 mL, or VT {vt} mL")
+    # the split by mechanism from an estimated VCO2 comes after, and says it is rough
+    assert any("rough split" in s for s in r["summary"][1:])
+
+
+def test_sentences_use_the_chosen_unit_to_clinical_precision_and_degrees_as_celsius():
+    r = gas(temperature={"value": 38, "unit": "degC"}, po2={"value": 8, "unit": "kPa"})
+    assert r["ok"], r
+    text = " ".join(r["summary"] + [f["text"] for f in r["findings"]] + r["cautions"])
+    assert "degC" not in text and "°C" in text
+    assert "PCO2 6.0 kPa" in r["summary"][0], r["summary"][0]
+    assert r["display"]["pco2_target"] == 1
+    alv = handle_obj(
+        {
+            "calc": "alveolar_gas",
+            "inputs": {"fio2": 0.4, "pco2": {"value": 6, "unit": "kPa"}},
+            "options": {"pressure_unit": "kPa"},
+        }
+    )
+    assert "mmHg" not in alv["summary"][0] and " kPa" in alv["summary"][0], alv["summary"]
