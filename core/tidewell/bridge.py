@@ -40,6 +40,7 @@ CALCULATIONS: dict[str, str] = {
     "altitude_profile": "tidewell.flight:altitude_profile",
     "oxygen_supply": "tidewell.flight:oxygen_supply",
     "uncertainty": "tidewell.sureness:uncertainty",
+    "acid_base_map": "tidewell.bands:acid_base_map",
 }
 
 PRESSURE_UNITS = ("mmHg", "kPa")

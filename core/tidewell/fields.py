@@ -362,6 +362,8 @@ class Inputs:
             if key not in self.read and key not in known:
                 close = difflib.get_close_matches(str(key), names, n=1, cutoff=0.6)
                 hint = f"Did you mean '{close[0]}'?" if close else "Accepted: " + ", ".join(names)
+                if not names:
+                    hint = "This calculation takes no inputs."
                 self.errors.append(
                     InputError(
                         self.field(str(key)),

@@ -1110,6 +1110,16 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
             "bts2011_inflight_threshold",
             pressure=True,
         )
+        if f.target_po2 is not None:
+            # the user's own lowest acceptable PaO2 (the line the picture draws when it is given)
+            report.computed(
+                "po2_target",
+                f.target_po2,
+                "Line on the plot: the lowest acceptable PaO2 entered",
+                "as entered",
+                "bts2011_inflight_threshold",
+                pressure=True,
+            )
     _altitude_outputs(
         report,
         "cabin_altitude",
