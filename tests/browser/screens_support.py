@@ -48,7 +48,9 @@ def fill(browser, calc: str, fields: dict) -> None:
         box = d.find_element(By.CSS_SELECTOR, f'#p-{calc} [data-input="{name}"]')
         details = box.find_elements(By.XPATH, "ancestor::details")
         if details and not details[0].get_attribute("open"):
-            details[0].find_element(By.TAG_NAME, "summary").click()
+            summary = details[0].find_element(By.TAG_NAME, "summary")
+            browser.js("arguments[0].scrollIntoView({block: 'center'})", summary)  # clear of the bottom bar
+            summary.click()
         fid = f"p-{calc}-{name}"
         if value is True:
             box_input = d.find_element(By.ID, fid)
@@ -79,6 +81,18 @@ def wait_report(browser, calc: str, timeout: float = 90, states=("done", "error"
         list(states),
         timeout=timeout,
     )
+
+
+# The "ward exacerbation" example's inputs as the shell sends them (an invented scenario, not a patient)
+WARD_COPD_INPUTS = {
+    "ph": 7.28,
+    "pco2": {"value": 9.1, "unit": "kPa"},
+    "po2": {"value": 7.2, "unit": "kPa"},
+    "hco3": {"value": 31, "unit": "mmol/L"},
+    "fio2": {"value": 28, "unit": "%"},
+    "hypercapnia_risk": True,
+    "age": 71,
+}
 
 
 # An invented retrieval journey (not a patient): the flight screen's "retrieval" example, and a small

@@ -64,10 +64,10 @@ def test_no_serious_or_critical_violations(browser, server, axe_source):
     assert wait_report(browser, "blood_gas") == "done"
     found = {}
     for theme in ["light", "dark"]:
-        browser.driver.find_element(By.CSS_SELECTOR, '.screens-nav a[data-screen="convert"]').click()
+        browser.driver.find_element(By.CSS_SELECTOR, 'a[data-screen="settings"]').click()
         tap(browser, By.ID, f"theme-{theme}")
-        for screen in ["gas", "breathing", "flight", "log", "convert"]:
-            browser.driver.find_element(By.CSS_SELECTOR, f'.screens-nav a[data-screen="{screen}"]').click()
+        for screen in ["gas", "breathing", "flight", "log", "convert", "settings"]:
+            browser.driver.find_element(By.CSS_SELECTOR, f'a[data-screen="{screen}"]').click()
             bad = audit(browser, axe_source)
             if bad:
                 found[(theme, screen)] = bad

@@ -81,7 +81,7 @@ def test_a_comma_before_three_digits_is_asked_about_never_guessed(browser, serve
             "options": {"pressure_unit": "mmHg"},
         }
     )
-    shown = browser.js("return document.querySelector('#p-altitude-report .summary').innerText")
+    shown = browser.js("return document.querySelector('#p-altitude-report .summary').textContent")
     assert expected["summary"][0] in shown
     # the same question for "1,500" m and "2,000" psi; a decimal comma with two digits is no question
     fill(browser, "oxygen_supply", {"cylinder_pressure": ("2,000", "psi")})

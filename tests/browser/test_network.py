@@ -135,7 +135,7 @@ def _convert(browser, value: str, source: str, target: str, substance: str = "")
 
 
 def _go(browser, screen: str) -> None:
-    browser.driver.find_element(By.CSS_SELECTOR, f'.screens-nav a[data-screen="{screen}"]').click()
+    browser.driver.find_element(By.CSS_SELECTOR, f'a[data-screen="{screen}"]').click()
     browser.wait_js(
         "while (document.documentElement.dataset.screen !== arguments[0])"
         "  await new Promise((r) => setTimeout(r, 20));",
@@ -190,6 +190,7 @@ def full_session(browser) -> list[str]:
     _go(browser, "convert")
     _convert(browser, "12.1", "kPa", "mmHg")
     _convert(browser, "180", "mg/dL", "mmol/L", "glucose")
+    _go(browser, "settings")
     for radio in ("unit-mmhg", "unit-kpa", "theme-dark", "theme-light", "theme-auto"):
         tap(browser, By.ID, radio)
     assert browser.js("return document.documentElement.dataset.theme") in ("light", "dark")

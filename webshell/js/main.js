@@ -16,7 +16,7 @@ import { clearDraft, readDraft, writeDraft } from "./forms/entry.js";
 // -- screens --
 // The screen shown when the address names none: the blood gas, the one most people open Tidewell for.
 const DEFAULT_SCREEN = "gas";
-const screens = { gas: null, breathing: null, flight: null, log: null, convert: convertScreen };
+const screens = { gas: null, breathing: null, flight: null, log: null, convert: convertScreen, settings: null };
 convertScreen.mount($("#convert"), engine);
 
 // sources and cautions seen in this session, for the About part of Settings
@@ -34,8 +34,11 @@ function seen(response) {
 function extraRequests(name, request) {
   const pick = (keys) => Object.fromEntries(keys.filter((k) => k in request.inputs).map((k) => [k, request.inputs[k]]));
   if (name === "blood_gas") {
+    // the acid-base plane in the unit the PCO2 was typed in, so the sample always sits on it
+    const unit = request.inputs.pco2 && request.inputs.pco2.unit;
     return [{ calc: "oxygen_dissociation_curve", inputs: pick(["ph", "pco2", "po2", "temperature", "base_excess"]),
-      options: request.options }];
+      options: request.options },
+    { calc: "acid_base_map", options: { pressure_unit: unit === "kPa" || unit === "mmHg" ? unit : request.options.pressure_unit } }];
   }
   if (name === "altitude") return [{ ...request, calc: "altitude_profile" }];
   return [];
@@ -135,7 +138,7 @@ function showScreen() {
   const wanted = location.hash.slice(1);
   const name = wanted in screens ? wanted : DEFAULT_SCREEN;
   for (const section of document.querySelectorAll("#screens > .screen")) section.hidden = section.id !== name;
-  for (const link of document.querySelectorAll(".screens-nav a")) {
+  for (const link of document.querySelectorAll(".screens-nav a, .bar-settings")) {
     if (link.dataset.screen === name) link.setAttribute("aria-current", "page");
     else link.removeAttribute("aria-current");
   }
@@ -160,7 +163,7 @@ function say(text) {
 }
 
 async function saveCase(panel, label, status) {
-  if (!panel.last) return;
+  if (!panel.last) return false;
   const record = {
     id: caselog.newId(), time: Date.now(), label: label.slice(0, 200), screen: panel.screen, calc: panel.name,
     fields: panel.values(), pressure_unit: panel.last.request.options.pressure_unit,
@@ -171,10 +174,30 @@ async function saveCase(panel, label, status) {
     await caselog.put(record);
     status.textContent = "Saved to the case log on this device.";
     if (navigator.storage && navigator.storage.persist) navigator.storage.persist().then(showPersist, () => {});
+    return true;
   } catch (err) {
     // a full disk or refused storage is said, never swallowed; the values stay in the form
     status.textContent = `Not saved: ${caselog.writeProblem(err)}. Your values are kept in the form.`;
+    return false;
   }
+}
+
+// a deleted case can be put back with one tap (no confirm dialog for a single case)
+function offerUndoDelete(record) {
+  const undo = document.createElement("button");
+  undo.type = "button";
+  undo.id = "log-undo";
+  undo.textContent = "Undo";
+  undo.addEventListener("click", async () => {
+    try {
+      await caselog.put(record);
+      say("Case restored.");
+    } catch (err) {
+      say(`Not restored: ${caselog.writeProblem(err)}.`);
+    }
+    renderLog();
+  });
+  $("#log-message").replaceChildren(`Case "${record.label || "(no label)"}" deleted. `, undo);
 }
 
 function showPersist(granted) {
@@ -226,7 +249,7 @@ async function renderLog() {
     del.addEventListener("click", async () => {
       try {
         await caselog.remove(c.id);
-        say("Case deleted.");
+        offerUndoDelete(c);
       } catch (err) {
         say(`Not deleted: ${caselog.writeProblem(err)}.`);
       }
@@ -330,19 +353,20 @@ function renderEngine() {
   let text;
   if (state === "ready") {
     const info = engine.info;
-    text =
-      `Engine: ready (tidewell ${info.engine}, Python ${info.python}, Pyodide ${info.pyodide}; ` +
-      `started in ${(info.timings_ms.total / 1000).toFixed(1)} s).`;
+    // plain words here; the versions are in the About line at the foot of the page
+    text = "Engine: ready. Every calculation runs on this device.";
+    $("#engine-text").title = `tidewell ${info.engine}, Python ${info.python}, Pyodide ${info.pyodide}; ` +
+      `started in ${(info.timings_ms.total / 1000).toFixed(1)} s`;
     if (engine.restarts) {
       const times = engine.restarts === 1 ? "once" : `${engine.restarts} times`;
-      text += ` Restarted ${times} after a fault (last: ${engine.lastFault}).`;
+      text += ` It restarted ${times} after a problem (${engine.lastFault}).`;
     }
   } else if (state === "failed") {
     text = `Engine: failed. ${engine.failure}`;
   } else if (engine.restarting) {
     text = `Engine: restarting (${engine.lastFault}). Your values are kept; results follow when it is back.`;
   } else {
-    text = `Engine: loading (${engine.progress || "starting"}). The form below already takes values.`;
+    text = `Engine: getting ready (${(engine.progress || "starting").toLowerCase()}). You can type values now.`;
   }
   $("#engine-text").textContent = text;
 }
@@ -365,6 +389,8 @@ fetch("./build-manifest.json")
 
 // -- iOS: storage is deleted after 7 days unused unless installed to the Home Screen --
 const ios = /iPhone|iPad|iPod/.test(navigator.userAgent) || (navigator.platform === "MacIntel" && navigator.maxTouchPoints > 1);
+// the note is shown on iPhone and iPad only (css: html[data-ios]); elsewhere it does not apply
+if (ios) document.documentElement.dataset.ios = "1";
 if (ios && !navigator.standalone) $("#ios-note").classList.add("ios-note-urgent");
 if (navigator.standalone) $("#ios-note").hidden = true;
 

@@ -51,3 +51,18 @@ export function clearDraft() {
     // nothing kept, nothing to clear
   }
 }
+
+// A case label that looks like it identifies someone: a soft warning, never a refusal (the label is free
+// text, and a false alarm must not stop a save). Dates, long numbers, titles and "First Last" names.
+const LOOKS_LIKE = [
+  [/\b\d{1,2}\s?[/.-]\s?\d{1,2}\s?[/.-]\s?\d{2,4}\b|\b(19|20)\d{2}-\d{2}-\d{2}\b|\b(dob|d\.o\.b|born|date of birth)\b/i, "a date"],
+  [/\b(mrn|nhs|hospital number|record|urn|chi)\b|\b[a-z]{0,3}\d{6,}\b|\b\d{3}\s\d{3}\s\d{4}\b/i, "a record number"],
+  [/\b(mr|mrs|ms|miss|dr|mx)\.?\s+[a-z]|\b[A-Z][a-z]+\s[A-Z][a-z]+\b|\bname\b/, "a name"],
+];
+
+export function identifierWarning(label) {
+  const found = LOOKS_LIKE.filter(([re]) => re.test(label)).map(([, what]) => what);
+  if (!found.length) return "";
+  return `This label may contain ${found.join(" and ")}. Cases must identify nobody: use something like ` +
+    `"bay 3, 02:10, second gas". You can still save.`;
+}

@@ -4,7 +4,8 @@
 import { formatValue, parseNumber } from "../format.js";
 import { settings } from "../settings.js";
 import { drawPictures, shareBar } from "./pictures.js";
-import { HOLD_MS, commaReadings } from "./entry.js";
+import { HOLD_MS, commaReadings, identifierWarning } from "./entry.js";
+import { outputLabel, unitWord, valueWord } from "./labels.js";
 
 const el = (tag, props = {}, ...children) => {
   const node = document.createElement(tag);
@@ -24,31 +25,28 @@ const SEVERITY = {
   info: ["For the record", "sev-info"],
 };
 
-const words = (text) => String(text).replaceAll("_", " ");
-const LABELS = {
-  ph_status: "pH reading", hco3: "HCO3", hco3_computed: "HCO3 from pH and PCO2", standard_base_excess: "Standard base excess",
-  expected_hco3: "Expected HCO3", expected_pco2: "Expected PCO2", pco2_target: "PaCO2 to aim for",
-  pao2_alveolar: "Alveolar PO2", a_a_gradient: "A-a gradient", a_a_expected_upper: "A-a upper limit for age",
-  a_over_A: "a/A ratio", pf_ratio: "P/F ratio", spo2_target: "SpO2 target (%)", pio2: "Inspired PO2",
-  pb: "Barometric pressure", minute_ventilation: "Minute ventilation", alveolar_ventilation: "Alveolar ventilation",
-  vd_vt: "Dead-space fraction (VD/VT)", vco2: "CO2 production", to_target: "To reach the target",
-  predicted_body_weight: "Predicted body weight", vt_per_kg_pbw: "Tidal volume per kg", fio2_equivalent:
-  "FiO2 that keeps today's alveolar PO2", po2_predicted: "Predicted PaO2 at altitude", max_altitude: "Highest safe altitude",
-  available_litres: "Oxygen available", required_litres: "Oxygen needed", minutes_available: "Time the oxygen lasts",
-  sufficient: "Enough oxygen?", anion_gap: "Anion gap", anion_gap_corrected: "Anion gap (albumin-corrected)",
-};
-const label = (path) => {
-  const parts = path.split(".");
-  return [LABELS[parts[0]] || words(parts[0]), ...parts.slice(1).map(words)].join(" › ");
-};
+// the general caution said once for the whole app (the footer), never again in each report
+const ONCE = /^Decision support only\b/;
+
+function findingList(findings, name) {
+  const list = el("ul", { class: "findings", "aria-label": name });
+  for (const f of findings) {
+    const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
+    list.append(el("li", { class: `finding ${cls}`, "data-code": f.code, "data-severity": f.severity },
+      el("span", { class: "sev-mark", "aria-hidden": "true" }),
+      el("strong", { class: "sev-word" }, `${word}: `), f.text));
+  }
+  return list;
+}
 
 function quantityText(value, decimals) {
   if (value && typeof value === "object" && "value" in value && "unit" in value && typeof value.value === "number") {
-    return `${formatValue(value.value, decimals)} ${value.unit}`;
+    const unit = unitWord(value.unit);
+    return unit ? `${formatValue(value.value, decimals)} ${unit}` : formatValue(value.value, decimals);
   }
   if (typeof value === "number") return formatValue(value, decimals);
   if (typeof value === "boolean") return value ? "yes" : "no";
-  return words(value);
+  return valueWord(value);
 }
 
 // outputs -> [path, shown text, raw value] rows; lists of numbers (curves) are drawn, not listed
@@ -57,7 +55,7 @@ export function flatten(name, value, decimals) {
   if (Array.isArray(value)) {
     if (value.every((v) => v && typeof v === "object" && "code" in v)) {
       const text = value.length === 0 ? "none" : value.map((d) =>
-        [words(d.code), d.role && `(${words(d.role)}${d.chronicity ? `, ${words(d.chronicity)}` : ""})`]
+        [valueWord(d.code), d.role && `(${valueWord(d.role)}${d.chronicity ? `, ${valueWord(d.chronicity)}` : ""})`]
           .filter(Boolean).join(" ")).join("; ");
       return [[name, text, text]];
     }
@@ -69,7 +67,7 @@ export function flatten(name, value, decimals) {
   if (typeof value === "object") {
     if ("low" in value && "high" in value && Object.keys(value).length === 2) {
       const low = value.low, high = value.high;
-      const unit = typeof low === "object" ? ` ${low.unit}` : "";
+      const unit = typeof low === "object" ? ` ${unitWord(low.unit)}` : "";
       const num = (v) => formatValue(typeof v === "object" ? v.value : v, decimals);
       return [[name, `${num(low)} to ${num(high)}${unit}`, `${num(low)}..${num(high)}`]];
     }
@@ -106,7 +104,9 @@ export class Panel {
     const moreFields = el("div", { class: "fields" });
     more.append(moreFields);
     for (const field of spec.fields) (field[3] ? moreFields : main).append(this.makeField(...field));
-    this.form.append(main, more);
+    // once a reading is ready, its headline shows here too, next to the values being typed
+    this.near = el("p", { class: "near-headline", hidden: true });
+    this.form.append(main, this.near, more);
     this.form.addEventListener("submit", (e) => e.preventDefault());
     this.lastTyped = 0;
     this.form.addEventListener("input", () => { this.lastTyped = performance.now(); this.soon(); });
@@ -116,18 +116,35 @@ export class Panel {
     this.form.addEventListener("focusout", () => setTimeout(() => this.releaseHeld(), 0));
 
     this.report = el("div", { class: "report", id: `${id}-report`, "data-state": "idle", "aria-live": "polite" });
-    this.status = el("span", { class: "muted", role: "status" });
+    this.status = el("span", { class: "muted", "aria-live": "polite" }); // Copied, Copy refused
     this.root.append(this.form, this.report);
     if (spec.save) {
       const lid = `${id}-label`;
       const labelInput = el("input", { type: "text", id: lid, class: "case-label", maxLength: 200,
         placeholder: "e.g. bay 3, second gas", "aria-describedby": `${lid}-hint` });
       const save = el("button", { type: "button", class: "save", id: `${id}-save` }, "Save to case log");
-      save.addEventListener("click", () => this.hooks.save(this, labelInput.value, this.status));
+      this.saveButton = save;
+      this.saveStatus = el("p", { class: "save-status muted", role: "status" });
+      // a soft warning (saving still works): the label looks like a name, a date or a record number
+      const warn = el("p", { class: "label-warning", id: `${lid}-warn`, "aria-live": "polite" });
+      labelInput.addEventListener("input", () => {
+        warn.textContent = identifierWarning(labelInput.value);
+        this.resetSave();
+      });
+      // one save per change: the button says "Saved" and waits for the next change (a double tap saves once)
+      save.addEventListener("click", async () => {
+        if (save.disabled) return;
+        save.disabled = true;
+        const saved = await this.hooks.save(this, labelInput.value, this.saveStatus);
+        if (saved) {
+          save.textContent = "Saved";
+          save.dataset.saved = "1";
+        } else save.disabled = false;
+      });
       this.saveRow = el("div", { class: "save-row", hidden: true },
         el("label", { for: lid }, "Case label"),
         el("p", { class: "hint", id: `${lid}-hint` }, "No names, dates of birth or record numbers."),
-        el("div", { class: "entry" }, labelInput, save));
+        el("div", { class: "entry" }, labelInput, save), warn, this.saveStatus);
       this.root.append(this.saveRow);
     }
     host.append(this.root);
@@ -171,7 +188,7 @@ export class Panel {
       else if (Array.isArray(kind)) units = kind;
       if (units) {
         const select = el("select", { id: `${fid}-unit`, "aria-label": `${text} unit`, class: "unit" });
-        for (const u of units) select.append(new Option(u, u));
+        for (const u of units) select.append(new Option(unitWord(u) || u, u));
         if (kind === "P") select.value = settings.pressureUnit;
         if (units.length === 1) select.disabled = true;
         row.append(select);
@@ -200,6 +217,15 @@ export class Panel {
       }
     }
     return out;
+  }
+
+  // a change (a value, the label, a new reading) makes the case savable again
+  resetSave() {
+    if (!this.saveButton || !this.saveButton.dataset.saved) return;
+    this.saveButton.disabled = false;
+    this.saveButton.textContent = "Save to case log";
+    delete this.saveButton.dataset.saved;
+    this.saveStatus.textContent = "";
   }
 
   // how many optional inputs hold a value: said on the collapsed "More inputs" so none is forgotten
@@ -234,6 +260,8 @@ export class Panel {
     if (this.saveRow) {
       this.saveRow.hidden = true;
       this.saveRow.querySelector(".case-label").value = "";
+      this.saveRow.querySelector(".label-warning").textContent = "";
+      this.resetSave();
     }
     this.status.textContent = "";
     this.updateMore();
@@ -344,7 +372,19 @@ export class Panel {
     }
   }
 
+  showNear(headline) {
+    if (!headline) { this.near.hidden = true; return; }
+    const go = el("a", { href: `#${this.id}-report`, class: "near-go" }, "Report below");
+    go.addEventListener("click", (e) => {
+      e.preventDefault();
+      this.report.scrollIntoView({ block: "start", behavior: "smooth" });
+    });
+    this.near.replaceChildren(el("strong", {}, "Reading: "), headline, " ", go);
+    this.near.hidden = false;
+  }
+
   renderIdle() {
+    if (this.near) this.near.hidden = true;
     const names = this.spec.required.map((n) => this.spec.fields.find((f) => f[0] === n)[1]);
     this.report.dataset.state = "idle";
     this.report.replaceChildren(el("p", { class: "muted" }, `Enter ${names.join(", ")} to see the reading.`));
@@ -516,13 +556,14 @@ export class Panel {
 
   showPictures(request, response, more) {
     const pics = drawPictures(this.spec.pictures || [], response, more, request);
-    const old = this.report.querySelector(":scope > .pictures, :scope > .pictures-slot");
+    const old = this.report.querySelector(".pictures, .pictures-slot");
     if (!old) return;
     old.replaceWith(pics || el("div", { class: "pictures-slot", hidden: true }));
   }
 
   render(request, response, more = []) {
     delete this.report.dataset.engineError;
+    this.near.hidden = true;
     this.clearErrors();
     const out = [];
     this.sure = null;
@@ -572,6 +613,7 @@ export class Panel {
       return;
     }
     this.last = { request, response };
+    this.resetSave();
     this.hooks.seen(response);
     const display = response.display || {};
 
@@ -595,13 +637,29 @@ export class Panel {
       out.push(lead);
     }
 
-    // 1. the summary, to copy into the notes
+    // 1. the answer first: a headline, the numbers that matter, what must be acted on now
+    const shownFindings = response.findings.filter((f) => !offered.includes(f));
+    const urgent = shownFindings.filter((f) => f.severity === "urgent");
+    const headline = (this.spec.headline ? this.spec.headline(response) : (response.summary || [])[0]) || "";
+    const first = el("section", { class: "answer-first", "aria-label": "Answer" },
+      el("p", { class: "headline", "data-headline": "" }, headline));
+    const keyRows = (this.spec.key || []).filter((k) => k in response.outputs)
+      .flatMap((k) => flatten(k, response.outputs[k], display[k])).slice(0, 5);
+    if (keyRows.length) {
+      const dl = el("dl", { class: "key-numbers" });
+      for (const [path, text] of keyRows) {
+        dl.append(el("div", { class: "key", "data-key": path }, el("dt", {}, outputLabel(path)), el("dd", {}, text)));
+      }
+      first.append(dl);
+    }
+    if (urgent.length) first.append(findingList(urgent, "Act now"));
+    out.push(first);
+    this.showNear(headline);
+
+    // 2. actions: copy or share the summary (saving is under the report)
     const usedLine = usedText(request, this.inputs);
     const summaryText = [...(response.summary || []), usedLine].join(" ");
-    const summary = el("section", { class: "summary", "aria-label": "Summary" });
-    for (const sentence of response.summary || []) summary.append(el("p", {}, sentence));
-    summary.append(el("p", { class: "used", "data-used": "" }, usedLine));
-    const tools = el("div", { class: "row-buttons" });
+    const tools = el("div", { class: "row-buttons actions-row" });
     const copy = el("button", { type: "button", class: "copy" }, "Copy summary");
     const status = this.status;
     copy.addEventListener("click", async () => {
@@ -620,49 +678,52 @@ export class Panel {
       tools.append(share);
     }
     tools.append(status);
-    summary.append(tools);
-    out.push(summary);
+    out.push(tools);
 
-    // 1b. how sure the reading is, filled in later by showSure(); its own polite live region, read whole
+    // 3. the rest, one tap away: the summary, how sure, the other findings, cautions, pictures, every number
+    const restBox = el("details", { class: "full-report" },
+      el("summary", {}, "Full report: summary, findings, pictures and every number with its source"));
+    const rest = [];
+    const summary = el("section", { class: "summary", "aria-label": "Summary" });
+    // the general "decision support only" is said once for the whole app (the footer), not in every report
+    for (const sentence of response.summary || []) {
+      if (!ONCE.test(sentence)) summary.append(el("p", {}, sentence));
+    }
+    summary.append(el("p", { class: "used", "data-used": "" }, usedLine));
+    rest.push(summary);
+
+    // how sure the reading is, filled in later by showSure(); its own polite live region, read whole
     if (this.spec.howSure) {
       this.sure = el("section", { class: "how-sure", "data-state": "waiting", "aria-label": this.spec.howSure.title,
         "aria-live": "polite", "aria-atomic": "true" },
       el("p", { class: "sure-line muted" }, this.spec.howSure.working));
-      out.push(this.sure);
+      rest.push(this.sure);
     }
 
-    // 2. findings by severity: a word and a shape, never colour alone
-    if (response.findings.length) {
-      const list = el("ul", { class: "findings", "aria-label": "Findings" });
-      for (const f of response.findings) {
-        if (offered.includes(f)) continue; // already leading the report
-        const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
-        list.append(el("li", { class: `finding ${cls}`, "data-code": f.code, "data-severity": f.severity },
-          el("span", { class: "sev-mark", "aria-hidden": "true" }),
-          el("strong", { class: "sev-word" }, `${word}: `), f.text));
-      }
-      out.push(list);
-    }
+    // findings by severity: a word and a shape, never colour alone (the urgent ones are above)
+    const others = shownFindings.filter((f) => f.severity !== "urgent");
+    if (others.length) rest.push(findingList(others, "Findings"));
 
-    // 3. cautions, always visible
-    if (response.cautions.length) {
+    // cautions: each once; the general one is in the footer
+    const cautionsShown = response.cautions.filter((c) => !ONCE.test(c));
+    if (cautionsShown.length) {
       const cautions = el("section", { class: "cautions", "aria-label": "Cautions" }, el("h4", {}, "Take care"));
       const ul = el("ul");
-      for (const c of response.cautions) ul.append(el("li", {}, c));
+      for (const c of cautionsShown) ul.append(el("li", {}, c));
       cautions.append(ul);
-      out.push(cautions);
+      rest.push(cautions);
     }
 
-    // 4. pictures drawn from the core's arrays
+    // pictures drawn from the core's arrays
     // (those from other calculations come in later through showPictures(), into this slot)
     const pics = drawPictures(this.spec.pictures || [], response, more, request);
-    out.push(pics || el("div", { class: "pictures-slot", hidden: true }));
+    rest.push(pics || el("div", { class: "pictures-slot", hidden: true }));
 
-    // 5. the numbers, in sections; a tap shows the step behind each
+    // the numbers, in sections; a tap shows the step behind each
     const used = new Set();
     const sections = [...(this.spec.sections || [])];
-    const rest = Object.keys(response.outputs).filter((k) => !sections.some(([, keys]) => keys.includes(k)));
-    sections.push(["More numbers", rest]);
+    const leftover = Object.keys(response.outputs).filter((k) => !sections.some(([, keys]) => keys.includes(k)));
+    sections.push(["More numbers", leftover]);
     for (const [title, keys] of sections) {
       const rows = keys.filter((k) => k in response.outputs && !used.has(k))
         .flatMap((k) => { used.add(k); return flatten(k, response.outputs[k], display[k]); });
@@ -676,7 +737,7 @@ export class Panel {
         const steps = response.steps.filter((s) => s.output === top);
         const dd = el("dd");
         const button = el("button", { type: "button", class: "num", "data-out": path, "data-raw": String(raw),
-          "aria-expanded": "false", "aria-label": `${label(path)}: ${text}. Show how it was worked out` }, text);
+          "aria-expanded": "false", "aria-label": `${outputLabel(path)}: ${text}. Show how it was worked out` }, text);
         if (!steps.length) button.disabled = true;
         const how = el("div", { class: "how", hidden: true });
         button.addEventListener("click", () => {
@@ -687,19 +748,17 @@ export class Panel {
           button.setAttribute("aria-expanded", String(!how.hidden));
         });
         dd.append(button, how);
-        dl.append(el("dt", {}, label(path)), dd);
+        dl.append(el("dt", {}, outputLabel(path)), dd);
       }
       box.append(dl);
-      out.push(box);
+      rest.push(box);
     }
+    restBox.append(...rest);
+    out.push(restBox);
     this.report.dataset.state = "done";
     this.report.replaceChildren(...out);
   }
 }
-
-// units as a clinician writes them
-const UNIT_WORDS = { degC: "°C", degF: "°F", fraction: "", 1: "" };
-export const unitWord = (unit) => (unit in UNIT_WORDS ? UNIT_WORDS[unit] : unit);
 
 function suggestionText(s, entry) {
   const unit = s.unit !== undefined ? s.unit : entry && entry.unit ? entry.unit.value : "";
@@ -727,7 +786,7 @@ function stepView(s, decimals) {
     el("p", { class: "step-label" }, s.label),
     el("p", { class: "step-formula" }, el("code", {}, s.formula), ` = ${result}`));
   if (s.inputs && typeof s.inputs === "object") {
-    const parts = Object.entries(s.inputs).map(([k, v]) => `${words(k)} ${quantityText(v)}`);
+    const parts = Object.entries(s.inputs).map(([k, v]) => `${k.replaceAll("_", " ")} ${quantityText(v)}`);
     box.append(el("p", { class: "step-inputs" }, `Using: ${parts.join(", ")}`));
   }
   box.append(el("p", { class: "step-source" }, `Source: ${s.source}`));
