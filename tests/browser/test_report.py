@@ -43,7 +43,7 @@ def test_the_reading_comes_first_and_the_rest_is_one_tap_away(browser, server):
     keys = key_numbers(browser, "blood_gas")
     assert 3 <= len(keys) <= 5, keys
     labels = dict((k, label) for k, label, _ in keys)
-    assert labels["pco2_target"] == "PaCO2 to aim for" and labels["spo2_target"] == "SpO2 target"
+    assert labels["pco2_target"] == "PaCO2 to aim for" and labels["spo2_target"] == "SpO2 target (%)"
     target = expected["outputs"]["pco2_target"]
     assert dict((k, v) for k, _, v in keys)["pco2_target"] == f"{target['value']:.1f} kPa"  # kPa 1 dp
     # what must be acted on now sits with the headline, with its word
