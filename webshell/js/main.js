@@ -289,6 +289,7 @@ $("#log-export-csv").addEventListener("click", () => exportLog(caselog.exportCsv
 // "Delete all data": every saved case and every setting Tidewell keeps (localStorage and
 // sessionStorage entries named tidewell:*). The offline copy of the app itself stays: it holds no data.
 async function deleteAllData() {
+  clearTimeout(draftTimer); // the form's draft goes too, and a pending write must not bring it back
   await caselog.deleteAll();
   for (const storage of [localStorage, sessionStorage]) {
     for (const key of Object.keys(storage)) if (key.startsWith("tidewell:")) storage.removeItem(key);
@@ -359,7 +360,7 @@ function renderEngine() {
       `started in ${(info.timings_ms.total / 1000).toFixed(1)} s`;
     if (engine.restarts) {
       const times = engine.restarts === 1 ? "once" : `${engine.restarts} times`;
-      text += ` It restarted ${times} after a problem (${engine.lastFault}).`;
+      text += ` Restarted ${times} after a fault (last: ${engine.lastFault}).`;
     }
   } else if (state === "failed") {
     text = `Engine: failed. ${engine.failure}`;
