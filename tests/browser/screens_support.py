@@ -83,6 +83,22 @@ def wait_report(browser, calc: str, timeout: float = 90, states=("done", "error"
     )
 
 
+def use_kpa(browser) -> None:
+    """The pressure unit on kPa (remembered), the page reloaded."""
+    browser.js("localStorage.setItem('tidewell:pressure-unit', 'kPa')")
+    browser.driver.refresh()
+
+
+def example_in_kpa(browser, url: str, screen: str, example: str, calc: str) -> None:
+    """At 360 x 740 with the pressure unit on kPa: tap an invented example and wait for its report."""
+    phone(browser, TALL_PHONE)
+    open_screen(browser, url, screen)
+    use_kpa(browser)
+    browser.wait_engine()
+    browser.driver.find_element(By.CSS_SELECTOR, f"[data-example={example}]").click()
+    assert wait_report(browser, calc) == "done"
+
+
 # The "ward exacerbation" example's inputs as the shell sends them (an invented scenario, not a patient)
 WARD_COPD_INPUTS = {
     "ph": 7.28,

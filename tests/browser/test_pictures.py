@@ -10,13 +10,18 @@ import itertools
 import math
 
 import pytest
-from screens_support import TALL_PHONE, WARD_COPD_INPUTS, core, fill, open_screen, phone, wait_report
+from screens_support import (
+    TALL_PHONE,
+    WARD_COPD_INPUTS,
+    core,
+    example_in_kpa,
+    fill,
+    open_screen,
+    phone,
+    use_kpa,
+    wait_report,
+)
 from selenium.webdriver.common.by import By
-
-
-def kpa(browser) -> None:
-    browser.js("localStorage.setItem('tidewell:pressure-unit', 'kPa')")
-    browser.driver.refresh()
 
 
 def open_full_report(browser, calc: str) -> None:
@@ -77,7 +82,7 @@ def assert_readable(browser, picture: str) -> None:
 def test_the_altitude_picture_uses_the_lowest_acceptable_pao2_with_round_ticks(browser, server, size):
     phone(browser, size)
     open_screen(browser, server.url, "flight")
-    kpa(browser)
+    use_kpa(browser)
     browser.wait_engine()
     browser.driver.find_element(
         By.CSS_SELECTOR, "[data-example=retrieval]"
@@ -105,12 +110,7 @@ def test_the_altitude_picture_uses_the_lowest_acceptable_pao2_with_round_ticks(b
 
 
 def test_the_acid_base_picture_has_fixed_axes_the_bands_the_sample_and_its_target(browser, server):
-    phone(browser, TALL_PHONE)
-    open_screen(browser, server.url, "gas")
-    kpa(browser)
-    browser.wait_engine()
-    browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
-    assert wait_report(browser, "blood_gas") == "done"
+    example_in_kpa(browser, server.url, "gas", "ward-copd", "blood_gas")
     open_full_report(browser, "blood_gas")
     first_x, first_y = ticks(browser, "acidbase", "x"), ticks(browser, "acidbase", "y")
     assert_round(first_x)

@@ -7,15 +7,21 @@ from __future__ import annotations
 
 import re
 
-from screens_support import TALL_PHONE, WARD_COPD_INPUTS, core, fill, open_screen, phone, tap, wait_report
+from screens_support import (
+    TALL_PHONE,
+    WARD_COPD_INPUTS,
+    core,
+    example_in_kpa,
+    fill,
+    open_screen,
+    phone,
+    tap,
+    use_kpa,
+    wait_report,
+)
 from selenium.webdriver.common.by import By
 
 COPD = WARD_COPD_INPUTS
-
-
-def kpa(browser) -> None:
-    browser.js("localStorage.setItem('tidewell:pressure-unit', 'kPa')")
-    browser.driver.refresh()
 
 
 def key_numbers(browser, calc: str) -> list:
@@ -27,12 +33,7 @@ def key_numbers(browser, calc: str) -> list:
 
 
 def test_the_reading_comes_first_and_the_rest_is_one_tap_away(browser, server):
-    phone(browser, TALL_PHONE)
-    open_screen(browser, server.url, "gas")
-    kpa(browser)
-    browser.wait_engine()
-    browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
-    assert wait_report(browser, "blood_gas") == "done"
+    example_in_kpa(browser, server.url, "gas", "ward-copd", "blood_gas")
     expected = core({"calc": "blood_gas", "inputs": COPD, "options": {"pressure_unit": "kPa"}})
     order = browser.js(
         "return [...document.querySelector('#p-blood_gas-report').children].map((c) => c.className)"
@@ -82,7 +83,7 @@ def test_the_reading_comes_first_and_the_rest_is_one_tap_away(browser, server):
 def test_the_headline_is_kept_next_to_the_values_being_typed(browser, server):
     phone(browser, TALL_PHONE)
     open_screen(browser, server.url, "gas")
-    kpa(browser)
+    use_kpa(browser)
     browser.wait_engine()
     fill(browser, "blood_gas", {"ph": "7.28", "pco2": ("9.1", "kPa"), "po2": ("7.2", "kPa"), "hco3": "31"})
     fill(browser, "blood_gas", {"fio2": ("28", "%")})  # the fifth value
@@ -104,7 +105,7 @@ def test_the_headline_is_kept_next_to_the_values_being_typed(browser, server):
 def test_breathing_leads_with_the_settings_asked_for(browser, server):
     phone(browser, TALL_PHONE)
     open_screen(browser, server.url, "breathing")
-    kpa(browser)
+    use_kpa(browser)
     browser.wait_engine()
     fill(
         browser,
