@@ -1,5 +1,5 @@
-"""PNG screenshots of the main screens, from the real built app in headless Chromium at 360 x 640 (the
-course screens at 360 x 740).
+"""PNG screenshots of the main screens, from the real built app in headless Chromium at 360 x 740 (the course
+screens too).
 
     python3 tools/screenshots.py            # builds dist/ into a temporary directory first
     python3 tools/screenshots.py --dist DIR # an existing build
@@ -23,7 +23,7 @@ sys.path.insert(0, str(ROOT / "tests" / "browser"))
 sys.path.insert(0, str(ROOT / "core"))
 
 from harness import Browser, Server, build  # noqa: E402
-from screens_support import fill, open_screen, phone, wait_report  # noqa: E402
+from screens_support import TALL_PHONE, fill, open_screen, phone, wait_report  # noqa: E402
 from selenium.webdriver.common.by import By  # noqa: E402
 
 from tidewell.coursefile import event_words  # noqa: E402
@@ -109,6 +109,17 @@ def scroll_to(browser, selector: str) -> None:
     )
 
 
+def open_full(browser, calc: str) -> None:
+    browser.js(
+        "document.querySelector('#p-' + arguments[0] + '-report details.full-report').open = true", calc
+    )
+
+
+def new_patient(browser) -> None:
+    browser.js("document.querySelector('[data-action=new-patient]').click()")
+    browser.js("document.getElementById('new-patient-note').hidden = true")
+
+
 def shoot(browser, name: str) -> Path:
     path = OUT / f"{name}.png"
     browser.driver.save_screenshot(str(path))
@@ -130,7 +141,7 @@ def main() -> int:
         browser = None
         try:
             browser = Browser()
-            phone(browser)
+            phone(browser, TALL_PHONE)
             open_screen(browser, server.url, "gas")
             browser.js(
                 "localStorage.setItem('tidewell:pressure-unit', 'kPa');"
@@ -139,13 +150,16 @@ def main() -> int:
             open_screen(browser, server.url, "gas")
             browser.driver.refresh()
             browser.wait_engine()
+            browser.js("scrollTo(0, 0)")
             shoot(browser, "01-blood-gas-entry")
             browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
             wait_report(browser, "blood_gas")
             scroll_to(browser, "#p-blood_gas-report")
             shoot(browser, "02-blood-gas-report")
+            open_full(browser, "blood_gas")
             scroll_to(browser, "#p-blood_gas-report .pictures")
             shoot(browser, "03-blood-gas-pictures")
+            new_patient(browser)
             open_screen(browser, server.url, "breathing")
             fill(
                 browser,
@@ -158,10 +172,25 @@ def main() -> int:
             open_screen(browser, server.url, "flight")
             browser.driver.find_element(By.CSS_SELECTOR, "[data-example=retrieval]").click()
             wait_report(browser, "altitude")
+            open_full(browser, "altitude")
             scroll_to(browser, "#p-altitude-report .pictures")
             shoot(browser, "05-flight-profile")
             open_screen(browser, server.url, "log")
             shoot(browser, "06-case-log")
+            # the questions Tidewell asks instead of guessing
+            new_patient(browser)
+            open_screen(browser, server.url, "flight")
+            fill(browser, "altitude", {"altitude": ("8,000", "ft"), "fio2": ("30", "%")})
+            wait_report(browser, "altitude", states=("ask",))
+            scroll_to(browser, "#p-altitude [data-input=altitude]")
+            shoot(browser, "08-asks-8000")
+            new_patient(browser)
+            open_screen(browser, server.url, "gas")
+            fill(browser, "blood_gas", {"ph": "7.10", "pco2": ("9.8", "mmHg"), "po2": ("9.0", "kPa")})
+            wait_report(browser, "blood_gas")
+            scroll_to(browser, "#p-blood_gas-report")
+            shoot(browser, "09-check-first")
+            new_patient(browser)
             open_screen(browser, server.url, "gas")
             phone(browser, (360, 740))
             browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
@@ -176,7 +205,7 @@ def main() -> int:
             browser.wait_engine()
             browser.driver.find_element(By.CSS_SELECTOR, "[data-example=ward-copd]").click()
             wait_report(browser, "blood_gas")
-            scroll_to(browser, "#p-blood_gas-report .findings")
+            scroll_to(browser, "#p-blood_gas-report")
             shoot(browser, "07-night-mode")
         finally:
             if browser is not None:

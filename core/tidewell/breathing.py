@@ -305,8 +305,8 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
         "cannulae is uncertain. " + _LOCAL
     )
     report.say(
-        f"Breathing FiO2 {fio2:.2f} at PB {pb:.0f} mmHg the inspired PO2 is {pio2:.0f} mmHg and the "
-        f"alveolar PO2 about {simple:.0f} mmHg."
+        f"Breathing FiO2 {fio2:.2f} at PB {report.pressure_text(pb)} the inspired PO2 is "
+        f"{report.pressure_text(pio2)} and the alveolar PO2 about {report.pressure_text(simple)}."
     )
 
 
@@ -1422,17 +1422,7 @@ def _to_target(
                 f"({te_min:.1f} s, {tau_used:g} s {tau_word}): risk of gas trapping and auto-PEEP.",
             )
     report.put("to_target", out, decimals=1)
-    # the settings asked for lead the summary, rounded to what a ventilator is set to (whole breaths, VT to
-    # 10 mL)
-    lead = f"To bring the PaCO2 to {report.pressure_text(target)}: VE about {ve_new:.1f} L/min"
-    if "rr_at_same_vt" in out:
-        lead += (
-            f"; a rate of about {round(out['rr_at_same_vt']):.0f}/min at the same VT "
-            f"({10 * round(vt / 10):.0f} mL), "
-            f"or a VT of about {10 * round(out['vt_at_same_rr']['value'] / 10):.0f} mL at the same rate "
-            f"({round(rr):.0f}/min)"
-        )
-    report.summary.insert(0, lead + ".")
+    _settings(report, out, rr=rr, vt=vt, target=target)
     if target < pco2:
         report.caution(
             "If the patient has chronic hypercapnia, aim for their usual PaCO2 rather than 40 mmHg and lower "
@@ -1441,6 +1431,40 @@ def _to_target(
     report.caution(
         "Target settings assume CO2 output stays the same; recheck a blood gas once a change has settled "
         "(commonly 15-30 minutes)."
+    )
+
+
+def _whole(x: float, step: float) -> float:
+    """``x`` rounded to the nearest multiple of ``step``, halves away from zero (22.5 -> 23)."""
+    return math.floor(x / step + 0.5) * step
+
+
+def _settings(report: Report, out: dict, *, rr: float, vt: float, target: float) -> None:
+    """The settings asked for, as a ventilator is set (common practice): a rate in whole breaths per
+    minute and a tidal volume to 10 mL; the first sentence of the summary."""
+    aim = f"To reach PaCO2 {report.pressure_text(target)}"
+    if "rr_at_same_vt" not in out:
+        ve_new = out["minute_ventilation"]["value"]
+        report.say(f"{aim}: minute ventilation about {ve_new:.1f} L/min (no dead space to split it by).")
+        return
+    rr_set = int(_whole(out["rr_at_same_vt"], 1.0))
+    vt_set = _whole(out["vt_at_same_rr"]["value"], 10.0)
+    report.put(
+        "settings",
+        {"rr": {"value": rr_set, "unit": "/min"}, "vt": {"value": vt_set, "unit": "mL"}},
+        decimals=0,
+    )
+    report.step(
+        "Settings as a ventilator takes them",
+        "rate to whole breaths per minute, tidal volume to 10 mL",
+        rr_set,
+        "to_target_pco2",
+        output="settings",
+        inputs={"rr_exact_per_min": out["rr_at_same_vt"], "vt_exact_ml": out["vt_at_same_rr"]["value"]},
+    )
+    report.say(
+        f"{aim}: rate {rr_set:.0f}/min at VT {vt:.0f} mL, or VT {vt_set:.0f} mL at rate {rr:g}/min "
+        f"(minute ventilation {out['minute_ventilation']['value']:.1f} L/min)."
     )
 
 
@@ -1579,7 +1603,6 @@ def _mechanisms(
             "info",
             "VCO2 was measured and VD/VT derived from it, PaCO2 and VE: the shares rest on measurements.",
         )
-    report.say(
-        f"The raised PaCO2 is mostly due to {_CAUSE_WORDS[main]} ({m.shares[main] * 100:.0f} %)"
-        + (" by an estimated VCO2: indicative only." if vco2_source == "estimated" else ".")
-    )
+    rough = " (a rough split: VCO2 was estimated, not measured)" if vco2_source == "estimated" else ""
+    share = m.shares[main] * 100
+    report.say(f"The raised PaCO2 is mostly due to {_CAUSE_WORDS[main]} ({share:.0f} %){rough}.")

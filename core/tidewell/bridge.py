@@ -41,6 +41,7 @@ CALCULATIONS: dict[str, str] = {
     "oxygen_supply": "tidewell.flight:oxygen_supply",
     "uncertainty": "tidewell.sureness:uncertainty",
     "course": "tidewell.course:course",
+    "acid_base_map": "tidewell.bands:acid_base_map",
 }
 
 PRESSURE_UNITS = ("mmHg", "kPa")

@@ -6,9 +6,11 @@
 ``require_number``        check that a value is a finite real number within a range
 ========================  =========================================================
 
-Every message names the field, says what is wrong, gives the value received and, where a
-likely mistake can be guessed (a unit mix-up, a percentage for a fraction), what the user
-probably meant.
+Every message is short and in clinical words: it names the input by its label, says what is
+wrong, shows the value as entered (``'seven'``, ``70 kPa``, never a Python or JSON repr) and, where a
+likely mistake can be guessed (a unit mix-up, a percentage for a fraction), what the user probably
+meant. The guess is also given as data (``suggest``: the value and unit to use) so that a screen can
+offer it with one tap. The field path is in the entry's ``field``, not in the message.
 """
 
 from __future__ import annotations
@@ -45,10 +47,20 @@ class InputError(ValueError):
         What the user probably meant.
     code : str
         One of :data:`ERROR_CODES`.
+    suggest : dict, optional
+        The value the hint offers, as data: ``{"value": number, "unit": text}`` (``unit`` left out for
+        a bare number); a screen offers it with one tap.
     """
 
     def __init__(
-        self, field: str, value: object, problem: str, hint: str = "", *, code: str = "out_of_range"
+        self,
+        field: str,
+        value: object,
+        problem: str,
+        hint: str = "",
+        *,
+        code: str = "out_of_range",
+        suggest: dict | None = None,
     ):
         if code not in ERROR_CODES:
             raise ValueError(f"unknown error code {code!r}")
@@ -57,13 +69,30 @@ class InputError(ValueError):
         self.problem = problem
         self.hint = hint
         self.code = code
-        shown = _show(value)
-        text = f"{field}: {problem}" + (f" (got {shown})" if shown else "")
-        super().__init__(f"{text}. {hint}" if hint else text)
+        self.suggest = suggest
+        shown = show_value(value)
+        if problem.split(" ", 1)[0] in _VERBS:  # a domain function's bare problem: name what it is about
+            problem = f"{field}: {problem}"
+        else:  # an input named by its key reads as words: "hypercapnia_risk must" -> "Hypercapnia risk must"
+            head, space, rest = problem.partition(" ")
+            if head.isidentifier() and head.islower():
+                head = head.replace("_", " ")
+            problem = head + space + rest
+            if problem[:2].islower():  # a label at the start of a sentence ("sample" -> "Sample"; pH stays)
+                problem = problem[0].upper() + problem[1:]
+        text = problem + (f" (entered: {shown})" if shown and shown not in problem else "")
+        super().__init__(f"{text}. {hint}" if hint else f"{text}.")
 
     def as_entry(self) -> dict:
-        """The error as a bridge error entry ``{"field", "code", "message"}``."""
-        return {"field": self.field, "code": self.code, "message": str(self)}
+        """The error as a bridge error entry ``{"field", "code", "message"}`` (and ``suggest``)."""
+        entry = {"field": self.field, "code": self.code, "message": str(self)}
+        if self.suggest is not None:
+            entry["suggest"] = self.suggest
+        return entry
+
+
+#: first words of a problem that does not name its input (domain functions), which the message then prefixes
+_VERBS = frozenset(("must", "is", "are", "cannot", "needs", "has", "should", "gives", "exceeds", "would"))
 
 
 class InputErrors(ValueError):
@@ -86,13 +115,32 @@ NOTHING = _Nothing()
 _MISSING = NOTHING
 
 
-def _show(value: object) -> str:
-    if value is _MISSING:
+def show_value(value: object) -> str:
+    """A value as the user entered it, for a message: ``'seven'``, ``70 kPa``, ``7.28``, never a repr.
+
+    >>> show_value({"value": 70, "unit": "kPa"}), show_value("seven"), show_value(True), show_value([1])
+    ('70 kPa', "'seven'", 'true', 'a list')
+    """
+    if value is _MISSING or not repr(value):
         return ""
-    text = repr(value)
-    if not text:
-        return ""
-    return text if len(text) <= 60 else text[:57] + "..."
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if is_real(value):
+        return f"{value:g}"
+    if isinstance(value, str):
+        text = value if len(value) <= 40 else value[:37] + "..."
+        return f"'{text}'"
+    if isinstance(value, dict):
+        number, unit = value.get("value"), value.get("unit")
+        if "value" in value:
+            shown = show_value(number) if number is not None else "no value"
+            return f"{shown} {unit}" if isinstance(unit, str) else shown
+        return "an object"
+    if isinstance(value, (list, tuple)):
+        return "a list"
+    if value is None:
+        return "nothing"
+    return "a value of the wrong kind"
 
 
 def is_real(value: object) -> bool:
@@ -118,7 +166,7 @@ def require_number(
     >>> require_number("hco3_mmol_l", 600, low=2, high=60, unit="mmol/L")
     Traceback (most recent call last):
     ...
-    tidewell.errors.InputError: hco3_mmol_l: must be 2 to 60 mmol/L (got 600)
+    tidewell.errors.InputError: hco3_mmol_l: must be 2 to 60 mmol/L (entered: 600).
     """
     if not is_real(value):
         raise InputError(field, value, "must be a number", code="not_a_number")

@@ -32,6 +32,21 @@ def _fmt(x: float) -> str:
     return f"{x:.4g}"
 
 
+def _readable(key: str) -> str:
+    """An input without a label of its own, in words: ``hypercapnia_risk`` -> ``hypercapnia risk``."""
+    return key.replace("_", " ")
+
+
+def _span(low: float, high: float, unit: str, shown_unit: str, substance: str | None) -> str:
+    """``low`` to ``high`` (in ``unit``) said in ``shown_unit``, the unit the user chose."""
+    if shown_unit == unit or not all(map(math.isfinite, (low, high))):
+        return f"{_fmt(low)} to {_fmt(high)} {unit}"
+    lo = units.convert(low, unit, shown_unit, substance=substance)
+    hi = units.convert(high, unit, shown_unit, substance=substance)
+    lo, hi = min(lo, hi), max(lo, hi)
+    return f"{float(f'{lo:.3g}'):g} to {float(f'{hi:.3g}'):g} {shown_unit}"
+
+
 class Inputs:
     """Accessors over one request's ``inputs`` mapping."""
 
@@ -49,8 +64,10 @@ class Inputs:
         """True when ``key`` is present and not null."""
         return self.raw.get(key) is not None
 
-    def fail(self, key: str, value: object, problem: str, hint: str = "", *, code: str) -> None:
-        self.errors.append(InputError(self.field(key), value, problem, hint, code=code))
+    def fail(
+        self, key: str, value: object, problem: str, hint: str = "", *, code: str, suggest: dict | None = None
+    ) -> None:
+        self.errors.append(InputError(self.field(key), value, problem, hint, code=code, suggest=suggest))
 
     def _take(self, key: str, required: bool, label: str):
         self.read.add(key)
@@ -63,10 +80,7 @@ class Inputs:
 
     def _check_number(self, key: str, value: object, label: str) -> float | None:
         if not is_real(value):
-            hint = ""
-            if isinstance(value, str):
-                hint = "Send numbers as JSON numbers, not text."
-            self.fail(key, value, f"{label} must be a number", hint, code="not_a_number")
+            self.fail(key, value, f"{label} must be a number", code="not_a_number")
             return None
         number = float(value)
         if not math.isfinite(number):
@@ -87,7 +101,7 @@ class Inputs:
         what: str = "",
     ) -> float | None:
         """A bare number in ``[low, high]`` (``default`` when absent)."""
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, required, label)
         if value is _ABSENT:
             return default
@@ -119,32 +133,20 @@ class Inputs:
 
         ``low`` and ``high`` are in ``unit``. ``default`` (also in ``unit``) is returned when absent.
         """
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, required, label)
         if value is _ABSENT:
             return default
         accepted = units.units_for(unit, substance=substance)
         if not isinstance(value, dict):
             if is_real(value):
-                self.fail(
-                    key,
-                    value,
-                    f"{label} needs a unit",
-                    f'Send {{"value": {value}, "unit": "{accepted[0]}"}}; accepted units: '
-                    + ", ".join(accepted),
-                    code="bad_unit",
-                )
+                self.fail(key, value, f"{label} needs a unit: " + " or ".join(accepted), code="bad_unit")
             else:
-                self.fail(
-                    key,
-                    value,
-                    f'{label} must be an object {{"value": number, "unit": text}}',
-                    code="bad_request",
-                )
+                self.fail(key, value, f"{label} must be a number with its unit", code="bad_request")
             return None
         extra = sorted(set(value) - {"value", "unit"})
         if extra:
-            self.fail(key, value, f"{label} has unexpected keys {extra}", code="bad_request")
+            self.fail(key, value, f"{label} has unexpected parts: " + ", ".join(extra), code="bad_request")
             return None
         if "value" not in value:
             self.fail(key, value, f"{label} has no value", code="missing")
@@ -154,9 +156,7 @@ class Inputs:
             return None
         given_unit = value.get("unit")
         if given_unit is None:
-            self.fail(
-                key, value, f"{label} needs a unit", "Accepted units: " + ", ".join(accepted), code="bad_unit"
-            )
+            self.fail(key, value, f"{label} needs a unit: " + " or ".join(accepted), code="bad_unit")
             return None
         if not isinstance(given_unit, str) or given_unit not in accepted:
             hint = "Accepted units: " + ", ".join(accepted)
@@ -166,31 +166,32 @@ class Inputs:
                 guess = folded or (close[0] if close else None)
                 if guess:
                     hint = f"Did you mean '{guess}'? " + hint
-            self.fail(key, value, f"{label}: unit {given_unit!r} is not accepted here", hint, code="bad_unit")
+            self.fail(
+                key, value, f"{label}: the unit {given_unit!r} is not accepted here", hint, code="bad_unit"
+            )
             return None
         converted = units.convert(number, given_unit, unit, substance=substance)
         if low <= converted <= high:
             return converted
+        # the accepted range in the unit the user chose (a kPa entry is told its range in kPa)
+        span = _span(low, high, unit, given_unit, substance)
         # outside: would the same number in another accepted unit be in range? (common mix-ups first)
         for other in sorted(accepted, key=_hint_rank):
-            if other == given_unit:
+            if other == given_unit or other in _NO_GUESS:
                 continue
             alt = units.convert(number, other, unit, substance=substance)
             if low <= alt <= high:
                 self.fail(
                     key,
                     value,
-                    f"{label} {_fmt(number)} {given_unit} {plausible_word} "
-                    f"({_fmt(low)} to {_fmt(high)} {unit})",
+                    f"{label} {_fmt(number)} {given_unit} {plausible_word} ({span})",
                     f"Did you mean {_fmt(number)} {other}?",
                     code="implausible",
+                    suggest={"value": number, "unit": other},
                 )
                 return None
         self.fail(
-            key,
-            value,
-            f"{label} {_fmt(number)} {given_unit} {plausible_word} ({_fmt(low)} to {_fmt(high)} {unit})",
-            code="out_of_range",
+            key, value, f"{label} {_fmt(number)} {given_unit} {plausible_word} ({span})", code="out_of_range"
         )
         return None
 
@@ -205,7 +206,7 @@ class Inputs:
         default: float | None = None,
     ) -> float | None:
         """A fraction given bare (0.4) or as a percentage ``{"value": 40, "unit": "%"}``."""
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, required, label)
         if value is _ABSENT:
             return default
@@ -238,9 +239,25 @@ class Inputs:
                 f"{label} {shown} is not a fraction ({_fmt(low)} to {_fmt(high)})",
                 f"Did you mean {_fmt(number)} % ({number / 100:.2f})?",
                 code="implausible",
+                suggest={"value": number, "unit": "%"},
             )
             return None
-        self.fail(key, value, f"{label} {shown} must be {_fmt(low)} to {_fmt(high)}", code="out_of_range")
+        if isinstance(value, dict) and value["unit"] == "%":
+            typed = value["value"]
+            span = f"{_fmt(low * 100)} to {_fmt(high * 100)} %"
+            if low <= typed <= high:  # "0.28" typed with the unit on %: a fraction
+                self.fail(
+                    key,
+                    value,
+                    f"{label} {shown} is not a percentage ({span})",
+                    f"Did you mean {_fmt(typed * 100)} %?",
+                    code="implausible",
+                    suggest={"value": float(f"{typed * 100:.6g}"), "unit": "%"},
+                )
+                return None
+            self.fail(key, value, f"{label} {shown} is outside {span}", code="out_of_range")
+            return None
+        self.fail(key, value, f"{label} {shown} is outside {_fmt(low)} to {_fmt(high)}", code="out_of_range")
         return None
 
     def percent(
@@ -254,7 +271,7 @@ class Inputs:
         default: float | None = None,
     ) -> float | None:
         """A percentage (saturation) given bare (92) or as ``{"value": 92, "unit": "%"}``."""
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, required, label)
         if value is _ABSENT:
             return default
@@ -280,9 +297,15 @@ class Inputs:
                 f"{label} {_fmt(number)} is a percentage ({_fmt(low)} to {_fmt(high)} %)",
                 f"Did you mean {_fmt(number * 100)} %?",
                 code="implausible",
+                suggest={"value": float(f"{number * 100:.6g}")},
             )
             return None
-        self.fail(key, value, f"{label} must be {_fmt(low)} to {_fmt(high)} %", code="out_of_range")
+        self.fail(
+            key,
+            value,
+            f"{label} {_fmt(number)} % is outside {_fmt(low)} to {_fmt(high)} %",
+            code="out_of_range",
+        )
         return None
 
     def choice(
@@ -295,7 +318,7 @@ class Inputs:
         required: bool = False,
     ) -> str | None:
         """One word of ``choices``."""
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, required, label)
         if value is _ABSENT:
             return default
@@ -311,7 +334,7 @@ class Inputs:
 
     def flag(self, key: str, *, default: bool = False, label: str | None = None) -> bool:
         """A JSON true/false."""
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, False, label)
         if value is _ABSENT:
             return default
@@ -322,7 +345,7 @@ class Inputs:
 
     def mapping(self, key: str, *, label: str | None = None, required: bool = False) -> dict | None:
         """A nested JSON object, returned as is (its own reader checks it)."""
-        label = label or key
+        label = label or _readable(key)
         value = self._take(key, required, label)
         if value is _ABSENT:
             return None
@@ -339,11 +362,13 @@ class Inputs:
             if key not in self.read and key not in known:
                 close = difflib.get_close_matches(str(key), names, n=1, cutoff=0.6)
                 hint = f"Did you mean '{close[0]}'?" if close else "Accepted: " + ", ".join(names)
+                if not names:
+                    hint = "This calculation takes no inputs."
                 self.errors.append(
                     InputError(
                         self.field(str(key)),
                         _ABSENT_REPR,
-                        "is not an input of this calculation",
+                        f"'{key}' is not an input of this calculation",
                         hint,
                         code="unknown_input",
                     )
@@ -378,6 +403,10 @@ _HINT_ORDER = (
     "bar",
     "psi",
 )
+
+
+#: units never offered as "did you mean" for a value in another unit: nobody types a blood gas in them
+_NO_GUESS = frozenset(("hPa", "Pa", "bar", "psi", "cmH2O"))
 
 
 def _hint_rank(unit: str) -> int:

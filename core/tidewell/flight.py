@@ -142,8 +142,7 @@ def _read_quantity(
         inputs.fail(key, raw, f"{label} has no value", code="missing")
         return None
     if not is_real(value) or not math.isfinite(float(value)):
-        hint = "Send numbers as JSON numbers, not text." if isinstance(value, str) else ""
-        inputs.fail(key, raw, f"{label} must be a finite number", hint, code="not_a_number")
+        inputs.fail(key, raw, f"{label} must be a number", code="not_a_number")
         return None
     number = float(value)
     given_unit = raw.get("unit")
@@ -175,6 +174,7 @@ def _read_quantity(
                 f"{label} {_g(number)} {given_unit} is outside the accepted range ({span})",
                 f"Did you mean {_g(number)} {other}?",
                 code="implausible",
+                suggest={"value": number, "unit": other},
             )
             return None
     inputs.fail(
@@ -391,8 +391,7 @@ def _alt_text(metres: float, unit: str) -> str:
 
 
 def _p(report: Report, mmhg: float) -> str:
-    q = report.pressure_value(mmhg)
-    return f"{q['value']:.2f} kPa" if q["unit"] == "kPa" else f"{q['value']:.1f} mmHg"
+    return report.pressure_text(mmhg)
 
 
 def _alt_quantity(metres: float, unit: str) -> dict:
@@ -1126,6 +1125,16 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
             "bts2011_inflight_threshold",
             pressure=True,
         )
+        if f.target_po2 is not None:
+            # the user's own lowest acceptable PaO2 (the line the picture draws when it is given)
+            report.computed(
+                "po2_target",
+                f.target_po2,
+                "Line on the plot: the lowest acceptable PaO2 entered",
+                "as entered",
+                "bts2011_inflight_threshold",
+                pressure=True,
+            )
     _altitude_outputs(
         report,
         "cabin_altitude",

@@ -372,6 +372,7 @@ class _Sample:
 
     def __init__(self, inputs: Inputs):
         self.mix_ups: list[str] = []
+        self.mix_up_suggest: list[dict] = []  # the value each mix-up offers instead, as data (one tap)
         self.unusual: list[str] = []
         i = inputs
         self.fio2_given = i.given("fio2")
@@ -470,23 +471,29 @@ class _Sample:
             ("pco2", "PCO2", self.pco2),
             ("baseline", "baseline PCO2", self.baseline_pco2),
         ):
+            field = "inputs.pco2" if key == "pco2" else "inputs.baseline_pco2"
             if flags[f"{key}_low"]:
+                self.mix_up_suggest.append({"field": field, "value": value, "unit": "kPa"})
                 self.mix_ups.append(
                     f"{label} {value:g} mmHg is extremely low; if it was {value:g} kPa "
                     f"({units.convert(value, 'kPa', 'mmHg'):.0f} mmHg), re-enter it in kPa."
                 )
             if flags[f"{key}_high"]:
                 given_kpa = units.convert(value, "mmHg", "kPa")
+                typed = float(f"{given_kpa:.6g}")
+                self.mix_up_suggest.append({"field": field, "value": typed, "unit": "mmHg"})
                 self.mix_ups.append(
                     f"{label} {given_kpa:.3g} kPa ({value:.0f} mmHg) is extremely high; if it was "
                     f"{given_kpa:.3g} mmHg, re-enter it in mmHg."
                 )
         if flags["po2_low"]:
+            self.mix_up_suggest.append({"field": "inputs.po2", "value": self.po2, "unit": "kPa"})
             self.mix_ups.append(
                 f"PO2 {self.po2:g} mmHg is extremely low for a {self.site} sample; if it was {self.po2:g} "
                 f"kPa ({units.convert(self.po2, 'kPa', 'mmHg'):.0f} mmHg), re-enter it in kPa."
             )
         if flags["pb_high"]:
+            self.mix_up_suggest.append({"field": "inputs.pb", "value": self.pb, "unit": "hPa"})
             as_hpa = units.convert(self.pb, "hPa", "mmHg")
             self.mix_ups.append(
                 f"Barometric pressure {self.pb:g} mmHg is above sea-level pressure; if it was {self.pb:g} "
@@ -525,10 +532,10 @@ def _concentration(i: Inputs, key: str, low: float, high: float, label: str) -> 
         return value
     raw = i.raw.get(key)
     number, given = raw["value"], raw["unit"]
-    hint = ""
+    hint, suggest = "", None
     for other in ("mg/dL", "mmol/L", "mg/L", "g/L", "umol/L"):
         if other != given and low <= units.convert(number, other, "mmol/L", substance=key) <= high:
-            hint = f"Did you mean {number:g} {other}?"
+            hint, suggest = f"Did you mean {number:g} {other}?", {"value": number, "unit": other}
             break
     i.fail(
         key,
@@ -536,6 +543,7 @@ def _concentration(i: Inputs, key: str, low: float, high: float, label: str) -> 
         f"{label} {number:g} {given} is outside the accepted range ({low:g} to {high:g} mmol/L)",
         hint,
         code="implausible" if hint else "out_of_range",
+        suggest=suggest,
     )
     return None
 
@@ -545,10 +553,11 @@ def _read_ph(i: Inputs) -> float | None:
     value = i.number("ph", low=-math.inf, high=math.inf, label="pH", required=True)
     if value is None or 6.5 <= value <= 8.0:
         return value
-    hints = []
+    hints, suggest = [], None
     for factor in (10.0, 100.0, 1000.0):
         if 6.5 <= value / factor <= 8.0:
             hints.append(f"Did you mean {value / factor:g}?")
+            suggest = {"value": float(f"{value / factor:g}")}
             break
     if 10.0 <= value <= 316.0:
         hints.append(f"If {value:g} is [H+] in nmol/L, the pH is {9.0 - math.log10(value):.2f}.")
@@ -558,6 +567,7 @@ def _read_ph(i: Inputs) -> float | None:
         f"pH {value:g} is outside 6.5 to 8.0 (not survivable, and outside the range of the rules used)",
         " ".join(hints),
         code="implausible" if hints else "out_of_range",
+        suggest=suggest,
     )
     return None
 
@@ -1357,9 +1367,7 @@ class _Work:
     # -- helpers ---------------------------------------------------------------------------------------------
     def p(self, mmhg: float) -> str:
         """A pressure in the user's unit, as text."""
-        unit = self.r.pressure_unit
-        value = units.convert(mmhg, "mmHg", unit)
-        return f"{value:.1f} kPa" if unit == "kPa" else f"{value:.0f} mmHg"
+        return self.r.pressure_text(mmhg)
 
     def pf(self, mmhg: float) -> str:
         """A P/F ratio in the user's pressure unit, as text (kPa to one decimal, mmHg whole)."""
@@ -1441,7 +1449,8 @@ def blood_gas(inputs: Inputs, report: Report) -> None:
 def _input_findings(w: _Work) -> None:
     s, r = w.s, w.r
     if w.fires("possible_unit_mix_up"):
-        r.finding("possible_unit_mix_up", "notable", "Possible unit mix-up: " + " ".join(s.mix_ups))
+        text = "Possible unit mix-up: " + " ".join(s.mix_ups)
+        r.finding("possible_unit_mix_up", "notable", text, s.mix_up_suggest)
     if w.fires("value_unusual"):
         r.finding("value_unusual", "notable", "Unusual value: " + "; ".join(s.unusual) + ".")
     if w.fires("pb_used_not_altitude"):

@@ -13,7 +13,7 @@
 
 Pressures are computed in mmHg everywhere inside the core; only here are they converted to the
 unit the user chose. Display rounding is a clinical choice made in the core: ``decimals`` per
-output travels in the response's ``display`` map (kPa 2 dp, mmHg 1 dp unless said otherwise).
+output travels in the response's ``display`` map (kPa 1 dp, mmHg whole unless said otherwise).
 """
 
 from __future__ import annotations
@@ -26,7 +26,19 @@ from .references import REFERENCES
 
 SEVERITIES = ("info", "notable", "urgent")
 _CODE = re.compile(r"^[a-z][a-z0-9_]*$")
-PRESSURE_DECIMALS = {"mmHg": 1, "kPa": 2}
+#: pressures as clinicians write them: kPa to one decimal, mmHg whole
+PRESSURE_DECIMALS = {"mmHg": 0, "kPa": 1}
+#: units in the words of the report (sentences, findings, cautions): degrees as °C, not the unit code
+_DEGREES = re.compile(r"(?:(\d) ?)?\bdeg([CF])\b")
+
+
+def in_words(text: str) -> str:
+    """A sentence with its unit codes as people write them.
+
+    >>> in_words("Arterial blood gas at 37 degC, patient 38.0 degF; degC")
+    'Arterial blood gas at 37 °C, patient 38.0 °F; °C'
+    """
+    return _DEGREES.sub(lambda m: f"{m.group(1) + ' ' if m.group(1) else ''}°{m.group(2)}", text)
 
 
 class Report:
@@ -48,9 +60,9 @@ class Report:
         return {"value": units.convert(mmhg, "mmHg", self.pressure_unit), "unit": self.pressure_unit}
 
     def pressure_text(self, mmhg: float) -> str:
-        """A pressure (given in mmHg) as text in the request's unit: kPa to one decimal, mmHg whole."""
-        value = units.convert(mmhg, "mmHg", self.pressure_unit)
-        return f"{value:.1f} kPa" if self.pressure_unit == "kPa" else f"{value:.0f} mmHg"
+        """A pressure (given in mmHg) as text in the request's unit: ``7.6 kPa``, ``57 mmHg``."""
+        q = self.pressure_value(mmhg)
+        return f"{q['value']:.{PRESSURE_DECIMALS[q['unit']]}f} {q['unit']}"
 
     def put(self, name: str, value, *, decimals: int | None = None) -> None:
         _check_finite(name, value)
@@ -130,14 +142,18 @@ class Report:
             self.put(name, value, decimals=decimals)
         self.step(label, formula, value, source, output=name, pressure=pressure, unit=unit, inputs=inputs)
 
-    def finding(self, code: str, severity: str, text: str) -> None:
+    def finding(self, code: str, severity: str, text: str, suggest: list[dict] | None = None) -> None:
+        """A finding; ``suggest``: values to use instead (``{"field", "value", "unit"}``), one tap each."""
         if not _CODE.match(code):
             raise ValueError(f"finding code {code!r} is not snake_case")
         if severity not in SEVERITIES:
             raise ValueError(f"finding severity {severity!r}")
         if any(f["code"] == code for f in self.findings):
             return
-        self.findings.append({"code": code, "severity": severity, "text": text})
+        entry = {"code": code, "severity": severity, "text": text}
+        if suggest:
+            entry["suggest"] = suggest
+        self.findings.append(entry)
 
     def caution(self, text: str) -> None:
         if text not in self.cautions:
@@ -155,10 +171,10 @@ class Report:
             "calc": self.calc,
             "engine": engine,
             "outputs": self.outputs,
-            "findings": findings,
-            "cautions": self.cautions,
+            "findings": [{**f, "text": in_words(f["text"])} for f in findings],
+            "cautions": [in_words(c) for c in self.cautions],
             "steps": self.steps,
-            "summary": self.summary,
+            "summary": [in_words(t) for t in self.summary],
             "display": self.display,
             "options": {"pressure_unit": self.pressure_unit},
         }

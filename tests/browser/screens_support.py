@@ -13,6 +13,8 @@ import compare
 from tidewell import bridge
 
 PHONE = (360, 640)
+#: the phone the entry and report tests use (360 x 740: a common phone with the browser's bars shown)
+TALL_PHONE = (360, 740)
 
 
 def core(request: dict) -> dict:
@@ -42,7 +44,7 @@ def shell_format(value: float, decimals) -> str:
 
 
 def phone(browser, size: tuple[int, int] = PHONE) -> None:
-    """A 360 x 640 viewport, or ``size`` (the window is sized so that the page itself is that size)."""
+    """A viewport of ``size`` (360 x 640 by default; the window is sized so that the page itself is)."""
     browser.driver.set_window_size(*size)
     inner = browser.js("return [innerWidth, innerHeight]")
     browser.driver.set_window_size(size[0] * 2 - inner[0], size[1] * 2 - inner[1])
@@ -67,8 +69,8 @@ def wait_screen(browser, screen: str, timeout: float = 20) -> None:
 
 
 def go_to(browser, screen: str) -> None:
-    """Tap the bottom navigation's tab for ``screen`` and wait until that screen is shown."""
-    browser.driver.find_element(By.CSS_SELECTOR, f'.screens-nav a[data-screen="{screen}"]').click()
+    """Tap the link to ``screen`` (a tab of the bottom bar, or the gear) and wait for that screen."""
+    browser.driver.find_element(By.CSS_SELECTOR, f'a[data-screen="{screen}"]').click()
     wait_screen(browser, screen)
 
 
@@ -89,7 +91,9 @@ def fill(browser, calc: str, fields: dict) -> None:
         box = d.find_element(By.CSS_SELECTOR, f'#p-{calc} [data-input="{name}"]')
         details = box.find_elements(By.XPATH, "ancestor::details")
         if details and not details[0].get_attribute("open"):
-            details[0].find_element(By.TAG_NAME, "summary").click()
+            summary = details[0].find_element(By.TAG_NAME, "summary")
+            browser.js("arguments[0].scrollIntoView({block: 'center'})", summary)  # clear of the bottom bar
+            summary.click()
         fid = f"p-{calc}-{name}"
         if value is True:
             box_input = d.find_element(By.ID, fid)
@@ -109,15 +113,45 @@ def fill(browser, calc: str, fields: dict) -> None:
             element.send_keys(text)
 
 
-def wait_report(browser, calc: str, timeout: float = 90) -> str:
-    """Wait until panel ``calc`` shows a reading or errors (and no newer calculation is pending)."""
+def wait_report(browser, calc: str, timeout: float = 90, states=("done", "error")) -> str:
+    """Wait until panel ``calc`` shows one of ``states`` (a reading or errors by default; ``ask`` when a
+    value can be read two ways) and no newer calculation is pending."""
     return browser.wait_js(
         "const r = document.querySelector('#p-' + arguments[0] + '-report');"
         "for (;;) { await new Promise((ok) => setTimeout(ok, 50));"
-        "  if (['done', 'error'].includes(r.dataset.state) && !r.dataset.busy) return r.dataset.state; }",
+        "  if (arguments[1].includes(r.dataset.state) && !r.dataset.busy) return r.dataset.state; }",
         calc,
+        list(states),
         timeout=timeout,
     )
+
+
+def use_kpa(browser) -> None:
+    """The pressure unit on kPa (remembered), the page reloaded."""
+    browser.js("localStorage.setItem('tidewell:pressure-unit', 'kPa')")
+    browser.driver.refresh()
+
+
+def example_in_kpa(browser, url: str, screen: str, example: str, calc: str) -> None:
+    """At 360 x 740 with the pressure unit on kPa: tap an invented example and wait for its report."""
+    phone(browser, TALL_PHONE)
+    open_screen(browser, url, screen)
+    use_kpa(browser)
+    browser.wait_engine()
+    browser.driver.find_element(By.CSS_SELECTOR, f"[data-example={example}]").click()
+    assert wait_report(browser, calc) == "done"
+
+
+# The "ward exacerbation" example's inputs as the shell sends them (an invented scenario, not a patient)
+WARD_COPD_INPUTS = {
+    "ph": 7.28,
+    "pco2": {"value": 9.1, "unit": "kPa"},
+    "po2": {"value": 7.2, "unit": "kPa"},
+    "hco3": {"value": 31, "unit": "mmol/L"},
+    "fio2": {"value": 28, "unit": "%"},
+    "hypercapnia_risk": True,
+    "age": 71,
+}
 
 
 # An invented retrieval journey (not a patient): the flight screen's "retrieval" example, and a small

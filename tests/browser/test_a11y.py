@@ -65,10 +65,10 @@ def test_no_serious_or_critical_violations(browser, server, axe_source):
     add_to_course(browser)  # the Course screen is audited with a gas in it (its editor), not only empty
     found = {}
     for theme in ["light", "dark"]:
-        go_to(browser, "convert")
+        go_to(browser, "settings")
         tap(browser, By.ID, f"theme-{theme}")
         wait_theme(browser, theme)
-        for screen in ["gas", "breathing", "flight", "course", "log", "convert"]:
+        for screen in ["gas", "breathing", "flight", "course", "log", "convert", "settings"]:
             go_to(browser, screen)  # audit the screen once the page has shown it
             bad = audit(browser, axe_source)
             if bad:

@@ -126,7 +126,7 @@ def test_markup_in_number_fields_is_an_error_text(make_browser, server):
             name,
         )
         assert error[1:] == [0, "not_a_number"], error
-        assert f"(got '{text}')" in error[0], error
+        assert f"(entered: '{text}')" in error[0], error
     assert made_elements(browser, "#gas") == []
 
     # the converter's value field: the error list shows the core's message as text

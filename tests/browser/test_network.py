@@ -181,6 +181,7 @@ def full_session(browser) -> list[str]:
     go_to(browser, "convert")
     _convert(browser, "12.1", "kPa", "mmHg")
     _convert(browser, "180", "mg/dL", "mmol/L", "glucose")
+    go_to(browser, "settings")
     for radio in ("unit-mmhg", "unit-kpa", "theme-dark", "theme-light", "theme-auto"):
         tap(browser, By.ID, radio)
     assert browser.js("return document.documentElement.dataset.theme") in ("light", "dark")

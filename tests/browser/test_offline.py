@@ -83,6 +83,7 @@ OFFLINE_REQUESTS = [
             "seed": 1,
         },
     },
+    {"calc": "acid_base_map", "options": {"pressure_unit": "kPa"}},
 ]
 NUMPY_CALCS = {"altitude_profile", "oxygen_dissociation_curve", "uncertainty"}
 GAS = {"ph": "7.21", "pco2": ("8.6", "kPa"), "po2": ("8.4", "kPa"), "hco3": ("24.5", "mmol/L")}

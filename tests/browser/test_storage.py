@@ -277,7 +277,7 @@ def test_delete_all_data_really_deletes(browser, server):
         "for (const id of ['#theme-dark', '#unit-kpa', '#unit-mmhg']) document.querySelector(id).click();"
     )
     kept = browser.js("return Object.keys(localStorage).filter((k) => k.startsWith('tidewell:')).sort()")
-    assert kept == ["tidewell:pressure-unit", "tidewell:theme"]
+    assert kept == ["tidewell:draft", "tidewell:pressure-unit", "tidewell:theme"]  # the form's draft too
     assert len(stored(browser)) == 2
 
     state, message = delete_all(browser)

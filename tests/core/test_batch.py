@@ -528,9 +528,9 @@ def test_bad_rows_go_to_the_error_column_and_the_batch_goes_on():
     )
     table, audit = _audit(text)
     assert audit.errors[0] == [] and audit.errors[6] == []
-    assert any("Write a plain number" in m for m in audit.errors[2]), audit.errors[2]
-    assert any("inputs.pco2" in m and "Did you mean 5.3 kPa?" in m for m in audit.errors[3]), audit.errors[3]
-    assert any("inputs.fio2" in m and "Did you mean 28 %" in m for m in audit.errors[4]), audit.errors[4]
+    assert any("must be a number (entered: 'seven')" in m for m in audit.errors[2]), audit.errors[2]
+    assert any("PCO2 5.3 mmHg" in m and "Did you mean 5.3 kPa?" in m for m in audit.errors[3]), audit.errors
+    assert any("FiO2" in m and "Did you mean 28 %" in m for m in audit.errors[4]), audit.errors[4]
     # optional cells that cannot be read: the row is read without them, and its notes name them
     assert audit.errors[5] == [] and audit.value("ph_status", 5) == "acidaemia"
     assert "sample 'arterail' not read (did you mean 'arterial'?)" in audit.notes[5]
@@ -542,7 +542,7 @@ def test_bad_rows_go_to_the_error_column_and_the_batch_goes_on():
     batch.write_csv(table, audit, out)
     written = list(csv.reader(io.StringIO(out.getvalue())))
     assert written[0][: len(table.header)] == table.header and written[0][-2:] == ["error", "notes"]
-    assert written[1][-2:] == ["", ""] and "inputs.pco2" in written[4][-2]
+    assert written[1][-2:] == ["", ""] and "PCO2 5.3 mmHg" in written[4][-2]
     assert "arterail" in written[6][-1]
     assert written[3][0] == "text" and written[3][len(table.header)] == ""  # no outputs on a refused row
 

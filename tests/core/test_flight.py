@@ -53,7 +53,8 @@ def run(calc: str, inputs: dict, pressure_unit: str | None = None) -> dict:
             assert finding["severity"] in ("info", "notable", "urgent")
     else:
         for error in response["errors"]:
-            assert set(error) == {"field", "code", "message"} and error["code"] in ERROR_CODES
+            assert {"field", "code", "message"} <= set(error) <= {"field", "code", "message", "suggest"}
+            assert error["code"] in ERROR_CODES
     return response
 
 

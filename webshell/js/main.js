@@ -12,11 +12,12 @@ import { Panel } from "./forms/panel.js";
 import { settings, localeUnit } from "./settings.js";
 import * as caselog from "./caselog.js";
 import { CourseScreen, mountAddToCourse } from "./course/screen.js";
+import { clearDraft, readDraft, writeDraft } from "./forms/entry.js";
 
 // -- screens --
 // The screen shown when the address names none: the blood gas, the one most people open Tidewell for.
 const DEFAULT_SCREEN = "gas";
-const screens = { gas: null, breathing: null, flight: null, course: null, log: null, convert: convertScreen };
+const screens = { gas: null, breathing: null, flight: null, course: null, log: null, convert: convertScreen, settings: null };
 convertScreen.mount($("#convert"), engine);
 
 // sources and cautions seen in this session, for the About part of Settings
@@ -34,15 +35,26 @@ function seen(response) {
 function extraRequests(name, request) {
   const pick = (keys) => Object.fromEntries(keys.filter((k) => k in request.inputs).map((k) => [k, request.inputs[k]]));
   if (name === "blood_gas") {
+    // the acid-base plane in the unit the PCO2 was typed in, so the sample always sits on it
+    const unit = request.inputs.pco2 && request.inputs.pco2.unit;
     return [{ calc: "oxygen_dissociation_curve", inputs: pick(["ph", "pco2", "po2", "temperature", "base_excess"]),
-      options: request.options }];
+      options: request.options },
+    { calc: "acid_base_map", options: { pressure_unit: unit === "kPa" || unit === "mmHg" ? unit : request.options.pressure_unit } }];
   }
   if (name === "altitude") return [{ ...request, calc: "altitude_profile" }];
   return [];
 }
 
 const panels = {};
-const hooks = { seen, extraRequests, save: saveCase };
+// the form is kept as a local draft as it is typed (a reload, pull to refresh or a killed tab loses nothing)
+let draftTimer = 0;
+let restoring = true;
+function changed() {
+  if (restoring) return;
+  clearTimeout(draftTimer);
+  draftTimer = setTimeout(() => writeDraft(panels), 300);
+}
+const hooks = { seen, extraRequests, save: saveCase, changed };
 for (const host of document.querySelectorAll(".panel-host")) {
   const screen = host.closest(".screen").id;
   const examples = EXAMPLES.filter((e) => e.screen === screen);
@@ -83,11 +95,55 @@ for (const host of document.querySelectorAll(".panel-host")) {
 const courseScreen = new CourseScreen($("#course"), engine, { seen });
 mountAddToCourse(panels.blood_gas, courseScreen);
 
+// the draft of the last visit, until New patient
+const draft = readDraft();
+for (const [name, values] of Object.entries(draft)) if (panels[name]) panels[name].fill(values);
+restoring = false;
+document.documentElement.dataset.draft = Object.keys(draft).length ? "restored" : "none";
+
+// -- New patient: every field of every screen emptied at once; a short undo instead of a confirm dialog --
+const UNDO_MS = 15000;
+let undoTimer = 0;
+let emptied = null;
+function newPatient() {
+  const snapshot = {};
+  for (const [name, panel] of Object.entries(panels)) {
+    const label = panel.saveRow ? panel.saveRow.querySelector(".case-label").value : "";
+    snapshot[name] = { values: panel.values(), label };
+    panel.clear();
+  }
+  for (const note of document.querySelectorAll(".example-note")) note.textContent = "";
+  clearTimeout(draftTimer);
+  clearDraft();
+  emptied = snapshot;
+  $("#new-patient-text").textContent = "Every field emptied for a new patient.";
+  $("#new-patient-undo").hidden = false;
+  $("#new-patient-note").hidden = false;
+  document.documentElement.dataset.newPatient = "emptied";
+  clearTimeout(undoTimer);
+  undoTimer = setTimeout(() => { $("#new-patient-note").hidden = true; emptied = null; }, UNDO_MS);
+}
+function undoNewPatient() {
+  if (!emptied) return;
+  for (const [name, { values, label }] of Object.entries(emptied)) {
+    if (Object.keys(values).length) panels[name].fill(values);
+    if (label && panels[name].saveRow) panels[name].saveRow.querySelector(".case-label").value = label;
+  }
+  emptied = null;
+  clearTimeout(undoTimer);
+  $("#new-patient-text").textContent = "The previous values are back.";
+  $("#new-patient-undo").hidden = true;
+  document.documentElement.dataset.newPatient = "undone";
+  undoTimer = setTimeout(() => { $("#new-patient-note").hidden = true; }, 4000);
+}
+for (const b of document.querySelectorAll('[data-action="new-patient"]')) b.addEventListener("click", newPatient);
+$("#new-patient-undo").addEventListener("click", undoNewPatient);
+
 function showScreen() {
   const wanted = location.hash.slice(1);
   const name = wanted in screens ? wanted : DEFAULT_SCREEN;
   for (const section of document.querySelectorAll("#screens > .screen")) section.hidden = section.id !== name;
-  for (const link of document.querySelectorAll(".screens-nav a")) {
+  for (const link of document.querySelectorAll(".screens-nav a, .bar-settings")) {
     if (link.dataset.screen === name) link.setAttribute("aria-current", "page");
     else link.removeAttribute("aria-current");
   }
@@ -113,7 +169,7 @@ function say(text) {
 }
 
 async function saveCase(panel, label, status) {
-  if (!panel.last) return;
+  if (!panel.last) return false;
   const record = {
     id: caselog.newId(), time: Date.now(), label: label.slice(0, 200), screen: panel.screen, calc: panel.name,
     fields: panel.values(), pressure_unit: panel.last.request.options.pressure_unit,
@@ -124,10 +180,30 @@ async function saveCase(panel, label, status) {
     await caselog.put(record);
     status.textContent = "Saved to the case log on this device.";
     if (navigator.storage && navigator.storage.persist) navigator.storage.persist().then(showPersist, () => {});
+    return true;
   } catch (err) {
     // a full disk or refused storage is said, never swallowed; the values stay in the form
     status.textContent = `Not saved: ${caselog.writeProblem(err)}. Your values are kept in the form.`;
+    return false;
   }
+}
+
+// a deleted case can be put back with one tap (no confirm dialog for a single case)
+function offerUndoDelete(record) {
+  const undo = document.createElement("button");
+  undo.type = "button";
+  undo.id = "log-undo";
+  undo.textContent = "Undo";
+  undo.addEventListener("click", async () => {
+    try {
+      await caselog.put(record);
+      say("Case restored.");
+    } catch (err) {
+      say(`Not restored: ${caselog.writeProblem(err)}.`);
+    }
+    renderLog();
+  });
+  $("#log-message").replaceChildren(`Case "${record.label || "(no label)"}" deleted. `, undo);
 }
 
 function showPersist(granted) {
@@ -179,7 +255,7 @@ async function renderLog() {
     del.addEventListener("click", async () => {
       try {
         await caselog.remove(c.id);
-        say("Case deleted.");
+        offerUndoDelete(c);
       } catch (err) {
         say(`Not deleted: ${caselog.writeProblem(err)}.`);
       }
@@ -219,6 +295,7 @@ $("#log-export-csv").addEventListener("click", () => exportLog(caselog.exportCsv
 // "Delete all data": every saved case and every setting Tidewell keeps (localStorage and
 // sessionStorage entries named tidewell:*). The offline copy of the app itself stays: it holds no data.
 async function deleteAllData() {
+  clearTimeout(draftTimer); // the form's draft goes too, and a pending write must not bring it back
   await caselog.deleteAll();
   for (const storage of [localStorage, sessionStorage]) {
     for (const key of Object.keys(storage)) if (key.startsWith("tidewell:")) storage.removeItem(key);
@@ -286,9 +363,10 @@ function renderEngine() {
   let text;
   if (state === "ready") {
     const info = engine.info;
-    text =
-      `Engine: ready (tidewell ${info.engine}, Python ${info.python}, Pyodide ${info.pyodide}; ` +
-      `started in ${(info.timings_ms.total / 1000).toFixed(1)} s).`;
+    // plain words here; the versions are in the About line at the foot of the page
+    text = "Engine: ready. Every calculation runs on this device.";
+    $("#engine-text").title = `tidewell ${info.engine}, Python ${info.python}, Pyodide ${info.pyodide}; ` +
+      `started in ${(info.timings_ms.total / 1000).toFixed(1)} s`;
     if (engine.restarts) {
       const times = engine.restarts === 1 ? "once" : `${engine.restarts} times`;
       text += ` Restarted ${times} after a fault (last: ${engine.lastFault}).`;
@@ -298,7 +376,7 @@ function renderEngine() {
   } else if (engine.restarting) {
     text = `Engine: restarting (${engine.lastFault}). Your values are kept; results follow when it is back.`;
   } else {
-    text = `Engine: loading (${engine.progress || "starting"}). The form below already takes values.`;
+    text = `Engine: getting ready (${(engine.progress || "starting").toLowerCase()}). You can type values now.`;
   }
   $("#engine-text").textContent = text;
 }
@@ -321,6 +399,8 @@ fetch("./build-manifest.json")
 
 // -- iOS: storage is deleted after 7 days unused unless installed to the Home Screen --
 const ios = /iPhone|iPad|iPod/.test(navigator.userAgent) || (navigator.platform === "MacIntel" && navigator.maxTouchPoints > 1);
+// the note is shown on iPhone and iPad only (css: html[data-ios]); elsewhere it does not apply
+if (ios) document.documentElement.dataset.ios = "1";
 if (ios && !navigator.standalone) $("#ios-note").classList.add("ios-note-urgent");
 if (navigator.standalone) $("#ios-note").hidden = true;
 

@@ -4,6 +4,8 @@
 import { formatValue, parseNumber } from "../format.js";
 import { settings } from "../settings.js";
 import { drawPictures, shareBar } from "./pictures.js";
+import { HOLD_MS, commaReadings, identifierWarning } from "./entry.js";
+import { outputLabel, unitWord, valueWord } from "./labels.js";
 
 const el = (tag, props = {}, ...children) => {
   const node = document.createElement(tag);
@@ -23,31 +25,28 @@ const SEVERITY = {
   info: ["For the record", "sev-info"],
 };
 
-const words = (text) => String(text).replaceAll("_", " ");
-const LABELS = {
-  ph_status: "pH reading", hco3: "HCO3", hco3_computed: "HCO3 from pH and PCO2", standard_base_excess: "Standard base excess",
-  expected_hco3: "Expected HCO3", expected_pco2: "Expected PCO2", pco2_target: "PaCO2 to aim for",
-  pao2_alveolar: "Alveolar PO2", a_a_gradient: "A-a gradient", a_a_expected_upper: "A-a upper limit for age",
-  a_over_A: "a/A ratio", pf_ratio: "P/F ratio", spo2_target: "SpO2 target (%)", pio2: "Inspired PO2",
-  pb: "Barometric pressure", minute_ventilation: "Minute ventilation", alveolar_ventilation: "Alveolar ventilation",
-  vd_vt: "Dead-space fraction (VD/VT)", vco2: "CO2 production", to_target: "To reach the target",
-  predicted_body_weight: "Predicted body weight", vt_per_kg_pbw: "Tidal volume per kg", fio2_equivalent:
-  "FiO2 that keeps today's alveolar PO2", po2_predicted: "Predicted PaO2 at altitude", max_altitude: "Highest safe altitude",
-  available_litres: "Oxygen available", required_litres: "Oxygen needed", minutes_available: "Time the oxygen lasts",
-  sufficient: "Enough oxygen?", anion_gap: "Anion gap", anion_gap_corrected: "Anion gap (albumin-corrected)",
-};
-const label = (path) => {
-  const parts = path.split(".");
-  return [LABELS[parts[0]] || words(parts[0]), ...parts.slice(1).map(words)].join(" › ");
-};
+// the general caution said once for the whole app (the footer), never again in each report
+const ONCE = /^Decision support only\b/;
+
+function findingList(findings, name) {
+  const list = el("ul", { class: "findings", "aria-label": name });
+  for (const f of findings) {
+    const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
+    list.append(el("li", { class: `finding ${cls}`, "data-code": f.code, "data-severity": f.severity },
+      el("span", { class: "sev-mark", "aria-hidden": "true" }),
+      el("strong", { class: "sev-word" }, `${word}: `), f.text));
+  }
+  return list;
+}
 
 function quantityText(value, decimals) {
   if (value && typeof value === "object" && "value" in value && "unit" in value && typeof value.value === "number") {
-    return `${formatValue(value.value, decimals)} ${value.unit}`;
+    const unit = unitWord(value.unit);
+    return unit ? `${formatValue(value.value, decimals)} ${unit}` : formatValue(value.value, decimals);
   }
   if (typeof value === "number") return formatValue(value, decimals);
   if (typeof value === "boolean") return value ? "yes" : "no";
-  return words(value);
+  return valueWord(value);
 }
 
 // outputs -> [path, shown text, raw value] rows; lists of numbers (curves) are drawn, not listed
@@ -56,7 +55,7 @@ export function flatten(name, value, decimals) {
   if (Array.isArray(value)) {
     if (value.every((v) => v && typeof v === "object" && "code" in v)) {
       const text = value.length === 0 ? "none" : value.map((d) =>
-        [words(d.code), d.role && `(${words(d.role)}${d.chronicity ? `, ${words(d.chronicity)}` : ""})`]
+        [valueWord(d.code), d.role && `(${valueWord(d.role)}${d.chronicity ? `, ${valueWord(d.chronicity)}` : ""})`]
           .filter(Boolean).join(" ")).join("; ");
       return [[name, text, text]];
     }
@@ -68,7 +67,7 @@ export function flatten(name, value, decimals) {
   if (typeof value === "object") {
     if ("low" in value && "high" in value && Object.keys(value).length === 2) {
       const low = value.low, high = value.high;
-      const unit = typeof low === "object" ? ` ${low.unit}` : "";
+      const unit = typeof low === "object" ? ` ${unitWord(low.unit)}` : "";
       const num = (v) => formatValue(typeof v === "object" ? v.value : v, decimals);
       return [[name, `${num(low)} to ${num(high)}${unit}`, `${num(low)}..${num(high)}`]];
     }
@@ -99,29 +98,53 @@ export class Panel {
     this.root.append(el("h3", { id: `${id}-title` }, spec.title));
     this.form = el("form", { class: "calc-form", autocomplete: "off", noValidate: true });
     const main = el("div", { class: "fields" });
-    const more = el("details", { class: "more" }, el("summary", {}, "More inputs (optional)"));
+    this.moreSummary = el("summary", {}, "More inputs (optional)");
+    const more = el("details", { class: "more" }, this.moreSummary);
+    this.more = more;
     const moreFields = el("div", { class: "fields" });
     more.append(moreFields);
     for (const field of spec.fields) (field[3] ? moreFields : main).append(this.makeField(...field));
-    this.form.append(main, more);
+    // once a reading is ready, its headline shows here too, next to the values being typed
+    this.near = el("p", { class: "near-headline", hidden: true });
+    this.form.append(main, this.near, more);
     this.form.addEventListener("submit", (e) => e.preventDefault());
-    this.form.addEventListener("input", () => this.soon());
+    this.lastTyped = 0;
+    this.form.addEventListener("input", () => { this.lastTyped = performance.now(); this.soon(); });
     // text fields recompute on input; "change" only for selectors and tick boxes (a blur is no edit)
     this.form.addEventListener("change", (e) => { if (e.target.type !== "text") this.soon(); });
+    // leaving a field shows the notes held back while it was being typed
+    this.form.addEventListener("focusout", () => setTimeout(() => this.releaseHeld(), 0));
 
     this.report = el("div", { class: "report", id: `${id}-report`, "data-state": "idle", "aria-live": "polite" });
-    this.status = el("span", { class: "muted", role: "status" });
+    this.status = el("span", { class: "muted", "aria-live": "polite" }); // Copied, Copy refused
     this.root.append(this.form, this.report);
     if (spec.save) {
       const lid = `${id}-label`;
       const labelInput = el("input", { type: "text", id: lid, class: "case-label", maxLength: 200,
         placeholder: "e.g. bay 3, second gas", "aria-describedby": `${lid}-hint` });
       const save = el("button", { type: "button", class: "save", id: `${id}-save` }, "Save to case log");
-      save.addEventListener("click", () => this.hooks.save(this, labelInput.value, this.status));
+      this.saveButton = save;
+      this.saveStatus = el("p", { class: "save-status muted", role: "status" });
+      // a soft warning (saving still works): the label looks like a name, a date or a record number
+      const warn = el("p", { class: "label-warning", id: `${lid}-warn`, "aria-live": "polite" });
+      labelInput.addEventListener("input", () => {
+        warn.textContent = identifierWarning(labelInput.value);
+        this.resetSave();
+      });
+      // one save per change: the button says "Saved" and waits for the next change (a double tap saves once)
+      save.addEventListener("click", async () => {
+        if (save.disabled) return;
+        save.disabled = true;
+        const saved = await this.hooks.save(this, labelInput.value, this.saveStatus);
+        if (saved) {
+          save.textContent = "Saved";
+          save.dataset.saved = "1";
+        } else save.disabled = false;
+      });
       this.saveRow = el("div", { class: "save-row", hidden: true },
         el("label", { for: lid }, "Case label"),
         el("p", { class: "hint", id: `${lid}-hint` }, "No names, dates of birth or record numbers."),
-        el("div", { class: "entry" }, labelInput, save));
+        el("div", { class: "entry" }, labelInput, save), warn, this.saveStatus);
       this.root.append(this.saveRow);
     }
     host.append(this.root);
@@ -165,7 +188,7 @@ export class Panel {
       else if (Array.isArray(kind)) units = kind;
       if (units) {
         const select = el("select", { id: `${fid}-unit`, "aria-label": `${text} unit`, class: "unit" });
-        for (const u of units) select.append(new Option(u, u));
+        for (const u of units) select.append(new Option(unitWord(u) || u, u));
         if (kind === "P") select.value = settings.pressureUnit;
         if (units.length === 1) select.disabled = true;
         row.append(select);
@@ -174,6 +197,11 @@ export class Panel {
       box.append(el("label", { for: fid }, text), row);
     }
     box.append(el("p", { class: "field-error", id: `${fid}-error`, role: "alert" }));
+    // a question instead of a guess ("8,000"), and a "did you mean" to apply with one tap
+    entry.ask = el("div", { class: "ask", "data-ask": name, hidden: true });
+    entry.offer = el("div", { class: "offer", hidden: true });
+    box.append(entry.ask, entry.offer);
+    entry.label = text;
     this.inputs[name] = entry;
     return box;
   }
@@ -191,6 +219,68 @@ export class Panel {
     return out;
   }
 
+  // a change (a value, the label, a new reading) makes the case savable again
+  resetSave() {
+    if (!this.saveButton || !this.saveButton.dataset.saved) return;
+    this.saveButton.disabled = false;
+    this.saveButton.textContent = "Save to case log";
+    delete this.saveButton.dataset.saved;
+    this.saveStatus.textContent = "";
+  }
+
+  // how many optional inputs hold a value: said on the collapsed "More inputs" so none is forgotten
+  updateMore() {
+    const v = this.values();
+    const n = this.spec.fields.filter((f) => f[3] && v[f[0]] !== undefined).length;
+    this.moreSummary.textContent = n ? `More inputs (${n} set)` : "More inputs (optional)";
+    this.more.dataset.set = String(n);
+  }
+
+  // empty every field (New patient): no value, no note, no answer, nothing in flight drawn later
+  clear() {
+    this.sequence++;
+    clearTimeout(this.timer);
+    clearTimeout(this.sureTimer);
+    clearTimeout(this.holdTimer);
+    for (const entry of Object.values(this.inputs)) {
+      if (entry.check) entry.check.checked = false;
+      else if (entry.select) entry.select.value = "";
+      else {
+        entry.text.value = "";
+        if (entry.unit) entry.unit.value = entry.kind === "P" ? settings.pressureUnit : entry.unit.options[0].value;
+      }
+    }
+    this.more.open = false;
+    this.clearErrors();
+    this.showAsks([]);
+    this.last = null;
+    this.sure = null;
+    this.renderIdle();
+    delete this.report.dataset.busy;
+    if (this.saveRow) {
+      this.saveRow.hidden = true;
+      this.saveRow.querySelector(".case-label").value = "";
+      this.saveRow.querySelector(".label-warning").textContent = "";
+      this.resetSave();
+    }
+    this.status.textContent = "";
+    this.updateMore();
+  }
+
+  // the typed text and unit of one field, as a "did you mean" offers them: {value, unit?}
+  apply(name, suggestion) {
+    const entry = this.inputs[name];
+    if (!entry || !entry.text) return;
+    entry.text.value = String(suggestion.value);
+    if (entry.unit) {
+      let unit = suggestion.unit;
+      if (entry.kind === "fio2" && (unit === undefined || unit === "1")) unit = "fraction";
+      if (unit && [...entry.unit.options].some((o) => o.value === unit)) entry.unit.value = unit;
+    }
+    if (this.hooks.changed) this.hooks.changed(this);
+    this.calculate();
+  }
+
   fill(values) {
     for (const [name, entry] of Object.entries(this.inputs)) {
       const v = values[name];
@@ -204,6 +294,8 @@ export class Panel {
     }
     const optional = this.spec.fields.some((f) => f[3] && values[f[0]] !== undefined);
     this.form.querySelector("details.more").open = optional;
+    this.updateMore();
+    if (this.hooks.changed) this.hooks.changed(this);
     this.calculate();
   }
 
@@ -232,16 +324,80 @@ export class Panel {
     clearTimeout(this.timer);
     clearTimeout(this.sureTimer); // an edit cancels the how-sure run that was about to start
     this.timer = setTimeout(() => this.calculate(), 250);
+    this.updateMore();
+    if (this.hooks.changed) this.hooks.changed(this);
+  }
+
+  // "8,000": which reading? Each ambiguous field shows the question and one button per reading.
+  showAsks(asks) {
+    const asked = new Map(asks);
+    for (const [name, entry] of Object.entries(this.inputs)) {
+      if (!entry.ask) continue;
+      const readings = asked.get(name);
+      entry.ask.hidden = !readings;
+      if (!readings) { entry.ask.replaceChildren(); continue; }
+      const unit = entry.unit && entry.unit.value !== "fraction" ? ` ${unitWord(entry.unit.value)}` : "";
+      const typed = entry.text.value.trim();
+      const buttons = readings.map((r) => {
+        const b = el("button", { type: "button", class: "use", "data-reading": r }, `${r}${unit}`);
+        b.addEventListener("click", () => this.apply(name, { value: r, unit: entry.unit && entry.unit.value }));
+        return b;
+      });
+      entry.ask.replaceChildren(el("p", {}, `"${typed}" can be read two ways. Which did you mean?`), ...buttons);
+    }
+  }
+
+  // a field's notes are held back while the user is still typing in it (see HOLD_MS)
+  holding(name) {
+    const box = this.form.querySelector(`[data-input="${CSS.escape(name)}"]`);
+    return Boolean(box && box.contains(document.activeElement) && performance.now() - this.lastTyped < HOLD_MS);
+  }
+
+  releaseHeld() {
+    const held = [...this.form.querySelectorAll(".field-error[data-held]")];
+    const still = held.filter((p) => this.holding(p.closest("[data-input]").dataset.input));
+    for (const p of held) {
+      if (still.includes(p)) continue;
+      delete p.dataset.held;
+      p.hidden = false;
+      const box = p.closest("[data-input]");
+      box.querySelector("input, select").setAttribute("aria-invalid", "true");
+      box.querySelector(".offer").hidden = !box.querySelector(".offer").childElementCount;
+    }
+    const none = this.report.querySelector(".report-none");
+    if (none && !still.length) none.textContent = "No reading yet: see the notes at the fields.";
+    if (still.length) {
+      clearTimeout(this.holdTimer);
+      this.holdTimer = setTimeout(() => this.releaseHeld(), HOLD_MS - (performance.now() - this.lastTyped) + 20);
+    }
+  }
+
+  showNear(headline) {
+    if (!headline) { this.near.hidden = true; return; }
+    const go = el("a", { href: `#${this.id}-report`, class: "near-go" }, "Report below");
+    go.addEventListener("click", (e) => {
+      e.preventDefault();
+      this.report.scrollIntoView({ block: "start", behavior: "smooth" });
+    });
+    this.near.replaceChildren(el("strong", {}, "Reading: "), headline, " ", go);
+    this.near.hidden = false;
   }
 
   renderIdle() {
+    if (this.near) this.near.hidden = true;
     const names = this.spec.required.map((n) => this.spec.fields.find((f) => f[0] === n)[1]);
     this.report.dataset.state = "idle";
     this.report.replaceChildren(el("p", { class: "muted" }, `Enter ${names.join(", ")} to see the reading.`));
   }
 
   clearErrors() {
-    for (const p of this.form.querySelectorAll(".field-error")) p.textContent = "";
+    for (const p of this.form.querySelectorAll(".field-error")) {
+      p.textContent = "";
+      p.hidden = false;
+      delete p.dataset.held;
+      delete p.dataset.code;
+    }
+    for (const o of this.form.querySelectorAll(".offer")) { o.replaceChildren(); o.hidden = true; }
     for (const i of this.form.querySelectorAll("[aria-invalid]")) i.removeAttribute("aria-invalid");
   }
 
@@ -250,6 +406,25 @@ export class Panel {
     clearTimeout(this.sureTimer);
     const mine = ++this.sequence;
     this.report.dataset.busy = "1";
+
+    // a comma before exactly three digits is never guessed: ask, and send nothing until answered
+    const asks = [];
+    for (const [name, entry] of Object.entries(this.inputs)) {
+      const readings = entry.text && commaReadings(entry.text.value);
+      if (readings) asks.push([name, readings]);
+    }
+    this.showAsks(asks);
+    if (asks.length) {
+      this.clearErrors();
+      this.last = null;
+      if (this.saveRow) this.saveRow.hidden = true;
+      const names = asks.map(([n]) => this.inputs[n].label).join(", ");
+      this.report.dataset.state = "ask";
+      this.report.replaceChildren(el("p", { class: "report-ask" },
+        `No reading yet: ${names} can be read two ways. Tap the value you meant at the field.`));
+      delete this.report.dataset.busy;
+      return;
+    }
 
     if (!this.hasRequired()) {
       this.clearErrors();
@@ -381,13 +556,14 @@ export class Panel {
 
   showPictures(request, response, more) {
     const pics = drawPictures(this.spec.pictures || [], response, more, request);
-    const old = this.report.querySelector(":scope > .pictures, :scope > .pictures-slot");
+    const old = this.report.querySelector(".pictures, .pictures-slot");
     if (!old) return;
     old.replaceWith(pics || el("div", { class: "pictures-slot", hidden: true }));
   }
 
   render(request, response, more = []) {
     delete this.report.dataset.engineError;
+    this.near.hidden = true;
     this.clearErrors();
     const out = [];
     this.sure = null;
@@ -401,29 +577,89 @@ export class Panel {
           const p = box.querySelector(".field-error");
           p.textContent = p.textContent ? `${p.textContent} ${error.message}` : error.message;
           p.dataset.code = error.code;
-          const input = box.querySelector("input, select");
-          input.setAttribute("aria-invalid", "true");
+          const offer = box.querySelector(".offer");
+          if (error.suggest && typeof error.suggest.value === "number" && this.inputs[name].text) {
+            const b = el("button", { type: "button", class: "use", "data-action": "use-suggestion" },
+              `Use ${suggestionText(error.suggest, this.inputs[name])}`);
+            b.addEventListener("click", () => this.apply(name, error.suggest));
+            offer.replaceChildren(b);
+          }
+          if (this.holding(name)) {
+            // still being typed: say nothing yet (released on a pause or when the field is left)
+            p.hidden = true;
+            p.dataset.held = "1";
+            offer.hidden = true;
+          } else {
+            box.querySelector("input, select").setAttribute("aria-invalid", "true");
+            offer.hidden = !offer.childElementCount;
+          }
           const details = box.closest("details");
           if (details) details.open = true;
         } else {
           loose.append(el("li", { "data-code": error.code }, error.message));
         }
       }
-      out.push(el("p", { class: "report-none" }, "No reading yet: see the notes at the fields."));
+      const held = this.form.querySelector(".field-error[data-held]");
+      out.push(el("p", { class: "report-none" }, held && !loose.childElementCount
+        ? "No reading yet: finish the value you are typing."
+        : "No reading yet: see the notes at the fields."));
       if (loose.childElementCount) out.push(loose);
       this.report.dataset.state = "error";
       this.report.replaceChildren(...out);
+      if (held) {
+        clearTimeout(this.holdTimer);
+        this.holdTimer = setTimeout(() => this.releaseHeld(), HOLD_MS - (performance.now() - this.lastTyped) + 20);
+      }
       return;
     }
     this.last = { request, response };
+    this.resetSave();
     this.hooks.seen(response);
     const display = response.display || {};
 
-    // 1. the summary, to copy into the notes
-    const summaryText = (response.summary || []).join(" ");
-    const summary = el("section", { class: "summary", "aria-label": "Summary" });
-    for (const sentence of response.summary || []) summary.append(el("p", {}, sentence));
-    const tools = el("div", { class: "row-buttons" });
+    // 0. a likely slip (a unit mix-up) leads the report, with its value to use in one tap
+    const offered = response.findings.filter((f) => Array.isArray(f.suggest) && f.suggest.length);
+    if (offered.length) {
+      const lead = el("section", { class: "check-first", "aria-label": "Check first" });
+      for (const f of offered) {
+        const row = el("div", { class: "row-buttons" });
+        for (const s of f.suggest) {
+          const name = String(s.field || "").replace(/^inputs\./, "");
+          const entry = this.inputs[name];
+          if (!entry || !entry.text) continue;
+          const b = el("button", { type: "button", class: "use", "data-action": "use-suggestion", "data-field": name },
+            `Use ${suggestionText(s, entry)}`);
+          b.addEventListener("click", () => this.apply(name, s));
+          row.append(b);
+        }
+        lead.append(el("p", { "data-code": f.code }, el("strong", {}, "Check first: "), f.text), row);
+      }
+      out.push(lead);
+    }
+
+    // 1. the answer first: a headline, the numbers that matter, what must be acted on now
+    const shownFindings = response.findings.filter((f) => !offered.includes(f));
+    const urgent = shownFindings.filter((f) => f.severity === "urgent");
+    const headline = (this.spec.headline ? this.spec.headline(response) : (response.summary || [])[0]) || "";
+    const first = el("section", { class: "answer-first", "aria-label": "Answer" },
+      el("p", { class: "headline", "data-headline": "" }, headline));
+    const keyRows = (this.spec.key || []).filter((k) => k in response.outputs)
+      .flatMap((k) => flatten(k, response.outputs[k], display[k])).slice(0, 5);
+    if (keyRows.length) {
+      const dl = el("dl", { class: "key-numbers" });
+      for (const [path, text] of keyRows) {
+        dl.append(el("div", { class: "key", "data-key": path }, el("dt", {}, outputLabel(path)), el("dd", {}, text)));
+      }
+      first.append(dl);
+    }
+    if (urgent.length) first.append(findingList(urgent, "Act now"));
+    out.push(first);
+    this.showNear(headline);
+
+    // 2. actions: copy or share the summary (saving is under the report)
+    const usedLine = usedText(request, this.inputs);
+    const summaryText = [...(response.summary || []), usedLine].join(" ");
+    const tools = el("div", { class: "row-buttons actions-row" });
     const copy = el("button", { type: "button", class: "copy" }, "Copy summary");
     const status = this.status;
     copy.addEventListener("click", async () => {
@@ -442,48 +678,52 @@ export class Panel {
       tools.append(share);
     }
     tools.append(status);
-    summary.append(tools);
-    out.push(summary);
+    out.push(tools);
 
-    // 1b. how sure the reading is, filled in later by showSure(); its own polite live region, read whole
+    // 3. the rest, one tap away: the summary, how sure, the other findings, cautions, pictures, every number
+    const restBox = el("details", { class: "full-report" },
+      el("summary", {}, "Full report: summary, findings, pictures and every number with its source"));
+    const rest = [];
+    const summary = el("section", { class: "summary", "aria-label": "Summary" });
+    // the general "decision support only" is said once for the whole app (the footer), not in every report
+    for (const sentence of response.summary || []) {
+      if (!ONCE.test(sentence)) summary.append(el("p", {}, sentence));
+    }
+    summary.append(el("p", { class: "used", "data-used": "" }, usedLine));
+    rest.push(summary);
+
+    // how sure the reading is, filled in later by showSure(); its own polite live region, read whole
     if (this.spec.howSure) {
       this.sure = el("section", { class: "how-sure", "data-state": "waiting", "aria-label": this.spec.howSure.title,
         "aria-live": "polite", "aria-atomic": "true" },
       el("p", { class: "sure-line muted" }, this.spec.howSure.working));
-      out.push(this.sure);
+      rest.push(this.sure);
     }
 
-    // 2. findings by severity: a word and a shape, never colour alone
-    if (response.findings.length) {
-      const list = el("ul", { class: "findings", "aria-label": "Findings" });
-      for (const f of response.findings) {
-        const [word, cls] = SEVERITY[f.severity] || [f.severity, "sev-info"];
-        list.append(el("li", { class: `finding ${cls}`, "data-code": f.code, "data-severity": f.severity },
-          el("span", { class: "sev-mark", "aria-hidden": "true" }),
-          el("strong", { class: "sev-word" }, `${word}: `), f.text));
-      }
-      out.push(list);
-    }
+    // findings by severity: a word and a shape, never colour alone (the urgent ones are above)
+    const others = shownFindings.filter((f) => f.severity !== "urgent");
+    if (others.length) rest.push(findingList(others, "Findings"));
 
-    // 3. cautions, always visible
-    if (response.cautions.length) {
+    // cautions: each once; the general one is in the footer
+    const cautionsShown = response.cautions.filter((c) => !ONCE.test(c));
+    if (cautionsShown.length) {
       const cautions = el("section", { class: "cautions", "aria-label": "Cautions" }, el("h4", {}, "Take care"));
       const ul = el("ul");
-      for (const c of response.cautions) ul.append(el("li", {}, c));
+      for (const c of cautionsShown) ul.append(el("li", {}, c));
       cautions.append(ul);
-      out.push(cautions);
+      rest.push(cautions);
     }
 
-    // 4. pictures drawn from the core's arrays
+    // pictures drawn from the core's arrays
     // (those from other calculations come in later through showPictures(), into this slot)
     const pics = drawPictures(this.spec.pictures || [], response, more, request);
-    out.push(pics || el("div", { class: "pictures-slot", hidden: true }));
+    rest.push(pics || el("div", { class: "pictures-slot", hidden: true }));
 
-    // 5. the numbers, in sections; a tap shows the step behind each
+    // the numbers, in sections; a tap shows the step behind each
     const used = new Set();
     const sections = [...(this.spec.sections || [])];
-    const rest = Object.keys(response.outputs).filter((k) => !sections.some(([, keys]) => keys.includes(k)));
-    sections.push(["More numbers", rest]);
+    const leftover = Object.keys(response.outputs).filter((k) => !sections.some(([, keys]) => keys.includes(k)));
+    sections.push(["More numbers", leftover]);
     for (const [title, keys] of sections) {
       const rows = keys.filter((k) => k in response.outputs && !used.has(k))
         .flatMap((k) => { used.add(k); return flatten(k, response.outputs[k], display[k]); });
@@ -497,7 +737,7 @@ export class Panel {
         const steps = response.steps.filter((s) => s.output === top);
         const dd = el("dd");
         const button = el("button", { type: "button", class: "num", "data-out": path, "data-raw": String(raw),
-          "aria-expanded": "false", "aria-label": `${label(path)}: ${text}. Show how it was worked out` }, text);
+          "aria-expanded": "false", "aria-label": `${outputLabel(path)}: ${text}. Show how it was worked out` }, text);
         if (!steps.length) button.disabled = true;
         const how = el("div", { class: "how", hidden: true });
         button.addEventListener("click", () => {
@@ -508,14 +748,35 @@ export class Panel {
           button.setAttribute("aria-expanded", String(!how.hidden));
         });
         dd.append(button, how);
-        dl.append(el("dt", {}, label(path)), dd);
+        dl.append(el("dt", {}, outputLabel(path)), dd);
       }
       box.append(dl);
-      out.push(box);
+      rest.push(box);
     }
+    restBox.append(...rest);
+    out.push(restBox);
     this.report.dataset.state = "done";
     this.report.replaceChildren(...out);
   }
+}
+
+function suggestionText(s, entry) {
+  const unit = s.unit !== undefined ? s.unit : entry && entry.unit ? entry.unit.value : "";
+  const word = unitWord(unit);
+  return word ? `${s.value} ${word}` : String(s.value);
+}
+
+// "From: pH 7.28, PCO2 9.1 kPa, ...": every input the report used, with its unit, as sent
+function usedText(request, inputs) {
+  const parts = [];
+  for (const [name, v] of Object.entries(request.inputs)) {
+    const label = inputs[name] ? inputs[name].label : name;
+    if (v === true) parts.push(label);
+    else if (v && typeof v === "object") parts.push(`${label} ${v.value}${unitWord(v.unit) === "%" ? "" : " "}${unitWord(v.unit)}`);
+    else if (typeof v === "string" && inputs[name] && inputs[name].select) parts.push(`${label}: ${v}`);
+    else parts.push(`${label} ${v}`);
+  }
+  return `From: ${parts.join(", ")}.`;
 }
 
 function stepView(s, decimals) {
@@ -525,7 +786,7 @@ function stepView(s, decimals) {
     el("p", { class: "step-label" }, s.label),
     el("p", { class: "step-formula" }, el("code", {}, s.formula), ` = ${result}`));
   if (s.inputs && typeof s.inputs === "object") {
-    const parts = Object.entries(s.inputs).map(([k, v]) => `${words(k)} ${quantityText(v)}`);
+    const parts = Object.entries(s.inputs).map(([k, v]) => `${k.replaceAll("_", " ")} ${quantityText(v)}`);
     box.append(el("p", { class: "step-inputs" }, `Using: ${parts.join(", ")}`));
   }
   box.append(el("p", { class: "step-source" }, `Source: ${s.source}`));
