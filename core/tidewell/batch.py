@@ -611,11 +611,17 @@ def choice_word(key: str, text: str) -> str:
     return site_word(text) if key == "sample" else text.strip().casefold()
 
 
+#: optional inputs that change the reading of the others (the oxygenation at an altitude or pressure, the
+#: FiO2): a cell that cannot be read refuses the row, which is never read as if it were not given
+#: (independent review: "8,000" ft read at sea level)
+READ_OR_REFUSE = frozenset({"altitude", "pb", "fio2"})
+
+
 def _unread(key: str, kind: str, distinct: list[str], states: list[int]) -> list[bool]:
     """Per distinct text of an optional column, True when it is given but cannot be read: not a number (a
     number with a bad unit or out of range is read, and refused by the reader with its own message), not one
     of the words of a choice, not a yes/no of a flag."""
-    if key in REQUIRED:
+    if key in REQUIRED or key in READ_OR_REFUSE:
         return [False] * len(distinct)
     if kind == "choice":
         choices = FIELDS[key].options["choices"]
@@ -753,6 +759,8 @@ def _read_arrays(table: Table, rows: np.ndarray):
     ok &= ~(oxygen & interpret.po2_above_inspired(v.po2, pio2))
     ok &= ~(oxygen & interpret.no_alveolar_oxygen(pio2, v.pco2, v.rq))
     flags = interpret.mix_up_flags(
+        ph=v.ph,
+        hco3=v.hco3,
         pco2=v.pco2,
         pco2_unit=unit_of["pco2"],
         baseline=v.baseline_pco2,

@@ -1422,7 +1422,7 @@ def _to_target(
                 f"({te_min:.1f} s, {tau_used:g} s {tau_word}): risk of gas trapping and auto-PEEP.",
             )
     report.put("to_target", out, decimals=1)
-    _settings(report, out, rr=rr, vt=vt, target=target)
+    _settings(report, out, rr=rr, vt=vt, target=target, pbw=pbw, ie=ie, te_min=te_min)
     if target < pco2:
         report.caution(
             "If the patient has chronic hypercapnia, aim for their usual PaCO2 rather than 40 mmHg and lower "
@@ -1439,16 +1439,38 @@ def _whole(x: float, step: float) -> float:
     return math.floor(x / step + 0.5) * step
 
 
-def _settings(report: Report, out: dict, *, rr: float, vt: float, target: float) -> None:
+#: the rates a summary offers as a setting [/min]: 6 to 35 (35 is the ARDSNet protocol's maximum, ardsnet2000;
+#: below 6 a ventilator rate is no plan; common practice)
+SETTING_RR_RANGE = (6.0, 35.0)
+
+
+def _settings(
+    report: Report,
+    out: dict,
+    *,
+    rr: float,
+    vt: float,
+    target: float,
+    pbw: float | None,
+    ie: tuple[float, float],
+    te_min: float | None,
+) -> None:
     """The settings asked for, as a ventilator is set (common practice): a rate in whole breaths per
-    minute and a tidal volume to 10 mL; the first sentence of the summary."""
+    minute and a tidal volume to 10 mL; the first sentence of the summary. Each rounded option is checked
+    against safe limits before it is worded (rate 6-35/min, VT at most 8 mL/kg PBW when height and sex are
+    given, an expiratory time of at least 3 time constants when known): an option outside them is said to be
+    not reachable safely, in the same sentence, never offered."""
     aim = f"To reach PaCO2 {report.pressure_text(target)}"
     if "rr_at_same_vt" not in out:
         ve_new = out["minute_ventilation"]["value"]
         report.say(f"{aim}: minute ventilation about {ve_new:.1f} L/min (no dead space to split it by).")
         return
     rr_set = int(_whole(out["rr_at_same_vt"], 1.0))
-    vt_set = _whole(out["vt_at_same_rr"]["value"], 10.0)
+    vt_exact = out["vt_at_same_rr"]["value"]
+    vt_set = _whole(vt_exact, 10.0)
+    limit = vn.LUNG_PROTECTIVE_ML_PER_KG[2]
+    if pbw is not None and vt_set / pbw > limit >= vt_exact / pbw:
+        vt_set -= 10.0  # rounding must not carry the VT over 8 mL/kg
     report.put(
         "settings",
         {"rr": {"value": rr_set, "unit": "/min"}, "vt": {"value": vt_set, "unit": "mL"}},
@@ -1460,12 +1482,41 @@ def _settings(report: Report, out: dict, *, rr: float, vt: float, target: float)
         rr_set,
         "to_target_pco2",
         output="settings",
-        inputs={"rr_exact_per_min": out["rr_at_same_vt"], "vt_exact_ml": out["vt_at_same_rr"]["value"]},
+        inputs={"rr_exact_per_min": out["rr_at_same_vt"], "vt_exact_ml": vt_exact},
     )
-    report.say(
-        f"{aim}: rate {rr_set:.0f}/min at VT {vt:.0f} mL, or VT {vt_set:.0f} mL at rate {rr:g}/min "
-        f"(minute ventilation {out['minute_ventilation']['value']:.1f} L/min)."
+    # each option checked as rounded
+    te_set = vn.respiratory_timing(
+        rr_per_min=min(max(float(rr_set), 0.1), 150.0), i_part=ie[0], e_part=ie[1]
+    ).te_s
+    rate_why = []
+    if not SETTING_RR_RANGE[0] <= rr_set <= SETTING_RR_RANGE[1]:
+        rate_why.append(
+            f"a rate of {rr_set}/min is outside {SETTING_RR_RANGE[0]:.0f}-{SETTING_RR_RANGE[1]:.0f}/min"
+        )
+    elif te_min is not None and te_set < te_min:
+        rate_why.append(f"at {rr_set}/min the expiration would be shorter than 3 time constants")
+    vt_why = []
+    if pbw is not None and vt_set / pbw > limit:
+        vt_why.append(f"VT {vt_set:.0f} mL is {vt_set / pbw:.1f} mL/kg PBW, above {limit:g}")
+    rate = (
+        f"rate {rr_set}/min at VT {vt:.0f} mL"
+        if not rate_why
+        else f"not reachable safely by rate alone ({rate_why[0]})"
     )
+    volume = (
+        f"VT {vt_set:.0f} mL at rate {rr:g}/min"
+        if not vt_why
+        else f"not reachable safely by VT alone ({vt_why[0]})"
+    )
+    if rate_why and vt_why:
+        report.say(
+            f"{aim}: {rate}; {volume}. Consider a combination, or accepting a higher PaCO2, with senior "
+            "advice."
+        )
+    else:
+        report.say(
+            f"{aim}: {rate}; or {volume} (minute ventilation {out['minute_ventilation']['value']:.1f} L/min)."
+        )
 
 
 _CAUSE_WORDS = {

@@ -118,6 +118,12 @@ def kinds() -> dict[str, str]:
     return _KINDS
 
 
+#: inputs whose usual values run into thousands (an altitude, a barometric pressure in hPa or Pa): "8.000" and
+#: "8,000" may be a thousands separator
+LARGE_VALUES = frozenset({"altitude", "pb", "origin_altitude", "ceiling", "cylinder_pressure"})
+THOUSANDS = re.compile(r"^\s*(\d{1,3}[.,]\d{3})\s*([A-Za-z%°].*?)?\s*$")
+
+
 def typed_value(key: str, text: str, default_unit: str | None = None, decimal_comma: bool = False):
     """One blood_gas input typed as text, in the form a request carries it (None when not given).
 
@@ -146,6 +152,11 @@ def typed_value(key: str, text: str, default_unit: str | None = None, decimal_co
             return {"low": float(low), "high": float(high)}
         except ValueError:
             return text.strip()
+    if key in LARGE_VALUES and THOUSANDS.match(text):
+        # "8.000 ft" or "8,000 ft": a thousands separator or a decimal mark? never guessed: the text goes on
+        # as typed, and the bridge asks, offering both readings
+        number_text, unit = THOUSANDS.match(text).group(1, 2)
+        return {"value": number_text, "unit": canonical_unit(unit) or default_unit}
     state, number, unit = split_cell(text, decimal_comma)
     unit = unit if unit is not None else default_unit
     value = number if state == NUMBER else text.strip()

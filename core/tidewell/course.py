@@ -757,7 +757,13 @@ class _Course:
             k = self.position[id(start)]
             on = [] if known else [start]
             running = True
-            for x in self.gases[k + 1 :]:
+            # NIV already running at a first gas that it was stopped after (or intubated): the run ends there
+            later = (
+                [] if not known and {"niv_stopped", "intubated"} & set(start.events) else self.gases[k + 1 :]
+            )
+            if not known and not later:
+                running = False
+            for x in later:
                 on.append(x)
                 if "niv_stopped" in x.events or "intubated" in x.events:
                     running = False

@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import re
 
 from . import units
 from .errors import InputError, InputErrors, is_real
@@ -80,7 +81,12 @@ class Inputs:
 
     def _check_number(self, key: str, value: object, label: str) -> float | None:
         if not is_real(value):
-            self.fail(key, value, f"{label} must be a number", code="not_a_number")
+            hint = ""
+            if isinstance(value, str) and re.fullmatch(r"\s*\d{1,3}[.,]\d{3}\s*", value):
+                # "8,000" or "8.000": a thousands separator or a decimal mark; never guessed (ask)
+                whole, part = re.split(r"[.,]", value.strip())
+                hint = f"Did you mean {whole}{part} or {float(whole + '.' + part):g}?"
+            self.fail(key, value, f"{label} must be a number", hint, code="not_a_number")
             return None
         number = float(value)
         if not math.isfinite(number):

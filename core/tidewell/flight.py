@@ -987,7 +987,12 @@ def _summary(report: Report, f: _Flight, ph: _Physiology) -> None:
     if ph.max_altitude is not None and ph.max_altitude.altitude_m is not None:
         lead = "at least " if ph.max_altitude.status == "holds_at_ceiling" else ""
         target = _p(report, f.target_po2)
-        if ph.max_altitude.altitude_m > CABIN_SUMMARY_CEILING_M:
+        if ph.max_altitude.altitude_m < f.origin_m - 0.5:
+            report.say(
+                f"On FiO2 {f.fio2_max:.2f} the predicted PaO2 does not reach {target} even at the origin: "
+                "no cabin altitude meets the target."
+            )
+        elif ph.max_altitude.altitude_m > CABIN_SUMMARY_CEILING_M:
             # a cabin far above any pressurised cabin is no plan: the summary stops at the highest cabin
             # altitude considered (the profile's default ceiling); max_altitude keeps the number
             report.say(

@@ -347,14 +347,19 @@ def no_alveolar_oxygen(pio2, pco2, rq):
     return pio2 - pco2 / rq < 0.0
 
 
-def mix_up_flags(*, pco2, pco2_unit, baseline, baseline_unit, po2, po2_unit, site, pb, pb_unit):
+def mix_up_flags(
+    *, pco2, pco2_unit, baseline, baseline_unit, po2, po2_unit, site, pb, pb_unit, ph=NAN, hco3=NAN
+):
     """Values that are possible but look like a unit slip (kept, and named in ``possible_unit_mix_up``).
 
-    A dict of flags, arrays for arrays of samples; each unit is the unit the value was sent in.
+    A dict of flags, arrays for arrays of samples; each unit is the unit the value was sent in. A PCO2 that
+    fits the reported pH and HCO3 as entered (Henderson-Hasselbalch, within the 0.03 consistency band) is
+    not called a slip: the triple itself says the unit is right.
     """
+    fits = given(hco3) & (abs(ab._ph_hh(hco3, pco2) - ph) <= 0.03)
     return {
-        "pco2_low": (pco2_unit == "mmHg") & (pco2 < 15.0),
-        "pco2_high": (pco2_unit == "kPa") & (pco2 > 150.0),
+        "pco2_low": (pco2_unit == "mmHg") & (pco2 < 15.0) & not_(fits),
+        "pco2_high": (pco2_unit == "kPa") & (pco2 > 150.0) & not_(fits),
         "baseline_low": (baseline_unit == "mmHg") & (baseline < 15.0),
         "baseline_high": (baseline_unit == "kPa") & (baseline > 150.0),
         "po2_low": (po2_unit == "mmHg") & (po2 < 25.0) & (site != "venous"),
@@ -457,6 +462,8 @@ class _Sample:
             return raw.get("unit") if isinstance(raw, dict) else None
 
         flags = mix_up_flags(
+            ph=_nan(self.ph),
+            hco3=_nan(self.hco3),
             pco2=_nan(self.pco2),
             pco2_unit=unit_of("pco2"),
             baseline=_nan(self.baseline_pco2),

@@ -467,7 +467,7 @@ def test_the_aim_band_ends_where_pco2_falling_fast_begins(unit):
     assert math.isclose(band["low"]["value"], aim * (1 - PCO2_STEP) * factor, rel_tol=1e-9)
     assert band["low"]["unit"] == unit
     assert response["outputs"]["ph_range"] == {"low": 7.35, "high": 7.45}
-    decimals = 2 if unit == "kPa" else 1  # every pressure of the unit (the report's own convention)
+    decimals = 1 if unit == "kPa" else 0  # every pressure of the unit (kPa to one decimal, mmHg whole)
     display = response["display"]
     assert display["readings.ph"] == 2 and display["readings.hco3"] == 1
     assert display["readings.pco2"] == display["intervals.pco2_rate"] == decimals
