@@ -1515,7 +1515,7 @@ def _settings(
         )
     else:
         report.say(
-            f"{aim}: {rate}; or {volume} (minute ventilation {out['minute_ventilation']['value']:.1f} L/min)."
+            f"{aim}: {rate}, or {volume} (minute ventilation {out['minute_ventilation']['value']:.1f} L/min)."
         )
 
 

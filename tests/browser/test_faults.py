@@ -109,14 +109,21 @@ def test_crashed_worker_is_restarted(browser, server):
 
 
 def test_a_hung_request_is_rejected_in_time_and_the_panel_recovers(browser, server):
-    browser.get(engine_url(server.url, "gas", heartbeat=0, request_timeout=4000))
-    browser.wait_engine()
-    control = WorkerControl(browser)
-    control.hang()  # the worker's thread busy-loops: nothing it is sent is ever answered
+    # The busy loop begins when the worker's thread takes the DevTools message; on a loaded machine the
+    # thread may take the page's request first and answer it. That answer proves the loop had not begun:
+    # the page is loaded afresh and the fault injected again (at most 3 times), so the test asserts only on
+    # a request that was sent to a hung worker.
+    for _attempt in range(3):
+        browser.get(engine_url(server.url, "gas", heartbeat=0, request_timeout=4000))
+        browser.wait_engine()
+        control = WorkerControl(browser)
+        control.hang()  # the worker's thread busy-loops: nothing it is sent is ever answered
+        browser.js(TRACK, CONVERT)
+        fill(browser, "blood_gas", BLOOD_GAS_FIELDS)  # the panel's own request hangs too
+        settled = browser.wait_js(SETTLED, timeout=30)
+        if settled["how"] == "rejected":
+            break
     FIGURES["injected"] += 1
-    browser.js(TRACK, CONVERT)
-    fill(browser, "blood_gas", BLOOD_GAS_FIELDS)  # the panel's own request hangs too
-    settled = browser.wait_js(SETTLED, timeout=30)
     assert settled["how"] == "rejected" and settled["name"] == "EngineError", settled
     assert "the engine stopped answering" in settled["message"], settled
     assert settled["ms"] < 4000 + 4000 + 4000, settled

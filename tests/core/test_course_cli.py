@@ -100,7 +100,7 @@ def test_problems_name_their_line(capsys, tmp_path):
     path = write(tmp_path, "time,ph,pco2[kPa],events\n0,7.3,9,\n03:10,7.32,8.6,oxygen up\n")
     status, out, err = main(capsys, path)
     assert status == 2 and out == ""
-    assert "line 3: inputs.samples[1].time:" in err and "[bad_request]" in err
+    assert "line 3: Time is neither minutes" in err and "[bad_request]" in err
     assert "line 3: inputs.samples[1].events[0]:" in err
 
 
