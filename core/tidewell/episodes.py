@@ -124,6 +124,7 @@ class Collector:
             rows.append((key, self._seq, table.line[i], data))
             self._seq += 1
         self._db.executemany("INSERT INTO gas VALUES (?, ?, ?, ?)", rows)
+        self._db.commit()  # to the file, not kept in SQLite's page cache
 
     def episodes(self):
         """(key, gases read as (line, site given, sample) up to MAX_SAMPLES + 1, gases read, rows not read)
