@@ -134,7 +134,7 @@ def messy(tmp_path_factory):
 
 
 def test_every_episode_has_one_row_with_its_counts(messy):
-    ledger, counts, rows, _, header = messy
+    ledger, _, rows, _, header = messy
     assert tuple(header) == episodes.COLUMNS
     want = expected(ledger)
     assert sorted(rows) == sorted(want) and len(rows) == ledger.episodes == 307
@@ -190,7 +190,7 @@ def test_each_question_as_the_published_rules_answer_it(messy, name):
 
 
 def test_both_sides_of_the_thresholds_occur(messy):
-    ledger, _, rows, _, _ = messy
+    ledger = messy[0]
     want = expected(ledger)
     read = [e for e in want.values() if e["course"] == "read"]
     assert {e["response_1_2h"] for e in read} >= {
@@ -240,7 +240,7 @@ def test_pco2_brought_below_the_aim(messy):
 
 
 def test_the_audit_summary_counts_each_question_over_its_own_episodes(messy):
-    ledger, counts, rows, said, _ = messy
+    ledger, counts, _, said, _ = messy
     want = expected(ledger)
     read = [e for e in want.values() if e["course"] == "read"]
     c = counts["episodes"]
@@ -302,3 +302,49 @@ def test_role_column_names():
     assert cells.role_column("Episode ID") == "episode" and cells.role_column("sampled_at") == "time"
     assert cells.role_column("Taken-at") == "time" and cells.role_column("Events") == "events"
     assert cells.role_column("ward") is None and cells.role_column("pco2") is None
+
+
+def test_each_threshold_on_both_sides(tmp_path):
+    """Hand-made episodes on each side of each threshold; expected values from the published rules."""
+    text = """episode,time,ph,pco2[kPa],sample,fio2,spo2,events
+A,0,7.34,6.6,arterial,0.28,93,
+A,60,7.36,6.0,arterial,0.28,93,
+B,0,7.35,6.6,arterial,0.21,99,
+B,30,7.34,6.5,capillary,,,
+C,0,7.30,8.0,venous,,,
+C,30,7.34,6.6,capillary,,,
+D,0,7.32,6.1,venous,,,
+D,40,7.40,5.9,arterial,,,
+E,0,7.36,6.0,venous,,,
+E,40,7.36,6.0,venous,,,
+F,0,7.25,9.0,arterial,,,NIV started
+F,59,7.28,8.6,arterial,,,
+F,121,7.30,8.3,arterial,,,
+F,240,7.24,9.3,arterial,,,
+G,0,7.25,9.0,arterial,,,niv_started
+G,60,7.28,8.6,arterial,,,
+G,360,7.26,8.9,arterial,,,
+"""
+    _, got, _, _ = run_episodes(tmp_path, text)
+    # NIV threshold (bts_ics2016): pH 7.34 with 6.6 kPa meets it; pH 7.35, or PaCO2 6.5 kPa, does not; a
+    # venous gas never does, a capillary gas may
+    assert (got["A"]["niv_threshold_first_gas"], got["A"]["niv_threshold_line"]) == ("0", "2")
+    assert got["B"]["niv_threshold_first_gas"] == ""
+    assert got["C"]["niv_threshold_first_gas"] == "30"
+    # SpO2 target (bts2017_o2): PCO2 6.6 kPa -> 88-92 %, 93 is above; PCO2 6.0 kPa (not above 6.0) -> 94-98 %,
+    # 93 is not above; on air (FiO2 0.21) or FiO2 not given: not a gas on oxygen
+    assert (got["A"]["gases_on_oxygen_with_spo2"], got["A"]["spo2_above_target_on_oxygen"]) == ("2", "1")
+    assert (got["B"]["gases_on_oxygen_with_spo2"], got["B"]["spo2_above_target_on_oxygen"]) == ("0", "0")
+    # venous PCO2 above 6.0 kPa (bts2017_o2): 8.0 then a capillary 6.6 confirms; 6.1 then an arterial 5.9
+    # does not; 6.0 is not above
+    assert got["C"]["venous_hypercapnia"] == "confirmed"
+    assert got["D"]["venous_hypercapnia"] == "not_confirmed"
+    assert got["E"]["venous_hypercapnia"] == "none"
+    # NIV windows (bts_ics2016_niv_monitoring): 59 and 121 minutes are outside 60-120, 240 and 360 inside
+    # 240-360; the verdict (docs/course.md, reference_change_value 0.03)
+    assert got["F"]["niv_started_at"] == "0" and got["F"]["minutes_to_next_gas"] == "59"
+    assert got["F"]["response_1_2h"] == "no_gas"
+    assert got["F"]["response_4_6h"] == course_verdict(7.25, 7.24, 7.30) == "worsening"
+    assert got["G"]["response_1_2h"] == course_verdict(7.25, 7.28, 7.25) == "improving"
+    assert got["G"]["response_4_6h"] == course_verdict(7.25, 7.26, 7.28) == "not_improving"
+    assert got["A"]["response_1_2h"] == "no_niv_start"
