@@ -36,6 +36,7 @@ import os
 import sqlite3
 import statistics
 import tempfile
+import textwrap
 from collections import Counter
 from itertools import groupby
 from operator import itemgetter
@@ -367,7 +368,7 @@ def summary_text(c: dict, no_key: int = 0) -> str:
     if no_key:
         lines.append(f"  rows without an episode key (left out): {no_key:,}")
     if not c["read"]:
-        return "\n".join(lines)
+        return _wrapped(lines)
     lines.append(f"Of the {c['read']:,} episodes read:")
     lines.append(
         "  an arterial or capillary gas meeting the NIV threshold (pH < 7.35, PaCO2 > 6.5 kPa): "
@@ -418,7 +419,16 @@ def summary_text(c: dict, no_key: int = 0) -> str:
             + f"; episodes with one, of the {eps['of']:,} with such a gas: "
             + _share(eps["yes"], eps["of"])
         )
-    return "\n".join(lines)
+    return _wrapped(lines)
+
+
+def _wrapped(lines: list[str], width: int = 100) -> str:
+    """Lines wrapped to ``width``, each continuation indented under its line's own indent + 4."""
+    out = []
+    for line in lines:
+        indent = " " * (len(line) - len(line.lstrip()) + 4)
+        out.extend(textwrap.wrap(line, width=width, subsequent_indent=indent) or [""])
+    return "\n".join(out)
 
 
 def write(collector: Collector, path: str, *, delimiter: str = ",", bom: bool = False) -> dict:

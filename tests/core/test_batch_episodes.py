@@ -259,7 +259,9 @@ def test_the_audit_summary_counts_each_question_over_its_own_episodes(messy):
     on_o2 = sum(e["gases_on_oxygen_with_spo2"] for e in read)
     above = sum(e["spo2_above_target_on_oxygen"] for e in read)
     assert c["spo2_above_target_on_oxygen"] == {"gases": above, "of": on_o2}
-    # in words, each share of what it is of
+    # in words, each share of what it is of (lines wrapped at 100 columns)
+    assert max(map(len, said.splitlines())) <= 100
+    said = " ".join(said.split())
     assert f"Episodes: 307; read as a course: {len(read)}" in said
     assert f"{niv} of {len(read)} ({100 * niv / len(read):.1f} %)" in said
     assert f"of the {on_o2:,} gases on oxygen with an SpO2: {above} of {on_o2:,}" in said
