@@ -31,6 +31,7 @@ at a time (at most :data:`tidewell.course.MAX_SAMPLES` + 1 of its gases; a longe
 from __future__ import annotations
 
 import csv
+import gc
 import json
 import os
 import sqlite3
@@ -434,6 +435,21 @@ def _wrapped(lines: list[str], width: int = 100) -> str:
 def write(collector: Collector, path: str, *, delimiter: str = ",", bom: bool = False) -> dict:
     """Read every episode and write the episode file to ``path``; returns the summary counts."""
     tally = EpisodeTally()
+    # the batch pauses the cyclic collector; a course leaves a few cycles (about 3 objects each), so it
+    # runs again while the episodes are read, else they would pile up over a large file
+    paused = not gc.isenabled()
+    gc.enable()
+    try:
+        _write(collector, path, tally, delimiter, bom)
+    finally:
+        if paused:
+            gc.disable()
+    counts = tally.counts()
+    counts["rows_without_key"] = collector.no_key
+    return counts
+
+
+def _write(collector: Collector, path: str, tally: EpisodeTally, delimiter: str, bom: bool) -> None:
     with open(path, "w", encoding="utf-8", newline="") as f:
         if bom:
             f.write("\ufeff")
@@ -443,6 +459,3 @@ def write(collector: Collector, path: str, *, delimiter: str = ",", bom: bool = 
             row = read_episode(key, gases, read, not_read)
             tally.add(row)
             writer.writerow([row[name] for name in COLUMNS])
-    counts = tally.counts()
-    counts["rows_without_key"] = collector.no_key
-    return counts
