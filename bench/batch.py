@@ -3,6 +3,7 @@
 
     python3 bench/batch.py [--rows 100000] [--scalar-sample 5000] [--full-scalar] [--repeat 3] [--json FILE]
                            [--scale 100000,1000000] [--scale-repeat 3] [--scale-only]
+                           [--episodes 10000,100000] [--episodes-only]
 
 Builds a seeded, invented audit file (--rows samples: COPD exacerbations, compensated and mixed disorders,
 normal gases, venous and capillary samples, about 2 % of rows with a typing slip or a unit mix-up, units in
@@ -27,6 +28,11 @@ fresh process so that its peak resident memory (ru_maxrss) is its own, the sizes
 times so they share the machine's load alike; printed side by side: median wall time, rows per second, median
 CPU time, rows per CPU second, the largest peak RSS, and the ratio of the largest size's peak RSS to the
 smallest's (the targets: at most 1.3 and at most 300 MB at 10^6 rows; at least 30,000 rows per second).
+
+Episodes (issue 19): --episodes N,N writes the same invented file with an episode and a time column (6 gases
+per episode, each episode's rows spread through the whole file) and runs it file to file without and with
+``--episodes`` side by side, each run in a fresh process: median wall time, rows per second, peak RSS.
+--episodes-only runs only these.
 
 A benchmark, not a test: it prints figures (and the load of the machine) and passes no judgement. The
 target of issue 9 is a batch at least 20 times faster than the scalar loop.
@@ -102,12 +108,19 @@ def make_csv(rows: int, seed: int = 7) -> str:
     return out.getvalue()
 
 
-def write_rows(out, rows: int, seed: int = 7) -> None:
+#: gases per episode in the files with an episode column
+EPISODE_GASES = 6
+
+
+def write_rows(out, rows: int, seed: int = 7, *, episodes: bool = False) -> None:
     """The invented audit file of :func:`make_csv` written to a stream row by row (a 10^7-row file never
-    sits in memory)."""
+    sits in memory). ``episodes``: two more columns, ``episode`` and ``time`` (minutes): rows / 6 episodes
+    of 6 gases an hour apart, each episode's rows spread through the whole file (row n belongs to episode
+    n mod rows/6), the hardest order for grouping; the other cells are the same."""
     rng = random.Random(seed)
     writer = csv.writer(out)
-    writer.writerow(COLUMNS)
+    writer.writerow(COLUMNS + (["episode", "time"] if episodes else []))
+    count = max(1, rows // EPISODE_GASES)
     for n in range(rows):
         ph, pco2, hco3 = _gas(rng)
         ph = min(max(ph, 6.8), 7.75)
@@ -141,6 +154,7 @@ def write_rows(out, rows: int, seed: int = 7) -> None:
                 f"{rng.uniform(18, 95):.0f}",
                 rng.choice(["yes", "no", ""]),
             ]
+            + ([f"E{n % count:07d}", str(n // count * 60)] if episodes else [])
         )
 
 
@@ -253,15 +267,20 @@ def time_sureness(repeat: int) -> dict:
     return out
 
 
-def _child(rows: int, path: str) -> int:
-    """One file-to-file run in this fresh process (``--child``): prints wall and CPU seconds and the peak
-    resident memory of the process as JSON."""
+def _child(rows: int, path: str, episodes: bool = False) -> int:
+    """One file-to-file run in this fresh process (``--child``; ``--child-episodes`` adds the episode
+    file): prints wall and CPU seconds and the peak resident memory of the process as JSON."""
     import resource
 
     with tempfile.TemporaryDirectory() as tmp:
         start, cpu = time.perf_counter(), time.process_time()
         counts = batch.run(
-            path, str(Path(tmp) / "out.csv"), progress=False, stdout=io.StringIO(), stderr=io.StringIO()
+            path,
+            str(Path(tmp) / "out.csv"),
+            progress=False,
+            stdout=io.StringIO(),
+            stderr=io.StringIO(),
+            episodes=str(Path(tmp) / "episodes.csv") if episodes else None,
         )
         wall, cpu = time.perf_counter() - start, time.process_time() - cpu
     peak_kb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss  # kilobytes on Linux
@@ -315,6 +334,67 @@ def time_scale(sizes: list[int], repeat: int, seed: int = 7) -> dict:
     }
 
 
+def time_episodes(sizes: list[int], repeat: int, seed: int = 7) -> dict:
+    """The file with an episode column at each size, file to file without and with ``--episodes``, each run
+    in a fresh process, the two arms and the sizes alternated ``repeat`` times."""
+    runs: dict[tuple[int, bool], list[dict]] = {(n, e): [] for n in sizes for e in (False, True)}
+    with tempfile.TemporaryDirectory() as tmp:
+        paths = {}
+        for n in sizes:
+            paths[n] = Path(tmp) / f"episodes-{n}.csv"
+            with open(paths[n], "w", encoding="utf-8", newline="") as f:
+                write_rows(f, n, seed, episodes=True)
+        load_before = os.getloadavg()
+        for _ in range(repeat):
+            for n in sizes:
+                for with_episodes in (False, True):
+                    flag = "--child-episodes" if with_episodes else "--child"
+                    done = subprocess.run(
+                        [sys.executable, __file__, flag, str(n), str(paths[n])],
+                        capture_output=True,
+                        text=True,
+                        check=True,
+                    )
+                    runs[(n, with_episodes)].append(json.loads(done.stdout))
+        load_after = os.getloadavg()
+    table = {}
+    for (n, with_episodes), got in runs.items():
+        wall = statistics.median(r["wall_s"] for r in got)
+        cpu = statistics.median(r["cpu_s"] for r in got)
+        table[f"{n}{' --episodes' if with_episodes else ''}"] = {
+            "rows": n,
+            "episodes": n // EPISODE_GASES if with_episodes else 0,
+            "wall_s_median": round(wall, 2),
+            "rows_per_s": round(n / wall),
+            "cpu_s_median": round(cpu, 2),
+            "rows_per_cpu_s": round(n / cpu),
+            "peak_rss_mb_max": round(max(r["peak_rss_mb"] for r in got), 1),
+            "runs_wall_s": [round(r["wall_s"], 2) for r in got],
+        }
+    return {
+        "load_average_1min": [round(load_before[0], 2), round(load_after[0], 2)],
+        "repeat": repeat,
+        "runs": table,
+    }
+
+
+def print_episodes(result: dict) -> None:
+    print(
+        f"episodes (tidewell.batch.run file to file without and with --episodes, {EPISODE_GASES} gases per "
+        f"episode spread through the file; one process per run, median of {result['repeat']}; load average "
+        f"1 min before/after: {result['load_average_1min']}):"
+    )
+    print(
+        f"  {'run':>22} {'episodes':>9} {'time s':>8} {'rows/s':>9} {'CPU s':>8} {'rows/CPU s':>11} "
+        f"{'peak RSS MB':>12}"
+    )
+    for name, t in result["runs"].items():
+        print(
+            f"  {name:>22} {t['episodes']:>9,} {t['wall_s_median']:>8.2f} {t['rows_per_s']:>9,} "
+            f"{t['cpu_s_median']:>8.2f} {t['rows_per_cpu_s']:>11,} {t['peak_rss_mb_max']:>12.1f}"
+        )
+
+
 def print_scale(scale: dict) -> None:
     print(
         f"scale (tidewell.batch.run file to file, one process per run, median of {scale['repeat']}; "
@@ -350,19 +430,40 @@ def main() -> int:
     )
     parser.add_argument("--scale-repeat", type=int, default=3, metavar="N", help="runs of each size")
     parser.add_argument("--scale-only", action="store_true", help="only the constant-memory runs")
+    parser.add_argument(
+        "--episodes",
+        default="",
+        metavar="N,N",
+        help="file sizes (rows) of the runs with an episode column, without and with --episodes",
+    )
+    parser.add_argument("--episodes-only", action="store_true", help="only the episode runs")
     parser.add_argument("--child", nargs=2, metavar=("ROWS", "PATH"), help=argparse.SUPPRESS)
+    parser.add_argument("--child-episodes", nargs=2, metavar=("ROWS", "PATH"), help=argparse.SUPPRESS)
     args = parser.parse_args()
     if args.child:
         return _child(int(args.child[0]), args.child[1])
+    if args.child_episodes:
+        return _child(int(args.child_episodes[0]), args.child_episodes[1], episodes=True)
     if args.quick:
         args.rows, args.scalar_sample, args.repeat, args.full_scalar = 2_000, 200, 1, False
         args.scale, args.scale_repeat = "2000,20000", 1
+        args.episodes = args.episodes or "2000"
     sizes = [int(n) for n in args.scale.split(",") if n.strip()]
-    if args.scale_only:
-        scale = time_scale(sizes, args.scale_repeat)
-        print_scale(scale)
+    episode_sizes = [int(n) for n in args.episodes.split(",") if n.strip()]
+    only = [
+        (name, timer, shown, wanted)
+        for name, timer, shown, wanted in (
+            ("episodes", time_episodes, print_episodes, episode_sizes if args.episodes_only else None),
+            ("scale", time_scale, print_scale, sizes if args.scale_only else None),
+        )
+        if wanted is not None
+    ]
+    if only:
+        name, timer, shown, wanted = only[0]
+        result = timer(wanted, args.scale_repeat)
+        shown(result)
         if args.json:
-            Path(args.json).write_text(json.dumps({"scale": scale}, indent=2) + "\n", encoding="utf-8")
+            Path(args.json).write_text(json.dumps({name: result}, indent=2) + "\n", encoding="utf-8")
         return 0
 
     load_before = os.getloadavg()
@@ -452,6 +553,9 @@ def main() -> int:
     if sizes:
         report["scale"] = scale = time_scale(sizes, args.scale_repeat)
         print_scale(scale)
+    if episode_sizes:
+        report["episodes"] = episodes = time_episodes(episode_sizes, args.scale_repeat)
+        print_episodes(episodes)
     if args.json:
         Path(args.json).write_text(json.dumps(report, indent=2) + "\n", encoding="utf-8")
     return 0

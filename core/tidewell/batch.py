@@ -1659,6 +1659,7 @@ def run(
     pressure_unit: str | None = None,
     progress: bool | None = None,
     full_precision: bool = False,
+    episodes: str | None = None,
     stdout=None,
     stderr=None,
 ) -> dict:
@@ -1668,7 +1669,8 @@ def run(
 
     ``pressure_unit``: None follows the input (the unit of the PCO2 column, else of most of its cells in the
     first chunk; mmHg when there is none). ``progress``: None shows the bar only when stderr is a terminal;
-    True always; False never.
+    True always; False never. ``episodes``: a path; each episode (an episode and a time column) is read as a
+    course and written there, one row each (:mod:`tidewell.episodes`), and its summary follows the batch's.
 
     Raises
     ------
@@ -1688,6 +1690,15 @@ def run(
             size = os.fstat(stream.fileno()).st_size or None
         reader = Reader(stream, CHUNK)
         layout = reader.layout
+        collector = None
+        if episodes is not None:
+            from . import episodes as episode_file
+
+            try:
+                collector = episode_file.Collector(layout.header, SITE_NOT_GIVEN)
+            except episode_file.MissingColumns as exc:
+                raise TableError(str(exc)) from None
+            stack.callback(collector.close)
         for warning in layout.warnings:
             stderr.write(f"warning: {warning}\n")
         unit = pressure_unit or _input_pressure_unit(reader._first)
@@ -1706,6 +1717,8 @@ def run(
             _use_censored(table, np.arange(len(table)), audit, unit)
             writer.write(table, audit)
             tally.add(audit, table.line)
+            if collector is not None:
+                collector.add(table, audit.errors)
             comma_slips += _decimal_comma_slips(table)
             done += len(table)
             if bar is not None:
@@ -1714,6 +1727,10 @@ def run(
             bar(done, done, 1.0)
         if not writer._started:
             writer.write(reader.empty(), Audit(0, unit, {}, {}, []))
+        if collector is not None:
+            episode_counts = episode_file.write(
+                collector, episodes, delimiter=layout.dialect.delimiter, bom=layout.bom
+            )
     counts = tally.counts()
     counts["pressure_unit"] = unit
     file_notes = _file_notes(layout, counts, comma_slips)
@@ -1722,6 +1739,9 @@ def run(
     for note in file_notes:
         out.write(f"note: {note}\n")
     out.write(summary_text(counts) + "\n")
+    if collector is not None:
+        counts["episodes"] = episode_counts
+        out.write("\n" + episode_file.summary_text(episode_counts, collector.no_key) + "\n")
     if counts["rows"] and not counts["interpreted"]:
         raise NoRowRead(_no_row_message(counts, comma_slips), counts)
     return counts

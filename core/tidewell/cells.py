@@ -7,6 +7,7 @@
 ``typed_value``         one blood_gas input typed as text, in the form a request carries it
 ``column_key``          the input key and unit a column header names: "pCO2 (kPa)" -> ("pco2", "kPa")
 ``site_word``           a sample site as written in an export ("ABG", "cap") -> arterial, venous, capillary
+``role_column``         the course columns a header names: "Taken at" -> "time", "Episode ID" -> "episode"
 ======================  ================================================================================
 
 The spellings accepted here are Tidewell's own list (docs/cli.md), written from the names the trade uses
@@ -295,3 +296,43 @@ def column_key(header: str) -> tuple[str | None, str | None, str]:
             text, unit = name, canonical_unit(last)
             folded = _fold_name(text)
     return names.get(folded), unit, folded
+
+
+#: the columns of a course that are not blood_gas inputs: the episode key (which patient's stay a gas
+#: belongs to), when the gas was taken and what was changed just after it (Tidewell's own list)
+ROLE_NAMES = {
+    "episode": (
+        "episode",
+        "episode id",
+        "episode key",
+        "episode number",
+        "episode no",
+        "encounter",
+        "encounter id",
+        "admission id",
+        "stay id",
+    ),
+    "time": (
+        "time",
+        "taken at",
+        "sampled at",
+        "sample time",
+        "time taken",
+        "collected at",
+        "collection time",
+        "date time",
+        "datetime",
+    ),
+    "events": ("events", "event", "changes", "change made", "interventions"),
+}
+_ROLES = {_fold_name(name): role for role, names in ROLE_NAMES.items() for name in names}
+
+
+def role_column(header: str) -> str | None:
+    """``episode``, ``time`` or ``events`` when a header names that course column (matched as the input
+    names are: case, blanks, "_", "-" and "." ignored), else None.
+
+    >>> role_column("Episode"), role_column("Taken at"), role_column("EVENTS"), role_column("pH")
+    ('episode', 'time', 'events', None)
+    """
+    return _ROLES.get(_fold_name(header))

@@ -633,6 +633,11 @@ def run_batch(argv: list[str]) -> int:
     )
     parser.add_argument("--full-precision", action="store_true", help="write numbers unrounded")
     parser.add_argument("--summary-json", metavar="FILE", help="also write the summary counts as JSON")
+    parser.add_argument(
+        "--episodes",
+        metavar="EP.csv",
+        help="read each episode (episode and time columns) as a course; one row each",
+    )
     args = parser.parse_args(argv)
     try:
         from . import batch
@@ -646,6 +651,7 @@ def run_batch(argv: list[str]) -> int:
             pressure_unit=args.pressure_unit,
             progress=args.progress,
             full_precision=args.full_precision,
+            episodes=args.episodes,
         )
     except (OSError, UnicodeDecodeError) as exc:
         sys.stderr.write(f"tidewell: cannot read or write the file: {exc}\n")

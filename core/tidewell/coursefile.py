@@ -2,6 +2,8 @@
 
 ==================  ==========================================================================================
 ``read_course``     CSV text -> (the ``inputs`` of a course request, the file's line of each sample, warnings)
+``course_sample``   one row of a batch table -> one sample of a course request (the one place a row becomes
+                    a sample: ``tidewell course`` and ``tidewell batch --episodes`` both use it)
 ``event_words``     an events cell -> its event words (``niv started | oxygen-increased`` -> two words)
 ``render_course``   a course response as text: summary, findings, the gases, the changes, the verdicts
 ``run``             what ``tidewell course FILE.csv`` does (cli.py registers it)
@@ -61,6 +63,23 @@ def _time_value(cell: str):
         return text
 
 
+def course_sample(table, i: int, time_cell: str, events_cell: str, site_default: str) -> tuple[dict, bool]:
+    """(row ``i`` of a batch table as one sample of a course request, whether the row gave its site): its
+    blood_gas inputs read by the batch's reader, its time and its event words; a row without a site is read
+    as ``site_default``."""
+    from . import batch
+
+    inputs = batch.row_inputs(table, i, site_default="")
+    site_given = bool(inputs.get("sample"))
+    if not site_given:
+        inputs["sample"] = site_default
+    sample = {"time": _time_value(time_cell), "inputs": inputs}
+    words = event_words(events_cell)
+    if words:
+        sample["events"] = words
+    return sample, site_given
+
+
 def read_course(text: str) -> tuple[dict, list[int], list[str]]:
     """(``{"samples": [...]}``, the file's line of each sample, warnings) of a CSV text.
 
@@ -83,14 +102,9 @@ def read_course(text: str) -> tuple[dict, list[int], list[str]]:
     for i in range(len(table)):
         # one patient's bedside series: a gas without a site is read as the blood_gas default (arterial),
         # and the output says so
-        inputs = batch.row_inputs(table, i, site_default="")
-        if not inputs.get("sample"):
-            inputs["sample"] = "arterial"
+        sample, site_given = course_sample(table, i, times[i], events[i], "arterial")
+        if not site_given:
             no_site.append(str(table.line[i]))
-        sample = {"time": _time_value(times[i]), "inputs": inputs}
-        words = event_words(events[i])
-        if words:
-            sample["events"] = words
         samples.append(sample)
     warnings = [w for w in table.warnings if f"'{TIME_COLUMN}'" not in w and f"'{EVENTS_COLUMN}'" not in w]
     if no_site:

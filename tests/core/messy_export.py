@@ -46,8 +46,11 @@ HEADER = (
     "Lactate (mmol/L)",
     "Glucose (mmol/L)",
     "Age",
+    "Events",
     "Comment",
 )
+#: kinds of planted NIV episodes: the pH over the gases after NIV starts (and the PCO2 that goes with it)
+NIV_KINDS = ("improving", "failing", "overshoot")
 
 
 @dataclass
@@ -60,6 +63,20 @@ class Ledger:
     bad_required: dict = field(default_factory=dict)  #: row -> "pH" or "PCO2" (cannot be read)
     unreadable: dict = field(default_factory=dict)  #: row -> the optional input left unreadable ("potassium")
     censored: dict = field(default_factory=dict)  #: row -> list of the inputs given as censored results
+    #: per row: its episode key, its time cell, minutes since 2026-03-01 00:00, the pH and PCO2 [kPa] as
+    #: written (None when planted unreadable), FiO2 [%], SpO2 [%] or None, its events cell
+    episode: list = field(default_factory=list)
+    time: list = field(default_factory=list)
+    minutes: list = field(default_factory=list)
+    ph: list = field(default_factory=list)
+    pco2: list = field(default_factory=list)
+    fio2: list = field(default_factory=list)
+    spo2: list = field(default_factory=list)
+    events: list = field(default_factory=list)
+    niv: dict = field(default_factory=dict)  #: episode key -> kind (NIV_KINDS) of a planted NIV episode
+    venous_only: set = field(default_factory=set)  #: episode keys planted with venous hypercapnia only
+    #: episode key -> "one_read" (only its first pH readable) or "same_time" (two gases at one moment)
+    broken: dict = field(default_factory=dict)
 
     def sites(self) -> Counter:
         return Counter(s or "not given" for s in self.site)
@@ -82,10 +99,28 @@ def _scenario(rng: random.Random) -> tuple[float, float, float]:
     return min(max(ph, 6.9), 7.65), pco2, hco3
 
 
+def _stamp(minutes: int) -> str:
+    """A time cell as the export writes it: minutes since 2026-03-01 00:00 -> ``2026-03-DD HH:MM``."""
+    day, minute = divmod(minutes, 1440)
+    return f"2026-03-{day + 1:02d} {minute // 60:02d}:{minute % 60:02d}"
+
+
+def _niv_ph(kind: str, ph0: float, j: int, plan) -> float:
+    """The pH of gas ``j`` (0: the gas after which NIV started) of a planted NIV episode of ``kind``."""
+    if j == 0:
+        return ph0
+    if kind == "improving":
+        return round(min(ph0 + 0.04 * j + plan.choice((0.0, 0.01)), 7.40), 2)
+    if kind == "failing":
+        return round(ph0 + plan.choice((-0.04, -0.02, 0.0, 0.01, 0.02)), 2)
+    return round(min(ph0 + 0.08 * j, 7.50), 2)  # overshoot: into alkalaemia, the PCO2 far below
+
+
 def make_export(episodes: int = 307, seed: int = 19, *, european: bool = True) -> tuple[str, Ledger]:
     """The export's text and its ledger. ``european``: semicolons and decimal commas (else commas and
     decimal points)."""
     rng = random.Random(seed)
+    plan = random.Random(seed * 1009 + 1)  # what is planted per episode: the main stream stays as it was
     sep = ";" if european else ","
     ledger = Ledger(episodes=episodes)
 
@@ -101,7 +136,21 @@ def make_export(episodes: int = 307, seed: int = 19, *, european: bool = True) -
         age = rng.randint(34, 92)
         ward = rng.choice(WARDS)
         day, minute = rng.randint(1, 28), rng.randint(0, 23 * 60)
-        for _ in range(rng.randint(2, 11)):
+        key = f"EP-{e:04d}"
+        kind = plan.choices(
+            ("niv", "venous_only", "one_read", "same_time", None), (0.16, 0.07, 0.02, 0.02, 0.73)
+        )[0]
+        niv_kind = plan.choice(NIV_KINDS) if kind == "niv" else None
+        if niv_kind:
+            ledger.niv[key] = niv_kind
+        elif kind == "venous_only":
+            ledger.venous_only.add(key)
+        elif kind:
+            ledger.broken[key] = kind
+        ph0, hco3_0 = round(plan.uniform(7.18, 7.29), 2), plan.uniform(31, 36)
+        start = (day - 1) * 1440 + minute
+        offset = 0
+        for j in range(rng.randint(2, 11)):
             row = ledger.rows
             ph, pco2, hco3 = _scenario(rng)
             site = rng.choices(("arterial", "venous", "capillary", None), (0.62, 0.2, 0.12, 0.06))[0]
@@ -148,10 +197,55 @@ def make_export(episodes: int = 307, seed: int = 19, *, european: bool = True) -
                 ledger.censored.setdefault(row, []).append("glucose")
             if rng.random() < 0.02:
                 cells["Comment"] = quoted(f"repeat{sep} sample re-run")
+            cells["Events"] = ""
+            at = (day - 1) * 1440 + minute
+            if niv_kind:  # planted: NIV after the first gas, then gases at planned times, pH as its kind says
+                at = start + offset
+                offset += plan.randint(30, 180) if j == 0 else plan.randint(50, 150)
+                ph = _niv_ph(niv_kind, ph0, j, plan)
+                hco3 = hco3_0 if not (niv_kind == "overshoot" and j and ph > 7.45) else hco3_0 + 2
+                site = "capillary" if plan.random() < 0.2 else "arterial"
+                ledger.site[row] = site
+                cells["Sample type"] = plan.choice(SITES[site])
+                cells["Events"] = "NIV started" if j == 0 else ""
+                cells["FiO2 (%)"] = str(plan.choice((24, 28, 35)))
+                cells["SpO2 (%)"] = str(plan.choice((87, 90, 92, 93, 95, 97)))
+            elif kind == "venous_only":  # planted: every gas venous, the PCO2 raised
+                ph, pco2 = round(plan.uniform(7.28, 7.36), 2), plan.uniform(6.4, 8.5)
+                hco3 = pco2 * 7.50062 * 0.0307 * 10 ** (ph - 6.1)
+                ledger.site[row] = "venous"
+                cells["Sample type"] = plan.choice(SITES["venous"])
+            elif kind == "one_read" and j:  # planted: no pH but the first can be read
+                cells["pH"] = "?"
+                ledger.bad_required[row] = "pH"
+            elif kind == "same_time" and j == 1:  # planted: the second gas at the first one's moment
+                cells["Taken at"] = ledger.time[-1]
+                at = ledger.minutes[-1]
+            if kind in ("niv", "venous_only"):
+                if niv_kind:
+                    pco2 = hco3 / (0.0307 * 7.50062 * 10 ** (ph - 6.1))
+                cells["pH"], cells["pCO2 (kPa)"] = num(ph, 2), num(pco2, 1)
+                cells["HCO3- (mmol/L)"] = num(hco3, 1)
+                cells["BE (mmol/L)"] = ""
+                cells["Taken at"] = _stamp(at)
+                ledger.bad_required.pop(row, None)
+            ledger.episode.append(key)
+            ledger.time.append(cells["Taken at"])
+            ledger.minutes.append(at)
+            ledger.ph.append(
+                None if ledger.bad_required.get(row) == "pH" else float(cells["pH"].replace(",", "."))
+            )
+            ledger.pco2.append(
+                None
+                if ledger.bad_required.get(row) == "PCO2"
+                else float(cells["pCO2 (kPa)"].replace(",", "."))
+            )
+            ledger.fio2.append(int(cells["FiO2 (%)"]))
+            ledger.spo2.append(int(cells["SpO2 (%)"]) if cells["SpO2 (%)"] else None)
+            ledger.events.append(cells["Events"])
             minute += rng.randint(25, 300)
             day += minute // (24 * 60)
             minute %= 24 * 60
-            day = min(day, 28)
             lines.append(sep.join(cells[name] for name in HEADER))
             ledger.rows += 1
             if rng.random() < 0.004:
