@@ -19,12 +19,26 @@ from __future__ import annotations
 import itertools
 import json
 import math
+import sys
 import time
 import warnings
 from functools import cache
 from pathlib import Path
 
-import pytest
+# This checkout's core first on sys.path, before anything imports tidewell: with another copy installed
+# (``pip install -e`` of another clone), the tests and the doctests of core/ must test this one.
+# pyproject.toml's ``pythonpath = ["core"]`` does the same for a run that does not load this file first;
+# test_meta.py checks that tidewell comes from here.
+ROOT = Path(__file__).resolve().parents[1]
+CORE = ROOT / "core"
+if str(CORE) in sys.path:
+    sys.path.remove(str(CORE))
+sys.path.insert(0, str(CORE))
+_loaded = sys.modules.get("tidewell")
+if _loaded is not None and not Path(_loaded.__file__).resolve().is_relative_to(CORE):
+    raise RuntimeError(f"tidewell was imported from {_loaded.__file__} before {CORE} was put first")
+
+import pytest  # noqa: E402
 
 # When a hypothesis test fails, its pytest plugin imports libcst (if installed) to write a patch, and that
 # import raises a DeprecationWarning which CI's -W error turns into an INTERNALERROR hiding the failure.
@@ -36,7 +50,6 @@ with warnings.catch_warnings():
     except ImportError:
         pass
 
-ROOT = Path(__file__).resolve().parents[1]
 CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
 SCHEMA_PATH = ROOT / "schema" / "bridge.schema.json"
 
