@@ -491,11 +491,17 @@ def test_st02_story_partition(cases):
     assert p04.unmeasured_including_lactate == approx(case, "unmeasured_incl_lactate_2004_mEq_L")
 
 
-def test_story_partition_sums_to_sbe():
-    # Derived: the effects plus the residual add up to the SBE by construction.
+def test_story_partition_each_effect_from_the_published_formula():
+    # Derived here from story2016's own formulas (the 35 constant from memory), not from the module:
+    # Na-Cl effect = 137 - 108 - 35 = -6; albumin effect = 0.25 x (42 - 31) = 2.75; lactate effect = -3.2;
+    # unmeasured = SBE - (effects) = -7.3 - (-6 + 2.75 - 3.2) = -0.85
     p = ab.base_excess_partition_story2016(
         sbe_mmol_l=-7.3, na_mmol_l=137, cl_mmol_l=108, albumin_g_l=31, lactate_mmol_l=3.2
     )
+    assert p.na_cl == pytest.approx(-6.0)
+    assert p.albumin == pytest.approx(2.75)
+    assert p.lactate == pytest.approx(-3.2)
+    assert p.unmeasured == pytest.approx(-0.85)
     assert sum(p) == pytest.approx(-7.3)
 
 
