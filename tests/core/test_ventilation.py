@@ -7,14 +7,13 @@ Provenance words beside each check: "published", "derived" (hand-computed from t
 from __future__ import annotations
 
 import itertools
-import json
 import math
-from pathlib import Path
 
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
+from casebook import close, load_cases
 from tidewell import ventilation as vn
 from tidewell.errors import InputError
 
@@ -23,14 +22,7 @@ from tidewell.errors import InputError
 # alveolar_ventilation, common practice: the textbook 0.863)
 K_BTPS = 760.0 * 310.15 / 273.15 / 1000.0
 
-CASES = {
-    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
-}
-
-
-def close(case_id: str, key: str, value: float) -> None:
-    case = CASES[case_id]
-    assert value == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+CASES = load_cases()
 
 
 # -- VN-01: alveolar_ventilation (0.863 derived from STPD -> BTPS, REFERENCE.md 8) -----------------------
@@ -316,3 +308,37 @@ def test_less_ventilation_raises_the_ventilation_share(ve, d, factor, cut):
     after = mech(ve * cut, d, vco2).shares
     assert after["ventilation"] > before["ventilation"]
     assert after["dead_space"] < before["dead_space"]
+
+
+# -- vt_per_kg and pco2_from_etco2 ------------------------------------------------------------------------
+def test_vt_per_kg_of_predicted_body_weight():
+    # ardsnet2000 (verified): PBW male 50 + 0.91 x (170 - 152.4) = 66.016 kg; 450 mL / 66.016 = 6.82 mL/kg
+    pbw = 50.0 + 0.91 * (170.0 - 152.4)
+    assert vn.vt_per_kg(vt_ml=450, pbw_kg=pbw) == pytest.approx(6.8165, abs=1e-4)
+    # 6 mL/kg, the protective target (ardsnet2000), read back
+    assert vn.vt_per_kg(vt_ml=6.0 * pbw, pbw_kg=pbw) == pytest.approx(6.0, rel=1e-12)
+
+
+@pytest.mark.parametrize(("field", "kwargs"), [("pbw_kg", {"pbw_kg": 9.9}), ("pbw_kg", {"pbw_kg": 150.1})])
+def test_vt_per_kg_refuses_a_body_weight_out_of_range(field, kwargs):
+    with pytest.raises(InputError) as info:
+        vn.vt_per_kg(vt_ml=450, **kwargs)
+    assert info.value.field == field
+
+
+def test_pco2_from_etco2_keeps_the_paired_gradient():
+    # etco2_gradient (common practice): gradient = PaCO2 - EtCO2 = 62 - 51 = 11; later EtCO2 44 -> 55
+    track = vn.pco2_from_etco2(paco2_mmhg=62, etco2_mmhg=51, etco2_now_mmhg=44)
+    assert track.gradient_mmhg == pytest.approx(11.0)
+    assert track.paco2_now_mmhg == pytest.approx(55.0)
+    # an EtCO2 above the PaCO2 (negative gradient) is carried as it is: 40 - 43 = -3; 50 -> 47
+    neg = vn.pco2_from_etco2(paco2_mmhg=40, etco2_mmhg=43, etco2_now_mmhg=50)
+    assert (neg.gradient_mmhg, neg.paco2_now_mmhg) == (pytest.approx(-3.0), pytest.approx(47.0))
+
+
+@pytest.mark.parametrize("field", ["etco2_mmhg", "etco2_now_mmhg"])
+def test_pco2_from_etco2_refuses_an_etco2_below_1(field):
+    kwargs = {"paco2_mmhg": 50.0, "etco2_mmhg": 40.0, "etco2_now_mmhg": 42.0, field: 0.5}
+    with pytest.raises(InputError) as info:
+        vn.pco2_from_etco2(**kwargs)
+    assert info.value.field == field
