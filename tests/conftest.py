@@ -40,6 +40,8 @@ if _loaded is not None and not Path(_loaded.__file__).resolve().is_relative_to(C
 
 import pytest  # noqa: E402
 
+from casebook import load_cases  # noqa: E402  (the one loader of the worked cases)
+
 # When a hypothesis test fails, its pytest plugin imports libcst (if installed) to write a patch, and that
 # import raises a DeprecationWarning which CI's -W error turns into an INTERNALERROR hiding the failure.
 # Importing it here once, with that warning ignored, keeps failures readable.
@@ -50,13 +52,7 @@ with warnings.catch_warnings():
     except ImportError:
         pass
 
-CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
 SCHEMA_PATH = ROOT / "schema" / "bridge.schema.json"
-
-
-def load_cases() -> dict[str, dict]:
-    """The worked cases (a copy of the shared reference cases), by id."""
-    return {case["id"]: case for case in json.loads(CASES_PATH.read_text(encoding="utf-8"))}
 
 
 @pytest.fixture(scope="session")

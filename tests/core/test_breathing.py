@@ -11,16 +11,14 @@ import json
 import math
 import subprocess
 import sys
-from pathlib import Path
 
 import pytest
 
+from casebook import close, load_cases
 from tidewell.altitude import altitude_at_pressure_isa
 from tidewell.bridge import handle, handle_obj
 
-CASES = {
-    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
-}
+CASES = load_cases()
 
 
 def mmhg(x: float) -> dict:
@@ -53,11 +51,6 @@ def has_error(errs: list[dict], field: str, code: str) -> bool:
 
 def val(x):
     return x["value"] if isinstance(x, dict) else x
-
-
-def close(case_id: str, key: str, value) -> None:
-    case = CASES[case_id]
-    assert val(value) == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
 
 
 def codes(r: dict) -> set[str]:

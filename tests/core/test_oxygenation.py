@@ -9,25 +9,18 @@ from __future__ import annotations
 import itertools
 import json
 import math
-from pathlib import Path
 
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import compare
+from casebook import close, load_cases
 from tidewell import oxygenation as ox
 from tidewell.altitude import pressure_at_altitude_isa
 from tidewell.errors import InputError
 
-CASES = {
-    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
-}
-
-
-def close(case_id: str, key: str, value: float) -> None:
-    case = CASES[case_id]
-    assert value == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+CASES = load_cases()
 
 
 # -- alveolar gas equation (OX-01): alveolar_gas_1946, equation form verified; derived values -------------
