@@ -28,13 +28,16 @@ declare -A TESTS=(
     [temperature]="tests/core/test_temperature.py"
     [course]="tests/core/test_course.py"
 )
-# MUTATION_SUBSET=1: module-level constants (CONSTANTS = every UPPER_CASE assignment), functions and
-# methods (Class.method) by name; the decision thresholds the audit found unguarded live here
+# MUTATION_SUBSET=1: module-level constants (a name on a multiple assignment takes the whole line;
+# CONSTANTS = every UPPER_CASE assignment, tables included), functions and methods (Class.method) by
+# name: the named decision thresholds and the course's NIV and oxygen rules
 declare -A SUBSET=(
     [acidbase]="ACUTE_AT_LEAST CHRONIC_AT_MOST chronicity_from_fraction _chronicity"
-    [interpret]="CONSTANTS"
+    [interpret]="PH_LOW PCO2_LOW HCO3_LOW SEVERE_ACIDAEMIA_PH NIV_PH NIV_PCO2_MMHG NIV_INVASIVE_PH
+        NARCOSIS_NORMAL_MMHG HYPOXAEMIA_MMHG PF_IMPAIRED AG_ALWAYS_ACIDOSIS LACTATE_ACIDOSIS LACTATE_RAISED
+        HCO3_MARGIN_MIN SBE_TOLERANCE STEWART_EFFECT FLOOR_PH"
     [oxygenation]="RICE_SPO2_MAX_PERCENT"
-    [course]="CONSTANTS _Course.niv _Course.oxygen_finding _Course.falling_fast_finding"
+    [course]="PH_CHANGE PH_LOW NIV_FIRST_CHECK_MIN _Course.niv _Course.oxygen_finding _Course.falling_fast_finding"
 )
 modules=("$@")
 [ ${#modules[@]} -gt 0 ] || modules=(acidbase interpret oxygenation ventilation altitude transport temperature course)
