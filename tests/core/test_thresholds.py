@@ -302,6 +302,138 @@ ROWS += [
 ]
 
 
+def hh_gas(pco2: float, hco3: float, **more) -> dict:
+    """A consistent triple from PaCO2 and HCO3 (pH by Henderson-Hasselbalch, henderson1908)."""
+    ph = round(6.1 + math.log10(hco3 / (0.0307 * pco2)), 4)
+    return {"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(hco3, "mmol/L"), **more}
+
+
+def primary(response: dict):
+    found = [d["code"] for d in response["outputs"]["disorders"] if d["role"] == "primary"]
+    return found[0] if found else None
+
+
+def concurrent(code: str) -> Callable[[dict], bool]:
+    return lambda r: any(d["code"] == code and d["role"] == "concurrent" for d in r["outputs"]["disorders"])
+
+
+def on_oxygen(po2: float, fio2: float) -> dict:
+    return gas(7.40, 40.0, po2=q(po2, "mmHg"), fio2=fio2)
+
+
+def stewart_quiet(response: dict) -> bool:
+    """True when the Stewart reading names no process ("none of them large"); fails when there is none."""
+    texts = [f["text"] for f in response["findings"] if "Physicochemical (Stewart) reading" in f["text"]]
+    assert len(texts) == 1, texts
+    return "none of them large" in texts[0]
+
+
+def stewart_gas(cl: float) -> dict:
+    # Na-Cl effect = Na - Cl - 35 (story2016): Cl 110 gives -5.0, Cl 109.9 gives -4.9
+    return hh_gas(40.0, 24.0, na=q(140, "mmol/L"), cl=q(cl, "mmol/L"), albumin=q(42, "g/L"))
+
+
+ROWS += [
+    # HCO3 normal range 22-26 mmol/L (acid_base_normal_ranges, common practice): outside it, with a normal
+    # PaCO2, a metabolic disorder is the primary reading
+    Row(
+        "HCO3 below 22 is a metabolic acidosis",
+        "acid_base_normal_ranges",
+        "common practice",
+        "blood_gas",
+        hh_gas(40.0, 21.95),
+        hh_gas(40.0, 22.0),
+        primary,
+        "metabolic_acidosis",
+        None,
+    ),
+    Row(
+        "HCO3 above 26 is a metabolic alkalosis",
+        "acid_base_normal_ranges",
+        "common practice",
+        "blood_gas",
+        hh_gas(40.0, 26.0),
+        hh_gas(40.0, 26.05),
+        primary,
+        None,
+        "metabolic_alkalosis",
+    ),
+    # a second disorder needs the HCO3 beyond the acute-to-chronic range by more than max(2 mmol/L, 0.2 x the
+    # span) (tidewell_acid_base_conventions, common practice): at PaCO2 60 the acute HCO3 is 24 + 1 x 2 = 26
+    # (narins1980) and 0.2 x the span (26 to 31) is 1, so the margin is 2: a metabolic acidosis below 24
+    Row(
+        "second disorder margin 2 mmol/L",
+        "tidewell_acid_base_conventions",
+        "common practice",
+        "blood_gas",
+        hh_gas(60.0, 23.9),
+        hh_gas(60.0, 24.1),
+        concurrent("metabolic_acidosis"),
+        True,
+        False,
+    ),
+    # consciousness commonly falls above PaCO2 90 mmHg in a chronic retainer (co2_narcosis): HCO3 42 at
+    # PaCO2 90 sits in the chronic band 3-5 per 10 mmHg (narins1980: 39-49)
+    Row(
+        "consciousness threshold 90 mmHg (chronic retainer)",
+        "co2_narcosis",
+        "common practice",
+        "blood_gas",
+        hh_gas(90.0, 42.0),
+        hh_gas(90.05, 42.0),
+        finding("pco2_above_consciousness_threshold"),
+        False,
+        True,
+    ),
+    # P/F bands on the blood gas, 200 and 100 mmHg (berlin2012), named in the finding that oxygen hides
+    # the hypoxaemia
+    Row(
+        "blood gas P/F 200 is moderate",
+        "berlin2012",
+        "verified",
+        "blood_gas",
+        on_oxygen(100.0, 0.5),
+        on_oxygen(100.05, 0.5),
+        text_of("hypoxaemia_masked_by_oxygen", "moderate"),
+        True,
+        False,
+    ),
+    Row(
+        "blood gas P/F 100 is severe",
+        "berlin2012",
+        "verified",
+        "blood_gas",
+        on_oxygen(60.0, 0.6),
+        on_oxygen(60.05, 0.6),
+        text_of("hypoxaemia_masked_by_oxygen", "severe"),
+        True,
+        False,
+    ),
+    # a Stewart effect of 5 mEq/L or more names a process (story2016; the size: common practice)
+    Row(
+        "Stewart effect of 5 mEq/L names a process",
+        "story2016",
+        "verified",
+        "blood_gas",
+        stewart_gas(109.9),
+        stewart_gas(110.0),
+        stewart_quiet,
+        True,
+        False,
+    ),
+]
+
+
+def test_alkalaemia_floor_is_the_pco2_of_ph_7_45():
+    # pco2_aim (common practice): the floor P(7.45) = PaCO2 x 10^(pH - 7.45) (Henderson-Hasselbalch,
+    # henderson1908): PaCO2 70 at pH 7.30 gives 70 x 10^-0.15 = 49.56 mmHg
+    inputs = hh_gas(70.0, 34.0)
+    ph = inputs["ph"]
+    r = answer("blood_gas", inputs)
+    floor = r["outputs"]["pco2_alkalaemia_floor"]["value"]
+    assert floor == pytest.approx(70.0 * 10 ** (ph - 7.45), rel=1e-9)
+
+
 def _source_ok(row: Row) -> None:
     assert row.source in REFERENCES, row.source
     assert REFERENCES[row.source].status == row.provenance, (row.source, row.provenance)
