@@ -358,6 +358,19 @@ ROWS += [
         None,
         "metabolic_alkalosis",
     ),
+    # PaCO2 normal range 35-45 mmHg (pco2_normal_range, verified): below it, with a normal HCO3, a
+    # respiratory alkalosis is the primary reading
+    Row(
+        "PaCO2 below 35 is a respiratory alkalosis",
+        "pco2_normal_range",
+        "verified",
+        "blood_gas",
+        hh_gas(34.95, 24.0),
+        hh_gas(35.0, 24.0),
+        primary,
+        "respiratory_alkalosis",
+        None,
+    ),
     # a second disorder needs the HCO3 beyond the acute-to-chronic range by more than max(2 mmol/L, 0.2 x the
     # span) (tidewell_acid_base_conventions, common practice): at PaCO2 60 the acute HCO3 is 24 + 1 x 2 = 26
     # (narins1980) and 0.2 x the span (26 to 31) is 1, so the margin is 2: a metabolic acidosis below 24
