@@ -400,6 +400,19 @@ ROWS += [
     ),
     # P/F bands on the blood gas, 200 and 100 mmHg (berlin2012), named in the finding that oxygen hides
     # the hypoxaemia
+    # on oxygen, a P/F at or below 300 mmHg is type 1 failure whatever the PaO2 (berlin2012; the rule:
+    # resp_failure_types and docs/clinical-rules.md)
+    Row(
+        "blood gas P/F 300 on oxygen is type 1",
+        "berlin2012",
+        "verified",
+        "blood_gas",
+        on_oxygen(150.0, 0.5),
+        on_oxygen(150.05, 0.5),
+        output("respiratory_failure"),
+        "type_1",
+        "none",
+    ),
     Row(
         "blood gas P/F 200 is moderate",
         "berlin2012",
