@@ -561,3 +561,12 @@ def test_no_function_returns_nan_on_its_accepted_edges():
         ab.delta_ratio(anion_gap_mmol_l=200, hco3_mmol_l=23.5),
     ]
     assert all(math.isfinite(v) for v in values)
+
+
+@pytest.mark.parametrize(("fraction", "word"), [(1e6, "acute"), (-1e6, "chronic")])
+def test_chronicity_from_fraction_accepts_its_whole_range(fraction, word):
+    # the accepted range is -1e6 to 1e6 (a guard against absurd input): its ends read, beyond is refused
+    assert ab.chronicity_from_fraction(fraction_acute=fraction) == word
+    with pytest.raises(InputError) as info:
+        ab.chronicity_from_fraction(fraction_acute=fraction * (1 + 1e-6))
+    assert info.value.field == "fraction_acute"
