@@ -577,3 +577,40 @@ def test_in_flight_oxygen_below_6_6_kpa(kpa, low):
     r = flight(70.0 * kpa * MMHG_PER_KPA / first)
     assert r["outputs"]["po2_predicted"]["value"] == pytest.approx(kpa * MMHG_PER_KPA, rel=1e-9)
     assert ("predicted_po2_low" in codes(r)) == low
+
+
+# -- the course of a retainer (docs/course.md) -----------------------------------------------------------
+def _sample(time: float, pco2: float, hco3: float, events: tuple = ()) -> dict:
+    sample = {"time": time, "inputs": hh_gas(pco2, hco3)}
+    if events:
+        sample["events"] = list(events)
+    return sample
+
+
+def _course_text(samples: list, code: str) -> str | None:
+    response = answer("course", {"samples": samples})
+    return next((f["text"] for f in response["findings"] if f["code"] == code), None)
+
+
+@pytest.mark.parametrize(("last_hco3", "alkalaemic"), [(36.0, True), (30.0, False)])
+def test_pco2_falling_fast_in_a_course_of_three(last_hco3, alkalaemic):
+    # post-hypercapnic alkalosis (posthypercapnic_alkalosis): a chronic retainer (PaCO2 70, HCO3 36) whose
+    # PaCO2 falls to 45, 25 % below the aim of 60 read from the middle gas; the pH (Henderson-Hasselbalch)
+    # is named only when above 7.45 (acid_base_normal_ranges)
+    last = _sample(120, 45.0, last_hco3)
+    text = _course_text([_sample(0, 70.0, 36.0), _sample(60, 60.0, 36.0), last], "pco2_falling_fast")
+    assert text is not None and "25 % below the aim of 60 mmHg" in text
+    ph = last["inputs"]["ph"]
+    assert (ph > 7.45) == alkalaemic
+    assert (f"pH {ph:.2f} with HCO3 {last_hco3:.1f} mmol/L" in text) == alkalaemic
+
+
+def test_pco2_rise_after_oxygen_is_stated_in_percent():
+    # austin2010 (oxygen-induced hypercapnia): PCO2 45 -> 50 mmHg after oxygen was increased is a rise of
+    # (50 / 45 - 1) x 100 = 11 %, with the pH down by 0.04 (more than the 0.03 the course counts)
+    samples = [
+        {"time": 0, "events": ["oxygen_increased"], "inputs": {"ph": 7.44, "pco2": q(45, "mmHg")}},
+        {"time": 40, "inputs": {"ph": 7.40, "pco2": q(50, "mmHg")}},
+    ]
+    text = _course_text(samples, "pco2_rising_after_oxygen")
+    assert text is not None and "(+11 %)" in text
