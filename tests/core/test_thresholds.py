@@ -614,3 +614,25 @@ def test_pco2_rise_after_oxygen_is_stated_in_percent():
     ]
     text = _course_text(samples, "pco2_rising_after_oxygen")
     assert text is not None and "(+11 %)" in text
+
+
+@pytest.mark.parametrize(("ph_after", "named"), [(7.30, False), (7.27, True)])
+def test_niv_not_improving_after_an_hour_both_sides(ph_after, named):
+    # bts_ics2016_niv_monitoring (BTS/ICS 2016): after an hour or more of NIV a pH still below 7.35 that has
+    # not risen by 0.03 is not improving (notable); from 7.25 to 7.30 (+0.05) it is improving, to 7.27
+    # (+0.02) it is not
+    samples = [
+        {"time": 0, "events": ["niv_started"], "inputs": {"ph": 7.25, "pco2": q(80, "mmHg")}},
+        {"time": 90, "inputs": {"ph": ph_after, "pco2": q(75, "mmHg")}},
+    ]
+    assert (_course_text(samples, "niv_not_improving") is not None) == named
+
+
+@pytest.mark.parametrize(("pco2_after", "named"), [(45.0, False), (35.0, False), (50.0, True)])
+def test_oxygen_finding_needs_a_rising_pco2(pco2_after, named):
+    # austin2010: the pH down by 0.04 after oxygen names oxygen-induced hypercapnia only with the PCO2 rising
+    samples = [
+        {"time": 0, "events": ["oxygen_increased"], "inputs": {"ph": 7.44, "pco2": q(45, "mmHg")}},
+        {"time": 40, "inputs": {"ph": 7.40, "pco2": q(pco2_after, "mmHg")}},
+    ]
+    assert (_course_text(samples, "pco2_rising_after_oxygen") is not None) == named
