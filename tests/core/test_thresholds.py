@@ -605,15 +605,48 @@ def test_pco2_falling_fast_in_a_course_of_three(last_hco3, alkalaemic):
     assert (f"pH {ph:.2f} with HCO3 {last_hco3:.1f} mmol/L" in text) == alkalaemic
 
 
-def test_pco2_rise_after_oxygen_is_stated_in_percent():
+@pytest.mark.parametrize(
+    ("pco2_after", "ph_after", "shown", "severity"),
+    [
+        (50.0, 7.40, "(+11 %)", "notable"),
+        (60.0, 7.35, "(+33 %)", "notable"),
+        (60.0, 7.34, "(+33 %)", "urgent"),
+    ],
+)
+def test_pco2_rise_after_oxygen_is_stated_in_percent(pco2_after, ph_after, shown, severity):
     # austin2010 (oxygen-induced hypercapnia): PCO2 45 -> 50 mmHg after oxygen was increased is a rise of
-    # (50 / 45 - 1) x 100 = 11 %, with the pH down by 0.04 (more than the 0.03 the course counts)
+    # (50 / 45 - 1) x 100 = 11 %, to 60 of 33 %, with the pH down by 0.03 or more; urgent once the pH is
+    # below 7.35 (bts_ics2016), notable at 7.35
     samples = [
         {"time": 0, "events": ["oxygen_increased"], "inputs": {"ph": 7.44, "pco2": q(45, "mmHg")}},
-        {"time": 40, "inputs": {"ph": 7.40, "pco2": q(50, "mmHg")}},
+        {"time": 40, "inputs": {"ph": ph_after, "pco2": q(pco2_after, "mmHg")}},
     ]
-    text = _course_text(samples, "pco2_rising_after_oxygen")
-    assert text is not None and "(+11 %)" in text
+    response = answer("course", {"samples": samples})
+    found = [f for f in response["findings"] if f["code"] == "pco2_rising_after_oxygen"]
+    assert len(found) == 1 and shown in found[0]["text"]
+    assert found[0]["severity"] == severity
+
+
+def test_a_falling_ph_on_niv_is_urgent_at_once():
+    # bts_ics2016_niv_monitoring: a pH that falls by 0.03 or more on NIV calls for the senior team now,
+    # before the first hour (7.30 -> 7.25 at 30 min)
+    samples = [
+        {"time": 0, "events": ["niv_started"], "inputs": {"ph": 7.30, "pco2": q(75, "mmHg")}},
+        {"time": 30, "inputs": {"ph": 7.25, "pco2": q(80, "mmHg")}},
+    ]
+    response = answer("course", {"samples": samples})
+    found = [f for f in response["findings"] if f["code"] == "niv_not_improving"]
+    assert [f["severity"] for f in found] == ["urgent"]
+
+
+def test_niv_response_above_7_35_is_not_flagged():
+    # bts_ics2016_niv_monitoring: a pH back above 7.35 after 90 min on NIV is not "not improving", even
+    # though it rose by less than 0.03 (7.34 -> 7.36)
+    samples = [
+        {"time": 0, "events": ["niv_started"], "inputs": {"ph": 7.34, "pco2": q(60, "mmHg")}},
+        {"time": 90, "inputs": {"ph": 7.36, "pco2": q(58, "mmHg")}},
+    ]
+    assert _course_text(samples, "niv_not_improving") is None
 
 
 @pytest.mark.parametrize(("ph_after", "named"), [(7.30, False), (7.27, True)])
