@@ -599,7 +599,7 @@ def test_pco2_falling_fast_in_a_course_of_three(last_hco3, alkalaemic):
     # is named only when above 7.45 (acid_base_normal_ranges)
     last = _sample(120, 45.0, last_hco3)
     text = _course_text([_sample(0, 70.0, 36.0), _sample(60, 60.0, 36.0), last], "pco2_falling_fast")
-    assert text is not None and "25 % below the aim of 60 mmHg" in text
+    assert text is not None and " is 25 % below the aim of 60 mmHg" in text
     ph = last["inputs"]["ph"]
     assert (ph > 7.45) == alkalaemic
     assert (f"pH {ph:.2f} with HCO3 {last_hco3:.1f} mmol/L" in text) == alkalaemic
