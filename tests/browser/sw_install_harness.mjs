@@ -14,7 +14,8 @@ const WRONG = "a stale copy";
 const sha256 = (text) => createHash("sha256").update(text).digest("hex");
 const source = readFileSync(template, "utf8")
   .replace('"__BUILD_ID__"', '"b1"')
-  .replace("__PRECACHE__", JSON.stringify({ "./core.whl": sha256(RIGHT) }));
+  .replace("__PRECACHE__", JSON.stringify({ "./core.whl": sha256(RIGHT) }))
+  .replace("__DEFERRED__", "{}"); // files stored after install (none here), where the template has them
 
 class FakeRequest {
   constructor(url, init = {}) {
