@@ -8,6 +8,7 @@ where each expected number sits in the response's outputs (pressures asked for i
 from __future__ import annotations
 
 import json
+from functools import cache
 from pathlib import Path
 
 CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
@@ -16,6 +17,21 @@ CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
 def load_cases() -> dict[str, dict]:
     """The worked cases (a copy of the shared reference cases), by id."""
     return {case["id"]: case for case in json.loads(CASES_PATH.read_text(encoding="utf-8"))}
+
+
+def close(case_id: str, key: str, got) -> None:
+    """Assert that ``got`` (a number, or a quantity ``{value, unit}``) is worked case ``case_id``'s
+    expected ``key`` within the tolerance the case gives for it."""
+    import pytest
+
+    case = _cached_cases()[case_id]
+    number = got["value"] if isinstance(got, dict) else got
+    assert number == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+
+
+@cache
+def _cached_cases() -> dict[str, dict]:
+    return load_cases()
 
 
 def q(value, unit):

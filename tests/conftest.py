@@ -20,12 +20,28 @@ import itertools
 import json
 import math
 import os
+import sys
 import time
 import warnings
 from functools import cache
 from pathlib import Path
 
-import pytest
+# This checkout's core first on sys.path, before anything imports tidewell: with another copy installed
+# (``pip install -e`` of another clone), the tests and the doctests of core/ must test this one.
+# pyproject.toml's ``pythonpath = ["core"]`` does the same for a run that does not load this file first;
+# test_meta.py checks that tidewell comes from here.
+ROOT = Path(__file__).resolve().parents[1]
+CORE = ROOT / "core"
+if str(CORE) in sys.path:
+    sys.path.remove(str(CORE))
+sys.path.insert(0, str(CORE))
+_loaded = sys.modules.get("tidewell")
+if _loaded is not None and not Path(_loaded.__file__).resolve().is_relative_to(CORE):
+    raise RuntimeError(f"tidewell was imported from {_loaded.__file__} before {CORE} was put first")
+
+import pytest  # noqa: E402
+
+from casebook import load_cases  # noqa: E402  (the one loader of the worked cases)
 
 # When a hypothesis test fails, its pytest plugin imports libcst (if installed) to write a patch, and that
 # import raises a DeprecationWarning which CI's -W error turns into an INTERNALERROR hiding the failure.
@@ -37,17 +53,10 @@ with warnings.catch_warnings():
     except ImportError:
         pass
 
-ROOT = Path(__file__).resolve().parents[1]
 # subprocesses of the tests (the command line, fresh interpreters) import this checkout's core too, not a copy
 # installed from another clone (pyproject.toml's pythonpath covers this process only)
 os.environ["PYTHONPATH"] = os.pathsep.join(p for p in (str(ROOT / "core"), os.environ.get("PYTHONPATH")) if p)
-CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
 SCHEMA_PATH = ROOT / "schema" / "bridge.schema.json"
-
-
-def load_cases() -> dict[str, dict]:
-    """The worked cases (a copy of the shared reference cases), by id."""
-    return {case["id"]: case for case in json.loads(CASES_PATH.read_text(encoding="utf-8"))}
 
 
 @pytest.fixture(scope="session")

@@ -112,7 +112,7 @@ def test_export_import_round_trip_and_bad_import(browser, server, tmp_path):
     browser.wait_engine()
     fill(browser, "blood_gas", SAMPLE)
     assert wait_report(browser, "blood_gas") == "done"
-    save(browser, "teaching case one")
+    save(browser, "=1+1 teaching case")  # a label a spreadsheet would read as a formula
     fill(browser, "blood_gas", {"ph": "7.33"})
     assert wait_report(browser, "blood_gas") == "done"
     save(browser, 'second, with "quotes"')
@@ -125,6 +125,8 @@ def test_export_import_round_trip_and_bad_import(browser, server, tmp_path):
     csv_text = exported(browser, "log-export-csv", ".csv")
     assert csv_text.startswith("id,saved_utc,label,calculation,inputs,summary\r\n")
     assert '"second, with ""quotes"""' in csv_text
+    # formula escaping: the label's cell starts with an apostrophe, never with "="
+    assert ",'=1+1 teaching case," in csv_text and ",=1+1" not in csv_text
 
     # delete all, import the export: exactly the same cases come back
     browser.js("window.confirm = () => true;")

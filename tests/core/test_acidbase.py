@@ -491,11 +491,17 @@ def test_st02_story_partition(cases):
     assert p04.unmeasured_including_lactate == approx(case, "unmeasured_incl_lactate_2004_mEq_L")
 
 
-def test_story_partition_sums_to_sbe():
-    # Derived: the effects plus the residual add up to the SBE by construction.
+def test_story_partition_each_effect_from_the_published_formula():
+    # Derived here from story2016's own formulas (the 35 constant from memory), not from the module:
+    # Na-Cl effect = 137 - 108 - 35 = -6; albumin effect = 0.25 x (42 - 31) = 2.75; lactate effect = -3.2;
+    # unmeasured = SBE - (effects) = -7.3 - (-6 + 2.75 - 3.2) = -0.85
     p = ab.base_excess_partition_story2016(
         sbe_mmol_l=-7.3, na_mmol_l=137, cl_mmol_l=108, albumin_g_l=31, lactate_mmol_l=3.2
     )
+    assert p.na_cl == pytest.approx(-6.0)
+    assert p.albumin == pytest.approx(2.75)
+    assert p.lactate == pytest.approx(-3.2)
+    assert p.unmeasured == pytest.approx(-0.85)
     assert sum(p) == pytest.approx(-7.3)
 
 
@@ -555,3 +561,12 @@ def test_no_function_returns_nan_on_its_accepted_edges():
         ab.delta_ratio(anion_gap_mmol_l=200, hco3_mmol_l=23.5),
     ]
     assert all(math.isfinite(v) for v in values)
+
+
+@pytest.mark.parametrize(("fraction", "word"), [(1e6, "acute"), (-1e6, "chronic")])
+def test_chronicity_from_fraction_accepts_its_whole_range(fraction, word):
+    # the accepted range is -1e6 to 1e6 (a guard against absurd input): its ends read, beyond is refused
+    assert ab.chronicity_from_fraction(fraction_acute=fraction) == word
+    with pytest.raises(InputError) as info:
+        ab.chronicity_from_fraction(fraction_acute=fraction * (1 + 1e-6))
+    assert info.value.field == "fraction_acute"

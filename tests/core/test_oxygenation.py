@@ -9,25 +9,18 @@ from __future__ import annotations
 import itertools
 import json
 import math
-from pathlib import Path
 
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import compare
+from casebook import close, load_cases
 from tidewell import oxygenation as ox
 from tidewell.altitude import pressure_at_altitude_isa
 from tidewell.errors import InputError
 
-CASES = {
-    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
-}
-
-
-def close(case_id: str, key: str, value: float) -> None:
-    case = CASES[case_id]
-    assert value == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+CASES = load_cases()
 
 
 # -- alveolar gas equation (OX-01): alveolar_gas_1946, equation form verified; derived values -------------
@@ -144,20 +137,24 @@ def test_saturation_round_trip_exact(po2):
 
 
 @settings(max_examples=300, deadline=None)
-@given(st.floats(min_value=1e-6, max_value=1.0 - 1e-6))
+@given(st.floats(min_value=1e-6, max_value=0.9999))
 def test_inverse_round_trip_from_saturation(s):
+    # S 0.9999 is a PO2 of about 400 mmHg (S at 800 mmHg is 0.99995, derived from severinghaus1979 eq 1),
+    # so every drawn saturation maps inside the curve's range and the round trip is always checked
     p = ox.po2_from_saturation_exact(so2_fraction=s)
-    assert ox.saturation_severinghaus1979(po2_mmhg=min(p, 800.0)) == pytest.approx(s, abs=1e-9) or p > 800.0
+    assert p < 800.0
+    assert ox.saturation_severinghaus1979(po2_mmhg=p) == pytest.approx(s, abs=1e-9)
 
 
 def test_eq2_close_to_exact_inverse_in_its_range():
     # severinghaus1979 (verified abstract): eq 2 is an approximate inverse; the OX-06 case shows ~0.7 mmHg
-    # at S 0.90. Over 0.10-0.97 it stays within 1.2 % of the exact inverse (derived here).
+    # at S 0.90. Over 0.10-0.97 it stays within 1.4 % of the exact inverse (derived here: the largest
+    # difference over that range is 1.37 %).
     for i in range(10, 98):
         s = i / 100.0
         exact = ox.po2_from_saturation_exact(so2_fraction=s)
         approx = ox.po2_from_saturation_severinghaus1979(so2_fraction=s)
-        assert abs(approx - exact) / exact < 0.03, s
+        assert abs(approx - exact) / exact < 0.014, s
 
 
 def test_saturation_is_monotonic():

@@ -5,25 +5,17 @@ Provenance words beside each check: "published", "derived", "common practice", "
 
 from __future__ import annotations
 
-import json
 import math
-from pathlib import Path
 
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from casebook import close, load_cases
 from tidewell import temperature as tc
 from tidewell.errors import InputError
 
-CASES = {
-    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
-}
-
-
-def close(case_id: str, key: str, value: float) -> None:
-    case = CASES[case_id]
-    assert value == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+CASES = load_cases()
 
 
 def test_tc01_hypothermia_32():

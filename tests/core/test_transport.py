@@ -5,6 +5,8 @@ Provenance words: *published* / *derived* (from the cited equation) / *common pr
 
 from __future__ import annotations
 
+import math
+
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
@@ -140,11 +142,16 @@ def test_plan_properties(wc, p, flow, minutes, n):
     plan = transport.oxygen_supply_plan(
         water_capacity_l=wc, pressure_bar=p, flow_l_min=flow, duration_min=minutes, cylinders=n
     )
-    # consistent with itself (away from exact ties, where float rounding decides): sufficient exactly when the
-    # minutes cover duration x safety factor and when the cylinders carried are at least those needed
-    if abs(plan.usable_litres - plan.required_litres) > 1e-6:
-        assert plan.sufficient is (plan.minutes_available >= minutes * 1.5)
-        assert plan.sufficient is (n >= plan.cylinders_needed)
+    # computed here from the sources' formulas, not the module's (away from exact ties, where float rounding
+    # decides): free gas n x WC x P / 1.01325 (cylinder_ideal_gas, derived: Boyle, gauge bar to atm), need
+    # flow x minutes x the default safety factor 1.5 (transport_reserve, common practice), no reserve
+    litres = n * wc * p / 1.01325
+    need = flow * minutes * 1.5
+    assert plan.available_litres == pytest.approx(litres, rel=1e-12)
+    assert plan.required_litres == pytest.approx(need, rel=1e-12)
+    if abs(litres - need) > 1e-6 * need:
+        assert plan.sufficient is (litres >= need)
+        assert plan.sufficient is (n >= math.ceil(need / (wc * p / 1.01325) - 1e-12))
     k = plan.cylinders_needed
     assert k * plan.litres_per_cylinder >= plan.required_litres - 1e-6
     assert k == 1 or (k - 1) * plan.litres_per_cylinder < plan.required_litres

@@ -7,25 +7,22 @@ Provenance words beside each check: "published", "derived" (hand-computed from t
 from __future__ import annotations
 
 import itertools
-import json
 import math
-from pathlib import Path
 
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
+from casebook import close, load_cases
 from tidewell import ventilation as vn
 from tidewell.errors import InputError
 
-CASES = {
-    c["id"]: c for c in json.loads((Path(__file__).parents[1] / "cases" / "reference_cases.json").read_text())
-}
+# The alveolar ventilation constant written here from its definition, not imported from the module under
+# test: 760 mmHg x (310.15 K / 273.15 K) / 1000 mL/L converts VCO2 at STPD to VA at BTPS (derived;
+# alveolar_ventilation, common practice: the textbook 0.863)
+K_BTPS = 760.0 * 310.15 / 273.15 / 1000.0
 
-
-def close(case_id: str, key: str, value: float) -> None:
-    case = CASES[case_id]
-    assert value == pytest.approx(case["expected"][key], abs=case["tolerance"][key]), (case_id, key)
+CASES = load_cases()
 
 
 # -- VN-01: alveolar_ventilation (0.863 derived from STPD -> BTPS, REFERENCE.md 8) -----------------------
@@ -35,6 +32,7 @@ def test_vn01_ve_va_and_predicted_paco2():
     close("VN-01", "va_L_min", va)  # derived
     close("VN-01", "paco2_predicted_mmHg", vn.paco2_from_alveolar_ventilation(vco2_ml_min=200, va_l_min=va))
     close("VN-01", "k_constant", vn.K_CO2)  # derived: 760 x 310.15 / 273.15 / 1000
+    assert vn.K_CO2 == pytest.approx(K_BTPS, rel=1e-12)
 
 
 def test_k_constant_is_the_textbook_0863():
@@ -59,9 +57,13 @@ def test_vd_vt_from_vco2_matches_forward_equation():
 
 def test_vco2_from_expired_co2_closes_the_enghoff_equation():
     # derived: VCO2 = VE x PECO2 / K and Enghoff VD/VT put back into PaCO2 = K VCO2 / (VE (1 - VD/VT))
+    # with K written here (K_BTPS), not the module's constant: VCO2 = 7 x 22 / 0.86296 = 178.45 mL/min
     vco2 = vn.vco2_from_expired_co2(ve_l_min=7.0, peco2_mmhg=22.0)
+    assert vco2 == pytest.approx(7.0 * 22.0 / K_BTPS, rel=1e-9)
+    assert vco2 == pytest.approx(178.45, abs=0.01)
     d = vn.vd_vt_enghoff(paco2_mmhg=55.0, peco2_mmhg=22.0)
-    assert vn.K_CO2 * vco2 / (7.0 * (1 - d)) == pytest.approx(55.0)
+    assert d == pytest.approx(0.6)  # Enghoff (tusman2012): (55 - 22) / 55
+    assert K_BTPS * vco2 / (7.0 * (1 - d)) == pytest.approx(55.0)
 
 
 # -- VN-03: to_target_pco2 (common practice; derived from the alveolar ventilation equation) ----------------
@@ -77,7 +79,7 @@ def test_vn03_to_target():
 def test_to_target_reaches_the_target():
     # derived: the new settings put back into PaCO2 = K VCO2 / VA give the target for any VCO2
     r = vn.to_target(vt_ml=450, rr_per_min=14, vd_ml=180, paco2_mmhg=70, target_paco2_mmhg=50)
-    vco2 = 70 * r.va_now_l_min / vn.K_CO2
+    vco2 = 70 * r.va_now_l_min / K_BTPS
     va_rr = (450 - 180) * r.rr_at_same_vt / 1000
     va_vt = (r.vt_at_same_rr_ml - 180) * 14 / 1000
     for va in (va_rr, va_vt, r.va_new_l_min):
@@ -194,11 +196,11 @@ def test_tidal_volume_rejects_non_numbers_and_out_of_range(bad):
 
 # -- mechanisms (co2_log_shares: derived here from the alveolar ventilation equation) ------------------------
 VCO2_REF = 200.0
-VE_REF = vn.K_CO2 * VCO2_REF / (40.0 * 0.7)  # the reference VE that gives 40 mmHg exactly (6.164 L/min)
+VE_REF = K_BTPS * VCO2_REF / (40.0 * 0.7)  # the reference VE that gives 40 mmHg exactly (6.164 L/min)
 
 
 def model_paco2(ve, d, vco2):
-    return vn.K_CO2 * vco2 / (ve * (1 - d))
+    return K_BTPS * vco2 / (ve * (1 - d))
 
 
 def mech(ve, d, vco2, paco2=None):
@@ -272,23 +274,26 @@ def test_no_raising_cause_gives_no_shares():
     assert m.shares is None and m.raising == ()
 
 
-@settings(max_examples=400, deadline=None)
+@settings(max_examples=400, deadline=None, derandomize=True, database=None)
 @given(
-    ve=st.floats(min_value=1.0, max_value=30.0),
+    paco2=st.floats(min_value=45.0, max_value=250.0, exclude_min=True, exclude_max=True),
     d=st.floats(min_value=0.05, max_value=0.9),
     factor=st.floats(min_value=0.5, max_value=3.0),
 )
-def test_shares_sum_to_one_and_are_fractions(ve, d, factor):
+def test_shares_sum_to_one_and_are_fractions(paco2, d, factor):
+    # the raised PaCO2 is drawn and VE solved from the alveolar ventilation equation (no input rejected):
+    # VE = K VCO2 / (PaCO2 (1 - VD/VT)), from 0.36 to 115 L/min over these spans
     vco2 = VCO2_REF * factor
-    paco2 = model_paco2(ve, d, vco2)
-    assume(45.0 < paco2 < 250.0)
-    m = mech(ve, d, vco2)
+    ve = K_BTPS * vco2 / (paco2 * (1 - d))
+    m = mech(ve, d, vco2, paco2=paco2)
     assert sum(m.shares.values()) == pytest.approx(1.0)
     assert all(0.0 <= s <= 1.0 for s in m.shares.values())
     assert all(m.shares[c] == 0.0 for c in m.lowering)
 
 
-@settings(max_examples=200, deadline=None)
+# derandomised: about 60 % of draws are rejected by the assume() below (PaCO2 after the cut above the
+# accepted range), so the same examples run on every machine and the health check cannot fail at random
+@settings(max_examples=200, deadline=None, derandomize=True, database=None)
 @given(
     ve=st.floats(min_value=1.5, max_value=5.0),
     d=st.floats(min_value=0.35, max_value=0.8),
@@ -303,3 +308,37 @@ def test_less_ventilation_raises_the_ventilation_share(ve, d, factor, cut):
     after = mech(ve * cut, d, vco2).shares
     assert after["ventilation"] > before["ventilation"]
     assert after["dead_space"] < before["dead_space"]
+
+
+# -- vt_per_kg and pco2_from_etco2 ------------------------------------------------------------------------
+def test_vt_per_kg_of_predicted_body_weight():
+    # ardsnet2000 (verified): PBW male 50 + 0.91 x (170 - 152.4) = 66.016 kg; 450 mL / 66.016 = 6.82 mL/kg
+    pbw = 50.0 + 0.91 * (170.0 - 152.4)
+    assert vn.vt_per_kg(vt_ml=450, pbw_kg=pbw) == pytest.approx(6.8165, abs=1e-4)
+    # 6 mL/kg, the protective target (ardsnet2000), read back
+    assert vn.vt_per_kg(vt_ml=6.0 * pbw, pbw_kg=pbw) == pytest.approx(6.0, rel=1e-12)
+
+
+@pytest.mark.parametrize(("field", "kwargs"), [("pbw_kg", {"pbw_kg": 9.9}), ("pbw_kg", {"pbw_kg": 150.1})])
+def test_vt_per_kg_refuses_a_body_weight_out_of_range(field, kwargs):
+    with pytest.raises(InputError) as info:
+        vn.vt_per_kg(vt_ml=450, **kwargs)
+    assert info.value.field == field
+
+
+def test_pco2_from_etco2_keeps_the_paired_gradient():
+    # etco2_gradient (common practice): gradient = PaCO2 - EtCO2 = 62 - 51 = 11; later EtCO2 44 -> 55
+    track = vn.pco2_from_etco2(paco2_mmhg=62, etco2_mmhg=51, etco2_now_mmhg=44)
+    assert track.gradient_mmhg == pytest.approx(11.0)
+    assert track.paco2_now_mmhg == pytest.approx(55.0)
+    # an EtCO2 above the PaCO2 (negative gradient) is carried as it is: 40 - 43 = -3; 50 -> 47
+    neg = vn.pco2_from_etco2(paco2_mmhg=40, etco2_mmhg=43, etco2_now_mmhg=50)
+    assert (neg.gradient_mmhg, neg.paco2_now_mmhg) == (pytest.approx(-3.0), pytest.approx(47.0))
+
+
+@pytest.mark.parametrize("field", ["etco2_mmhg", "etco2_now_mmhg"])
+def test_pco2_from_etco2_refuses_an_etco2_below_1(field):
+    kwargs = {"paco2_mmhg": 50.0, "etco2_mmhg": 40.0, "etco2_now_mmhg": 42.0, field: 0.5}
+    with pytest.raises(InputError) as info:
+        vn.pco2_from_etco2(**kwargs)
+    assert info.value.field == field
