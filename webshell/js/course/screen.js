@@ -12,19 +12,9 @@ import { formatValue, parseNumber } from "../format.js";
 import { PANELS } from "../forms/specs.js";
 import { settings } from "../settings.js";
 import { coursePicture, duration } from "./picture.js";
+import { el } from "../forms/panel.js";
 import { EVENTS, MAX_GASES } from "./records.js";
 
-const el = (tag, props = {}, ...children) => {
-  const node = document.createElement(tag);
-  for (const [key, value] of Object.entries(props)) {
-    if (key === "class") node.className = value;
-    else if (key.startsWith("data-") || key.startsWith("aria-") || key === "for" || key === "role") {
-      node.setAttribute(key, value);
-    } else node[key] = value;
-  }
-  for (const child of children) if (child !== null && child !== undefined) node.append(child);
-  return node;
-};
 
 const SEVERITY = { urgent: ["Act now", "sev-urgent"], notable: ["Worth a look", "sev-notable"] };
 const EVENT_TEXT = Object.fromEntries(EVENTS);

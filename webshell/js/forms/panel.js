@@ -7,7 +7,7 @@ import { drawPictures, shareBar } from "./pictures.js";
 import { HOLD_MS, commaReadings, identifierWarning } from "./entry.js";
 import { outputLabel, unitWord, valueWord } from "./labels.js";
 
-const el = (tag, props = {}, ...children) => {
+export const el = (tag, props = {}, ...children) => {
   const node = document.createElement(tag);
   for (const [key, value] of Object.entries(props)) {
     if (key === "class") node.className = value;
