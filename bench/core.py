@@ -72,6 +72,18 @@ def requests() -> dict[str, dict]:
             },
         },
         "uncertainty": {"calc": "uncertainty", "inputs": {"sample": gas}},
+        "acid_base_map": {"calc": "acid_base_map", "inputs": {}},
+        "course": {
+            "calc": "course",
+            "inputs": {
+                "hypercapnia_risk": True,
+                "samples": [
+                    {"time": 0, "inputs": gas, "events": ["niv_started"]},
+                    {"time": 90, "inputs": {**gas, "ph": 7.35, "pco2": q(8.0, "kPa")}},
+                    {"time": 300, "inputs": {**gas, "ph": 7.38, "pco2": q(7.4, "kPa")}},
+                ],
+            },
+        },
     }
 
 
