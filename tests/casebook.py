@@ -15,7 +15,7 @@ CASES_PATH = Path(__file__).parent / "cases" / "reference_cases.json"
 
 
 def load_cases() -> dict[str, dict]:
-    """The worked cases (a copy of the shared reference cases), by id."""
+    """The worked cases of tests/cases/reference_cases.json (sources: docs/methods.md), by id."""
     return {case["id"]: case for case in json.loads(CASES_PATH.read_text(encoding="utf-8"))}
 
 

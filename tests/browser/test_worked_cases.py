@@ -1,7 +1,7 @@
 """The worked cases through the page: window.tidewell.compute in Pyodide must give the CPython bridge's
 answer, and the key published numbers of each case must hold in the page too.
 
-Sources beside each number are those of tests/cases/reference_cases.json (REFERENCE.md): the AB cases are
+Sources beside each number are those of tests/cases/reference_cases.json (docs/methods.md): the AB cases are
 invented patients checked against Winters 1967, the Boston rules (Narins & Emmett 1980; Berend 2014), the
 alveolar gas equation and Rosenthal 1948; OX/VN/TC/AL/CY cases are derived from the cited equations.
 """
