@@ -7,6 +7,9 @@
 //   are fetched with cache: "no-cache" (revalidated, so what the page has just downloaded comes back as
 //   a 304 instead of a second copy). Every stored file is then checked against its sha256; a mismatch
 //   (a stale copy from some cache on the way) is fetched again past every cache, then refused.
+// - progress: while it stores, the worker tells every window of the site how far it is, in bytes of the
+//   build manifest's sizes ("tidewell:stored:<bytes stored>:<bytes in all>"), after each file; the page
+//   shows "x MB of y MB stored". Files copied from an older build count as stored at once.
 // - later: the files of DEFERRED (the engine's memory snapshot, and the wheel only the benchmark's other
 //   install routes use) are not part of the install: a first visit never waits for them. The page posts
 //   "tidewell:store-later" once its engine is ready; then each is fetched, checked against its sha256 and
@@ -59,12 +62,49 @@ async function reuseOlderBuilds(cache) {
   return reused;
 }
 
+// how far the install is, to every window of the site (controlled or not: a first visit is not)
+async function announce(stored, total) {
+  try {
+    const windows = await self.clients.matchAll({ type: "window", includeUncontrolled: true });
+    for (const client of windows) client.postMessage(`tidewell:stored:${stored}:${total}`);
+  } catch {
+    // a count that cannot be told never stops the install
+  }
+}
+
+// url -> bytes, from the build manifest (which lists every file but itself: its own length is measured)
+async function precacheSizes() {
+  const response = await fetch(new Request("./build-manifest.json", { cache: "no-cache" }));
+  const body = await response.clone().arrayBuffer();
+  const manifest = JSON.parse(new TextDecoder().decode(body));
+  const sizes = new Map(manifest.files.map((f) => [`./${f.path}`, f.size]));
+  sizes.set("./build-manifest.json", body.byteLength);
+  return sizes;
+}
+
+const PARALLEL = 4; // downloads at a time (cache.addAll's parallelism, with a count after each file)
+
 async function precache() {
   const cache = await caches.open(CACHE);
   try {
     const reused = await reuseOlderBuilds(cache);
     const wanted = Object.keys(PRECACHE).filter((url) => !reused.has(url));
-    await cache.addAll(wanted.map((url) => new Request(url, { cache: "no-cache" })));
+    const sizes = await precacheSizes().catch(() => new Map());
+    const size = (url) => sizes.get(url) || 0;
+    const total = Object.keys(PRECACHE).reduce((sum, url) => sum + size(url), 0);
+    let stored = [...reused].reduce((sum, url) => sum + (url in PRECACHE ? size(url) : 0), 0);
+    await announce(stored, total);
+    const queue = [...wanted];
+    const next = async () => {
+      for (let url = queue.shift(); url !== undefined; url = queue.shift()) {
+        const response = await fetch(new Request(url, { cache: "no-cache" }));
+        if (!response.ok) throw new Error(`${url}: HTTP ${response.status}`);
+        await cache.put(url, response);
+        stored += size(url);
+        await announce(stored, total);
+      }
+    };
+    await Promise.all(Array.from({ length: PARALLEL }, next));
     for (const url of Object.keys(PRECACHE)) {
       if (await matches(cache, url)) continue;
       await cache.add(new Request(url, { cache: "reload" }));

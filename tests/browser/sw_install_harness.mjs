@@ -3,7 +3,8 @@
 // Usage: node sw_install_harness.mjs <sw.js template> <scenario>
 //   scenario "stale-then-right": the first download is stale, the fetch past every cache is right;
 //   scenario "always-wrong": every download is the wrong bytes.
-// Prints one JSON line: {outcome, message, cacheKept, fetches: [[url, cacheMode], ...]}.
+// Prints one JSON line: {outcome, message, cacheKept, fetches: [[url, cacheMode], ...], messages: [...]}
+// (messages: what the worker posted to the page's window while it stored: "tidewell:stored:<b>:<total>").
 import { readFileSync } from "node:fs";
 import { createHash } from "node:crypto";
 import vm from "node:vm";
@@ -43,8 +44,12 @@ class FakeCache {
 }
 const stores = new Map();
 const fetches = [];
+// the build manifest lists the file with the size of the build's bytes (build.py writes it so)
+const MANIFEST = JSON.stringify({ files: [{ path: "core.whl", size: RIGHT.length, sha256: sha256(RIGHT) }] });
+const messages = [];
 async function fetchFake(request) {
   fetches.push([request.url, request.cache]);
+  if (request.url === "./build-manifest.json") return new Response(MANIFEST);
   const right = scenario === "stale-then-right" && request.cache === "reload";
   return new Response(right ? RIGHT : WRONG);
 }
@@ -65,8 +70,13 @@ const context = {
   Uint8Array,
   Object,
   Error,
+  TextDecoder,
   fetch: fetchFake,
-  self: { addEventListener: (type, fn) => (listeners[type] = fn), location: { href: "https://x/", origin: "https://x" } },
+  self: {
+    addEventListener: (type, fn) => (listeners[type] = fn),
+    location: { href: "https://x/", origin: "https://x" },
+    clients: { matchAll: async () => [{ postMessage: (m) => messages.push(m) }] },
+  },
 };
 vm.createContext(context);
 vm.runInContext(source, context);
@@ -76,7 +86,8 @@ try {
   await installing;
   const kept = stores.get("tidewell-b1");
   const body = kept && (await (await kept.match("./core.whl")).text());
-  console.log(JSON.stringify({ outcome: "installed", body, cacheKept: stores.has("tidewell-b1"), fetches }));
+  console.log(JSON.stringify({ outcome: "installed", body, cacheKept: stores.has("tidewell-b1"), fetches, messages }));
 } catch (err) {
-  console.log(JSON.stringify({ outcome: "refused", message: String(err.message), cacheKept: stores.has("tidewell-b1"), fetches }));
+  console.log(JSON.stringify({ outcome: "refused", message: String(err.message), cacheKept: stores.has("tidewell-b1"), fetches,
+    messages }));
 }

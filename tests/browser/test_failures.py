@@ -69,7 +69,7 @@ def test_csp_without_wasm_eval_fails_clearly(make_browser, make_server, dist):
     browser.get(server.url + "?engine-timeout=6000#convert")
     browser.js(PENDING, REQUEST)
     text = browser.wait_engine_state("failed", timeout=40)
-    assert text.startswith("Engine: failed.")
+    assert text.startswith("Not working: ")
     assert "did not start" in text or "could not start" in text
     assert browser.js("return document.querySelector('#engine-retry').hidden") is False
     assert browser.wait_js("return await window.__pending;").startswith(

@@ -43,7 +43,7 @@ def fault_figures(request):
 def survived(browser, restarts: int) -> str:
     """The engine restarted by itself and the next request equals the core's answer."""
     text = wait_restarted(browser, restarts)
-    assert text.startswith("Engine: ready"), text
+    assert text.startswith("Ready"), text
     assert "Restarted" in text and "after a fault" in text, text
     answer(browser, CONVERT, timeout=30)
     assert browser.js("return window.tidewell.engine.restarts") == restarts
@@ -69,7 +69,7 @@ def test_terminated_worker_is_found_by_the_heartbeat_and_replaced(browser, serve
     )
     noticed = time.monotonic() - t0
     assert state[0] == "loading", state
-    assert state[1].startswith("Engine: restarting (the engine stopped"), state
+    assert state[1].startswith("Restarting (the engine stopped"), state
     browser.js(TRACK, CONVERT)
     text = survived(browser, 1)
     print(f"terminated worker noticed after {noticed:.1f} s; status: {text}")
@@ -168,7 +168,7 @@ def test_restarts_are_bounded_then_retry_recovers(browser, server):
     browser.js("window.tidewell.engine.worker.terminate()")  # a second fault: past the bound of one
     FIGURES["injected"] += 1
     text = browser.wait_engine_state("failed", timeout=30)
-    assert text.startswith("Engine: failed. The engine stopped"), text
+    assert text.startswith("Not working: The engine stopped"), text
     assert "2 times within 5 minutes, so it was not restarted again" in text, text
     assert browser.js("return document.querySelector('#engine-retry').hidden") is False
     refused = browser.wait_js(

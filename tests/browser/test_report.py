@@ -14,6 +14,7 @@ from screens_support import (
     example_in_kpa,
     fill,
     open_screen,
+    pf_text,
     phone,
     tap,
     use_kpa,
@@ -220,6 +221,92 @@ def test_desktop_and_200_percent_zoom(browser, server):
     assert browser.driver.find_element(By.ID, "unit-kpa").is_displayed()
     # the iPhone storage note only on iPhone and iPad (this is desktop Chromium)
     assert not browser.driver.find_element(By.ID, "ios-note").is_displayed()
-    # the engine line in plain words
+    # the status line in plain words (the offline copy may still be storing: test_first_load.py)
     text = browser.js("return document.getElementById('engine-text').textContent")
-    assert text == "Engine: ready. Every calculation runs on this device.", text
+    assert re.fullmatch(
+        r"Ready( offline)?\. Every calculation runs on this device\."
+        r"|Ready\. Storing for offline use: \d+\.\d MB of \d+\.\d MB stored\.",
+        text,
+    ), text
+
+
+def _pf_shown(browser, calc: str) -> list:
+    """[label, button text, smaller text, its font size over the figure's] of panel ``calc``'s P/F."""
+    return browser.js(
+        "const b = document.querySelector('#p-' + arguments[0] + '-report button.num[data-out=pf_ratio]');"
+        "if (!b) return null;"
+        "const small = b.querySelector('small.aside');"
+        "const ratio = small ? parseFloat(getComputedStyle(small).fontSize)"
+        "  / parseFloat(getComputedStyle(b).fontSize) : null;"
+        "return [b.closest('dd').previousElementSibling.textContent, b.textContent,"
+        "  small ? small.textContent : '', ratio];",
+        calc,
+    )
+
+
+def _wait_pf(browser, calc: str, text: str) -> None:
+    """Wait until panel ``calc`` shows the P/F ``text`` (a report of the last value typed, not an earlier
+    one: the report of the first required fields can be "done" while the rest is still being typed)."""
+    browser.wait_js(
+        "const sel = '#p-' + arguments[0] + '-report button.num[data-out=pf_ratio]';"
+        "while ((document.querySelector(sel) || {}).textContent !== arguments[1])"
+        "  await new Promise((r) => setTimeout(r, 50));",
+        calc,
+        text,
+    )
+
+
+def test_pf_ratio_in_the_users_unit_on_every_screen(browser, server):
+    """P/F: the contract fixes blood_gas's in mmHg, alveolar_gas's follows the request; a kPa user reads kPa
+    (1 dp, "P/F (kPa)") with the mmHg figure beside it in smaller type, the same on both screens."""
+    example_in_kpa(browser, server.url, "gas", "ward-copd", "blood_gas")
+    expected = core({"calc": "blood_gas", "inputs": COPD, "options": {"pressure_unit": "kPa"}})
+    pf = expected["outputs"]["pf_ratio"]
+    assert pf["unit"] == "mmHg"  # fixed by the contract, whatever the unit asked for
+    tap(browser, By.CSS_SELECTOR, "#p-blood_gas-report details.full-report > summary")
+    label, text, aside, ratio = _pf_shown(browser, "blood_gas")
+    # PO2 7.2 kPa on FiO2 0.28: 7.2 / 0.28 = 25.7 kPa = 193 mmHg (1 kPa = 7.50062 mmHg)
+    assert label == "P/F (kPa)"
+    assert text == pf_text(pf, "kPa") == "25.7 kPa 193 mmHg"
+    assert aside == "193 mmHg" and ratio < 0.9
+    # the step behind it says the same
+    tap(browser, By.CSS_SELECTOR, "#p-blood_gas-report button.num[data-out=pf_ratio]")
+    step = browser.js(
+        "return document.querySelector('#p-blood_gas-report [data-out=pf_ratio] + .how').textContent"
+    )
+    assert "= 25.7 kPa (193 mmHg)" in step, step
+    assert browser.js("return document.documentElement.scrollWidth") <= 360
+
+    # the breathing screen: the alveolar gas panel's P/F (in the request's unit) reads the same way
+    open_screen(browser, server.url, "breathing")
+    fill(browser, "alveolar_gas", {"fio2": ("28", "%"), "pco2": ("9.1", "kPa"), "po2": ("7.2", "kPa")})
+    _wait_pf(browser, "alveolar_gas", "25.7 kPa 193 mmHg")
+    alveolar = core(
+        {
+            "calc": "alveolar_gas",
+            "inputs": {"fio2": {"value": 28, "unit": "%"}, "pco2": COPD["pco2"], "po2": COPD["po2"]},
+            "options": {"pressure_unit": "kPa"},
+        }
+    )
+    assert alveolar["outputs"]["pf_ratio"]["unit"] == "kPa"
+    keys = {k: (label, value) for k, label, value in key_numbers(browser, "alveolar_gas")}
+    assert keys["pf_ratio"] == ("P/F (kPa)", "25.7 kPa 193 mmHg"), keys
+    shown = _pf_shown(browser, "alveolar_gas")
+    assert shown[1:3] == [pf_text(alveolar["outputs"]["pf_ratio"], "kPa"), "193 mmHg"]
+
+    # an mmHg user reads mmHg only, on both screens (the draft, written 300 ms after typing, refills the form)
+    browser.wait_js(
+        "const po2 = () => ((JSON.parse(localStorage.getItem('tidewell:draft') || '{}').panels || {})"
+        "  .alveolar_gas || {}).po2;"
+        "while (!po2()) await new Promise((r) => setTimeout(r, 50));"
+    )
+    browser.js("localStorage.setItem('tidewell:pressure-unit', 'mmHg')")
+    browser.driver.refresh()
+    browser.wait_engine()
+    _wait_pf(browser, "alveolar_gas", "193 mmHg")  # the draft is filled back in and read again
+    keys = {k: (label, value) for k, label, value in key_numbers(browser, "alveolar_gas")}
+    assert keys["pf_ratio"] == ("P/F (mmHg)", "193 mmHg"), keys
+    open_screen(browser, server.url, "gas")
+    _wait_pf(browser, "blood_gas", "193 mmHg")
+    tap(browser, By.CSS_SELECTOR, "#p-blood_gas-report details.full-report > summary")
+    assert _pf_shown(browser, "blood_gas")[:3] == ["P/F (mmHg)", "193 mmHg", ""]

@@ -37,8 +37,13 @@ def test_a_file_that_never_matches_its_hash_is_refused_and_nothing_is_kept():
     assert result["outcome"] == "refused", result
     assert "is not the file of build" in result["message"]
     assert result["cacheKept"] is False  # nothing half-stored: the previous version keeps running
-    # fetched once revalidated, then once more past every cache before refusing
-    assert result["fetches"] == [["./core.whl", "no-cache"], ["./core.whl", "reload"]]
+    # the manifest read for the sizes; the file fetched once revalidated, then once more past every cache
+    # before refusing
+    assert result["fetches"] == [
+        ["./build-manifest.json", "no-cache"],
+        ["./core.whl", "no-cache"],
+        ["./core.whl", "reload"],
+    ]
 
 
 @pytest.mark.parametrize("scenario", ["stale-then-right"])
@@ -47,3 +52,6 @@ def test_a_stale_copy_is_fetched_again_past_every_cache(scenario):
     assert result["outcome"] == "installed", result
     assert result["body"] == "the build's bytes" and result["cacheKept"] is True
     assert result["fetches"][-1] == ["./core.whl", "reload"]
+    # the page was told how far it got, in the manifest's bytes: none of 17 stored, then all 17
+    size = len("the build's bytes")
+    assert result["messages"] == [f"tidewell:stored:0:{size}", f"tidewell:stored:{size}:{size}"]

@@ -110,7 +110,7 @@ class Engine extends EventTarget {
     });
   }
 
-  start(text = "Starting the engine") {
+  start(text = "Starting") {
     this.stop();
     this.setState("loading", text);
     // each Retry waits twice as long as the attempt before (a slow network deserves more time)

@@ -253,7 +253,7 @@ async function start(config) {
       const stored = await storedSnapshot();
       if (stored.bytes) {
         // the page's watchdog knows: if this wedges the worker, the next attempt starts the normal way
-        post({ type: "progress", text: "Starting the engine from its stored image", snapshot: true });
+        post({ type: "progress", text: "Starting from the copy on this device", snapshot: true });
         const timeout = Number(config.snapshotTimeout) > 0 ? Number(config.snapshotTimeout) : SNAPSHOT_TIMEOUT_MS;
         pyodide = await withTimeout(startFromSnapshot(stored, archive), timeout, "the start from it");
         startInfo = { start: "snapshot", note: "" };
@@ -287,11 +287,11 @@ async function start(config) {
       import: Math.round(performance.now() - t1),
     });
   }
-  progress("Loading the Python runtime");
+  progress("Loading the calculator");
   const tr = performance.now();
   pyodide = await loadPyodide(OPTIONS);
   const t1 = performance.now();
-  progress("Installing tidewell");
+  progress("Preparing the calculations");
   await installTidewell(method, archive);
   const t2 = performance.now();
   let pyVersion;

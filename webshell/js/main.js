@@ -354,7 +354,11 @@ $("#log-import").addEventListener("change", async (event) => {
 
 showScreen();
 
-// -- engine status line --
+// -- status line: plain words for a clinician, never the parts' names --
+// the offline copy as the service worker reports it: its state and, while it stores, bytes stored of all
+const offline = { state: "pending", stored: 0, total: 0 };
+const megabytes = (bytes) => (bytes / 1e6).toFixed(1);
+
 function renderEngine() {
   const { state } = engine;
   document.documentElement.dataset.engine = state;
@@ -364,7 +368,10 @@ function renderEngine() {
   if (state === "ready") {
     const info = engine.info;
     // plain words here; the versions are in the About line at the foot of the page
-    text = "Engine: ready. Every calculation runs on this device.";
+    if (offline.state === "ready") text = "Ready offline. Every calculation runs on this device.";
+    else if (offline.state === "pending" && offline.total > 0) {
+      text = `Ready. Storing for offline use: ${megabytes(offline.stored)} MB of ${megabytes(offline.total)} MB stored.`;
+    } else text = "Ready. Every calculation runs on this device.";
     $("#engine-text").title = `tidewell ${info.engine}, Python ${info.python}, Pyodide ${info.pyodide}; ` +
       `started in ${(info.timings_ms.total / 1000).toFixed(1)} s`;
     if (engine.restarts) {
@@ -372,11 +379,11 @@ function renderEngine() {
       text += ` Restarted ${times} after a fault (last: ${engine.lastFault}).`;
     }
   } else if (state === "failed") {
-    text = `Engine: failed. ${engine.failure}`;
+    text = `Not working: ${engine.failure}`;
   } else if (engine.restarting) {
-    text = `Engine: restarting (${engine.lastFault}). Your values are kept; results follow when it is back.`;
+    text = `Restarting (${engine.lastFault}). Your values are kept; results follow when it is back.`;
   } else {
-    text = `Engine: getting ready (${(engine.progress || "starting").toLowerCase()}). You can type values now.`;
+    text = `Getting ready (${(engine.progress || "starting").toLowerCase()}). You can type values now.`;
   }
   $("#engine-text").textContent = text;
 }
@@ -408,8 +415,22 @@ markShellReady();
 
 // -- service worker: offline copy and updates --
 function setOffline(state, text) {
+  offline.state = state;
   $("#offline-status").dataset.offline = state;
   $("#offline-status").textContent = text;
+  renderEngine();
+}
+
+// "tidewell:stored:<bytes>:<bytes in all>" from the installing service worker (sw.js, announce)
+function storedProgress(event) {
+  const match = /^tidewell:stored:(\d+):(\d+)$/.exec(typeof event.data === "string" ? event.data : "");
+  if (!match || offline.state !== "pending") return;
+  offline.stored = Number(match[1]);
+  offline.total = Number(match[2]);
+  $("#offline-status").textContent = "Offline use: storing this version on the device " +
+    `(${megabytes(offline.stored)} MB of ${megabytes(offline.total)} MB stored).`;
+  $("#offline-status").dataset.stored = `${offline.stored}/${offline.total}`;
+  renderEngine();
 }
 
 function offerUpdate(waiting) {
@@ -426,6 +447,8 @@ async function registerServiceWorker() {
     return;
   }
   let accepted = false;
+  navigator.serviceWorker.addEventListener("message", storedProgress);
+  navigator.serviceWorker.startMessages();
   // read before register(): on a first visit there is no controller, and the first controllerchange is the
   // offline copy becoming ready
   const hadController = Boolean(navigator.serviceWorker.controller);

@@ -198,7 +198,7 @@ export const VALUE_WORDS = {
   metabolic_compensation: "Winters' compensation for the metabolic acidosis",
   alkalaemia_floor: "the PaCO2 below which the pH would pass 7.45", assumed_air: "air assumed (not recorded)",
   not_assessable: "not assessable (venous sample)", prescribed: "the patient's prescribed range",
-  hypercapnic: "PCO2 above 6.0 kPa", venous_pco2_raised: "venous PCO2 above 6.0 kPa (confirm)",
+  hypercapnic: "PCO2 raised", venous_pco2_raised: "venous PCO2 raised (confirm)",
   previous_hypercapnic_failure: "NIV or ventilation for high CO2 before",
   at_risk_pco2_normal: "at risk, PCO2 normal", default: "not hypercapnic",
   given: "as entered", estimated: "estimated", measured: "measured", solved: "worked out",

@@ -1,7 +1,7 @@
 // One calculation panel: the entry form, the request it sends, and the report of the core's answer.
 // DOM only: every number shown is the core's, formatted to the core's `display` decimals.
 
-import { formatValue, parseNumber } from "../format.js";
+import { formatValue, parseNumber, pfShown } from "../format.js";
 import { settings } from "../settings.js";
 import { drawPictures, shareBar } from "./pictures.js";
 import { HOLD_MS, commaReadings, identifierWarning } from "./entry.js";
@@ -49,9 +49,18 @@ function quantityText(value, decimals) {
   return valueWord(value);
 }
 
-// outputs -> [path, shown text, raw value] rows; lists of numbers (curves) are drawn, not listed
-export function flatten(name, value, decimals) {
+// the P/F ratios, shown in the user's pressure unit with the other beside (format.js, pfShown)
+const PF_LABELS = { pf_ratio: "P/F", pf_ratio_altitude_corrected: "P/F corrected for altitude" };
+const isQuantity = (v) => v && typeof v === "object" && typeof v.value === "number" && typeof v.unit === "string";
+
+// outputs -> [path, shown text, raw value, smaller text beside, label] rows (the last two for P/F only);
+// lists of numbers (curves) are drawn, not listed
+export function flatten(name, value, decimals, unit = settings.pressureUnit) {
   if (value === null || value === undefined) return [];
+  if (name in PF_LABELS && isQuantity(value)) {
+    const shown = pfShown(value, unit);
+    return [[name, shown.text, value.value, shown.aside, `${PF_LABELS[name]} (${shown.unit})`]];
+  }
   if (Array.isArray(value)) {
     if (value.every((v) => v && typeof v === "object" && "code" in v)) {
       const text = value.length === 0 ? "none" : value.map((d) =>
@@ -643,12 +652,14 @@ export class Panel {
     const headline = (this.spec.headline ? this.spec.headline(response) : (response.summary || [])[0]) || "";
     const first = el("section", { class: "answer-first", "aria-label": "Answer" },
       el("p", { class: "headline", "data-headline": "" }, headline));
+    const unit = request.options.pressure_unit;
     const keyRows = (this.spec.key || []).filter((k) => k in response.outputs)
-      .flatMap((k) => flatten(k, response.outputs[k], display[k])).slice(0, 5);
+      .flatMap((k) => flatten(k, response.outputs[k], display[k], unit)).slice(0, 5);
     if (keyRows.length) {
       const dl = el("dl", { class: "key-numbers" });
-      for (const [path, text] of keyRows) {
-        dl.append(el("div", { class: "key", "data-key": path }, el("dt", {}, outputLabel(path)), el("dd", {}, text)));
+      for (const [path, text, , aside, label] of keyRows) {
+        dl.append(el("div", { class: "key", "data-key": path }, el("dt", {}, label || outputLabel(path)),
+          el("dd", {}, text, ...asideText(aside))));
       }
       first.append(dl);
     }
@@ -726,29 +737,32 @@ export class Panel {
     sections.push(["More numbers", leftover]);
     for (const [title, keys] of sections) {
       const rows = keys.filter((k) => k in response.outputs && !used.has(k))
-        .flatMap((k) => { used.add(k); return flatten(k, response.outputs[k], display[k]); });
+        .flatMap((k) => { used.add(k); return flatten(k, response.outputs[k], display[k], unit); });
       if (!rows.length) continue;
       const box = title === "More numbers"
         ? el("details", { class: "numbers" }, el("summary", {}, "More numbers"))
         : el("section", { class: "numbers" }, el("h4", {}, title));
       const dl = el("dl");
-      for (const [path, text, raw] of rows) {
+      for (const [path, text, raw, aside, label] of rows) {
         const top = path.split(".")[0];
         const steps = response.steps.filter((s) => s.output === top);
         const dd = el("dd");
+        const name = label || outputLabel(path);
+        const said = aside ? `${text} (${aside})` : text;
         const button = el("button", { type: "button", class: "num", "data-out": path, "data-raw": String(raw),
-          "aria-expanded": "false", "aria-label": `${outputLabel(path)}: ${text}. Show how it was worked out` }, text);
+          "aria-expanded": "false", "aria-label": `${name}: ${said}. Show how it was worked out` }, text,
+        ...asideText(aside));
         if (!steps.length) button.disabled = true;
         const how = el("div", { class: "how", hidden: true });
         button.addEventListener("click", () => {
           if (!how.childElementCount) {
-            for (const s of steps) how.append(stepView(s, display[top]));
+            for (const s of steps) how.append(stepView(s, display[top], unit));
           }
           how.hidden = !how.hidden;
           button.setAttribute("aria-expanded", String(!how.hidden));
         });
         dd.append(button, how);
-        dl.append(el("dt", {}, outputLabel(path)), dd);
+        dl.append(el("dt", {}, name), dd);
       }
       box.append(dl);
       rest.push(box);
@@ -779,9 +793,14 @@ function usedText(request, inputs) {
   return `From: ${parts.join(", ")}.`;
 }
 
-function stepView(s, decimals) {
-  const result = typeof s.result === "object" && s.result !== null
-    ? quantityText(s.result, decimals) : quantityText(s.result, decimals);
+// the other unit of a P/F figure, in smaller type beside it
+function asideText(aside) {
+  return aside ? [" ", el("small", { class: "aside", "data-aside": "" }, aside)] : [];
+}
+
+function stepView(s, decimals, unit) {
+  const pf = s.output in PF_LABELS && isQuantity(s.result) ? pfShown(s.result, unit) : null;
+  const result = pf ? (pf.aside ? `${pf.text} (${pf.aside})` : pf.text) : quantityText(s.result, decimals);
   const box = el("div", { class: "step" },
     el("p", { class: "step-label" }, s.label),
     el("p", { class: "step-formula" }, el("code", {}, s.formula), ` = ${result}`));
