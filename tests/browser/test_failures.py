@@ -90,6 +90,10 @@ def test_a_corrupted_tidewell_wheel_is_refused(make_browser, make_server, dist, 
     browser.get(server.url + "#convert")  # the default route checks the sha256 itself
     text = browser.wait_engine_state("failed", timeout=60)
     assert "failed its integrity check" in text
+    # The next get() leaves this page while its service worker may still be registering: Chromium then
+    # logs that fetching sw.js failed ("An unknown error occurred when fetching the script"; seen in 1
+    # of 3-4 runs under load). That is the navigation's doing, not the refusal this test is about.
+    browser.allow_console(r"An unknown error occurred when fetching the script")
 
     # Pyodide's loader fetches with Subresource Integrity: the browser blocks the file and logs it,
     # loadPackage itself only calls errorCallback; the worker checks what was really loaded
