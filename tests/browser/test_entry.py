@@ -252,3 +252,38 @@ def test_notes_wait_until_the_user_pauses_or_leaves_the_field(browser, server):
         "return new Promise((r) => setTimeout(() => setTimeout(() => r([before, p.hidden]), 0), 0));"
     )
     assert held is True and after is False
+
+
+def test_every_value_field_shows_a_whole_reading_beside_its_unit(browser, server):
+    """At 360 x 740 a value typed beside its unit is seen whole, never scrolled inside its box: "10.25" kPa,
+    "101.5" mmHg and "0.28" all fit. (The unit list once took two thirds of a phone column and left
+    "10.2" half hidden as it was typed.)"""
+    phone(browser, TALL_PHONE)
+    open_screen(browser, server.url, "gas")
+    wait_panels(browser)
+    hidden = browser.js(
+        "const out = [];"
+        "for (const input of document.querySelectorAll('.entry input[type=text]')) {"
+        "  const box = input.closest('[data-input]');"
+        "  if (!box || !box.querySelector('select.unit')) continue;"
+        "  const keep = input.value;"
+        "  for (const text of ['10.25', '101.5', '0.28']) {"
+        "    input.value = text;"
+        "    if (input.offsetParent !== null && input.scrollWidth > input.clientWidth)"
+        "      out.push([input.id, text, input.scrollWidth, input.clientWidth]); }"
+        "  input.value = keep; }"
+        "return out;"
+    )
+    checked = browser.js(
+        "return [...document.querySelectorAll('.entry input[type=text]')]"
+        ".filter((i) => i.offsetParent !== null && i.closest('[data-input]')"
+        " && i.closest('[data-input]').querySelector('select.unit')).length"
+    )
+    assert checked >= 4, checked  # pH's neighbours at least: PCO2, PO2, HCO3, FiO2
+    assert hidden == [], hidden
+    # side by side, values line up even when one label ("HCO3 (reported)") takes two lines
+    top = browser.js(
+        "return Object.fromEntries(['ph', 'pco2', 'po2', 'hco3'].map((n) => [n,"
+        " Math.round(document.getElementById('p-blood_gas-' + n).getBoundingClientRect().top)]));"
+    )
+    assert top["ph"] == top["pco2"] and top["po2"] == top["hco3"], top

@@ -195,21 +195,26 @@ export class Panel {
       if (kind === "P") units = ["kPa", "mmHg"];
       else if (kind === "fio2") units = ["fraction", "%"];
       else if (Array.isArray(kind)) units = kind;
+      const label = el("label", { for: fid }, text);
       if (units) {
         const select = el("select", { id: `${fid}-unit`, "aria-label": `${text} unit`, class: "unit" });
         for (const u of units) select.append(new Option(unitWord(u) || u, u));
         if (kind === "P") select.value = settings.pressureUnit;
         if (units.length === 1) select.disabled = true;
-        row.append(select);
         entry.unit = select;
+        // the unit sits on the label's line (or just under a long label), so the value has the
+        // field's whole width: a phone column must show all of "10.25" as it is typed
+        box.append(el("div", { class: "field-head" }, label, select), row);
+      } else {
+        box.append(label, row);
       }
-      box.append(el("label", { for: fid }, text), row);
     }
-    box.append(el("p", { class: "field-error", id: `${fid}-error`, role: "alert" }));
-    // a question instead of a guess ("8,000"), and a "did you mean" to apply with one tap
+    // a question instead of a guess ("8,000"), and a "did you mean" to apply with one tap; the notes are
+    // one block, so a row of fields lines up its labels, its values and its notes (app.css)
     entry.ask = el("div", { class: "ask", "data-ask": name, hidden: true });
     entry.offer = el("div", { class: "offer", hidden: true });
-    box.append(entry.ask, entry.offer);
+    box.append(el("div", { class: "field-notes" },
+      el("p", { class: "field-error", id: `${fid}-error`, role: "alert" }), entry.ask, entry.offer));
     entry.label = text;
     this.inputs[name] = entry;
     return box;
