@@ -1,9 +1,10 @@
 """Shared test helpers: the worked cases, and the contract check run on every bridge response.
 
-- ``load_cases`` / ``cases``: the worked cases (a copy of the shared reference cases), by id;
+- ``load_cases`` / ``cases``: the worked cases of tests/cases/reference_cases.json, by id;
 - ``assert_finite_everywhere``: no NaN or infinity anywhere in a value;
 - ``check_response(request, response)``: the whole contract of one response (JSON Schema, no NaN or
-  infinity, every error names its field, the outputs CONTRACT.md names whenever their inputs were given);
+  infinity, every error names its field, the outputs docs/bridge.md requires whenever their inputs were
+  given);
   registered for the whole session in ``tidewell.bridge.RESPONSE_HOOKS``, so every test that calls
   ``handle`` or ``handle_obj`` checks every response it gets. An ``AssertionError`` from the hook
   propagates out of the bridge call into the test (hooks run outside the bridge's catch-all);
@@ -371,7 +372,7 @@ def check_response(request, response) -> None:
 
 
 # ---------------------------------------------------------------------------------------------------------
-# outputs present whenever their inputs were given (CONTRACT.md), and relations between values
+# outputs present whenever their inputs were given (docs/bridge.md), and relations between values
 
 
 def _need(outputs: dict, *names: str, why: str) -> None:

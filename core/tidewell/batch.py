@@ -894,7 +894,7 @@ def interpret_rows(table: Table, rows: np.ndarray, pressure_unit: str = "mmHg") 
             continue
         raw = row_inputs(table, int(rows[j]))
         try:
-            s = interpret._Sample(Inputs(raw))
+            s = interpret._Sample(Inputs(raw), pressure_unit=pressure_unit)
         except InputErrors as exc:
             errors[j] = [_csv_message(e.as_entry()["message"]) for e in exc.errors]
             error_kinds[j] = list(dict.fromkeys(_error_kind(e) for e in exc.errors))

@@ -171,8 +171,10 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
         report.finding(
             "pb_and_altitude",
             "info",
-            f"The barometric pressure given ({pb_given:.0f} mmHg) is used; the standard atmosphere at "
-            f"{altitude:.0f} m would give {isa:.0f} mmHg. The altitude decides the Berlin 1000 m rule.",
+            f"The barometric pressure given ({report.pressure_text(pb_given)}) is used; the standard "
+            "atmosphere "
+            f"at {altitude:.0f} m would give {report.pressure_text(isa)}. The altitude decides the Berlin "
+            "1000 m rule.",
         )
 
     pio2 = ox.inspired_po2(fio2_fraction=fio2, pb_mmhg=pb, ph2o_mmhg=ph2o)
@@ -184,9 +186,9 @@ def alveolar_gas(inputs: Inputs, report: Report) -> None:
     if simple <= 1.0:
         raise _fail_now(
             "pco2",
-            {"value": pco2, "unit": "mmHg"},
-            f"leaves no alveolar oxygen at this inspired PO2 ({pio2:.0f} mmHg): alveolar PO2 would be "
-            f"{simple:.0f} mmHg",
+            inputs.raw.get("pco2"),
+            f"leaves no alveolar oxygen at this inspired PO2 ({report.pressure_text(pio2)}): alveolar PO2 "
+            f"would be {report.pressure_text(simple)}",
             "Check FiO2, PB/altitude and PCO2 (units); such values are not survivable.",
         )
     report.computed(
@@ -323,7 +325,8 @@ def _alveolar_po2_indices(
         report.finding(
             "pao2_above_alveolar",
             "notable",
-            f"The PaO2 is {-aa:.0f} mmHg above the calculated alveolar PO2, which cannot happen: check the "
+            f"The PaO2 is {report.pressure_text(-aa)} above the calculated alveolar PO2, which cannot "
+            "happen: check the "
             "FiO2 actually delivered, the barometric pressure, R, and that the sample is arterial.",
         )
     elif ratio < 0.75:
@@ -457,7 +460,7 @@ def oxygen_content(inputs: Inputs, report: Report) -> None:
             "dissolved_o2_not_included",
             "info",
             "No PO2 was given, so dissolved oxygen (0.0031 mL/dL per mmHg: about 0.3 mL/dL on air, up to "
-            "2 mL/dL at a PaO2 of 600) is left out.",
+            f"2 mL/dL at a PaO2 of {report.pressure_text(600.0)}) is left out.",
         )
     if hufner > 1.36:
         report.finding(
@@ -629,7 +632,8 @@ def oxygen_dissociation_curve(inputs: Inputs, report: Report) -> None:
     report.put("so2_standard", [round(float(s), 3) for s in standard])
     report.put("so2_patient", [round(float(s), 3) for s in patient])
     report.step(
-        f"Standard curve (Severinghaus 1979 eq 1), {CURVE_POINTS} points from 0 to {top:g} mmHg",
+        f"Standard curve (Severinghaus 1979 eq 1), {CURVE_POINTS} points from 0 to "
+        f"{report.pressure_text(top)}",
         "S = 1 / (23400 / (PO2^3 + 150 PO2) + 1)",
         CURVE_POINTS,
         "severinghaus1979",
@@ -647,7 +651,8 @@ def oxygen_dissociation_curve(inputs: Inputs, report: Report) -> None:
         report.finding(
             "curve_shifted",
             "info",
-            f"The curve is shifted {direction}: P50 {p50:.1f} mmHg against the standard {p50_std:.1f} mmHg.",
+            f"The curve is shifted {direction}: P50 {report.pressure_text(p50)} against the standard "
+            f"{report.pressure_text(p50_std)}.",
         )
     report.caution(
         "The standard curve assumes normal 2,3-DPG and adult haemoglobin; CO, methaemoglobin, fetal "
@@ -773,7 +778,8 @@ def temperature_correction(inputs: Inputs, report: Report) -> None:
         "alpha_stat_ph_stat",
         "info",
         "Alpha-stat management interprets the uncorrected 37 degC values (usual in adult hypothermia and "
-        "cardiac surgery); pH-stat aims at pH 7.40 and PaCO2 40 mmHg at the patient's temperature, i.e. "
+        f"cardiac surgery); pH-stat aims at pH 7.40 and PaCO2 {report.pressure_text(40.0)} at the patient's "
+        "temperature, i.e. "
         "interprets the corrected values (adds CO2, raises cerebral blood flow). Say which is used.",
     )
     if po2 is not None and t < 36.0:
@@ -791,10 +797,10 @@ def temperature_correction(inputs: Inputs, report: Report) -> None:
         )
     report.caution("Temperature-corrected values are model estimates. " + _LOCAL)
     report.say(
-        f"At {here}: pH {ph_t:.2f}, PCO2 {pco2_t:.1f} mmHg"
-        + (f", PO2 {po2_t:.0f} mmHg" if po2_t is not None else "")
-        + f"; at 37 degC: pH {ph_37:.2f}, PCO2 {pco2_37:.1f} mmHg"
-        + (f", PO2 {po2_37:.0f} mmHg." if po2_37 is not None else ".")
+        f"At {here}: pH {ph_t:.2f}, PCO2 {report.pressure_text(pco2_t)}"
+        + (f", PO2 {report.pressure_text(po2_t)}" if po2_t is not None else "")
+        + f"; at 37 degC: pH {ph_37:.2f}, PCO2 {report.pressure_text(pco2_37)}"
+        + (f", PO2 {report.pressure_text(po2_37)}." if po2_37 is not None else ".")
     )
 
 
@@ -883,7 +889,7 @@ def ventilation(inputs: Inputs, report: Report) -> None:
         inputs.fail(
             "peco2",
             inputs.raw.get("peco2"),
-            f"mixed expired PCO2 must be below the arterial PCO2 ({pco2:.3g} mmHg)",
+            f"mixed expired PCO2 must be below the arterial PCO2 ({report.pressure_text(pco2)})",
             "Expired gas is diluted by dead space; check the values and units.",
             code="inconsistent",
         )
@@ -1210,14 +1216,16 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             report.finding(
                 "pco2_predicted_not_survivable",
                 "urgent",
-                f"With the entered VT, VD and RR the predicted PaCO2 is {predicted:.0f} mmHg: these settings "
+                f"With the entered VT, VD and RR the predicted PaCO2 is {report.pressure_text(predicted)}: "
+                "these settings "
                 "could not sustain life; check the dead space and the tidal volume.",
             )
         elif pco2 - predicted > 5.0:
             report.finding(
                 "pco2_above_predicted",
                 "info",
-                f"The PaCO2 is {pco2 - predicted:.0f} mmHg above the value predicted from the entered dead "
+                f"The PaCO2 is {report.pressure_text(pco2 - predicted)} above the value predicted from the "
+                "entered dead "
                 "space: the physiological dead space is probably larger than entered"
                 + (", or CO2 output higher than estimated." if vco2_source == "estimated" else "."),
             )
@@ -1425,8 +1433,9 @@ def _to_target(
     _settings(report, out, rr=rr, vt=vt, target=target, pbw=pbw, ie=ie, te_min=te_min)
     if target < pco2:
         report.caution(
-            "If the patient has chronic hypercapnia, aim for their usual PaCO2 rather than 40 mmHg and lower "
-            "it gradually: fast correction causes post-hypercapnic alkalosis. " + _LOCAL
+            "If the patient has chronic hypercapnia, aim for their usual PaCO2 rather than "
+            f"{report.pressure_text(40.0)} and "
+            "lower it gradually: fast correction causes post-hypercapnic alkalosis. " + _LOCAL
         )
     report.caution(
         "Target settings assume CO2 output stays the same; recheck a blood gas once a change has settled "
@@ -1543,7 +1552,7 @@ def _mechanisms(
     )
     ref = vn.PACO2_REFERENCE_MMHG
     report.step(
-        "Reference VE (gives 40 mmHg with the reference VCO2 and VD/VT 0.30)",
+        f"Reference VE (gives {report.pressure_text(ref)} with the reference VCO2 and VD/VT 0.30)",
         "VE_ref = 0.863 x VCO2_ref / (40 x (1 - 0.30))",
         m.ve_reference_l_min,
         ("co2_log_shares", "normal_ventilation"),
@@ -1596,8 +1605,10 @@ def _mechanisms(
             report.finding(
                 "mechanisms_residual",
                 "notable",
-                f"The measured VCO2, VE and VD/VT predict a PaCO2 of {m.paco2_model_mmhg:.0f} mmHg against "
-                f"{pco2:.0f} mmHg measured; the shares describe the predicted part. Check that the values "
+                "The measured VCO2, VE and VD/VT predict a PaCO2 of "
+                f"{report.pressure_text(m.paco2_model_mmhg)} against "
+                f"{report.pressure_text(pco2)} measured; the shares describe the predicted part. Check that "
+                "the values "
                 "were measured together.",
             )
     if m.shares is None:
@@ -1620,14 +1631,16 @@ def _mechanisms(
     main = max(m.raising, key=lambda c: m.shares[c])
     parts = ", ".join(f"{_CAUSE_WORDS[c]} {m.shares[c] * 100:.0f} %" for c in m.raising)
     text = (
-        f"Against a reference of PaCO2 40 mmHg, VE {m.ve_reference_l_min:.1f} L/min, VD/VT 0.30 and VCO2 "
+        f"Against a reference of PaCO2 {report.pressure_text(ref)}, VE {m.ve_reference_l_min:.1f} L/min, "
+        "VD/VT 0.30 and VCO2 "
         f"{vco2_reference:.0f} mL/min, the raised PaCO2 is attributed to: {parts}."
     )
     if m.lowering:
         text += (
             " Offsetting (lowering PaCO2): "
             + ", ".join(
-                f"{c.replace('_', ' ')} (PaCO2 would be {m.paco2_if_normal_mmhg[c]:.0f} mmHg if it were at "
+                f"{c.replace('_', ' ')} (PaCO2 would be {report.pressure_text(m.paco2_if_normal_mmhg[c])} if "
+                "it were at "
                 "reference)"
                 for c in m.lowering
             )

@@ -263,7 +263,7 @@ class _Flight:
         return alveolar_po2_full if self.equation == "full" else alveolar_po2_simple
 
 
-def _read_flight(inputs: Inputs, *, profile: bool) -> _Flight:
+def _read_flight(inputs: Inputs, report: Report, *, profile: bool) -> _Flight:
     has_pb = inputs.given("pb")
     altitude_m = _altitude_input(
         inputs,
@@ -340,8 +340,9 @@ def _read_flight(inputs: Inputs, *, profile: bool) -> _Flight:
                 inputs.fail(
                     "po2",
                     inputs.raw.get("po2"),
-                    f"PO2 {f.po2:.1f} mmHg is higher than the alveolar PO2 at the origin "
-                    f"({max(pao2_origin, 0.0):.1f} mmHg for FiO2 {f.fio2:.2f}, PCO2 {f.pco2:.1f} mmHg): "
+                    f"PO2 {_p(report, f.po2)} is higher than the alveolar PO2 at the origin "
+                    f"({_p(report, max(pao2_origin, 0.0))} for FiO2 {f.fio2:.2f}, PCO2 "
+                    f"{_p(report, f.pco2)}): "
                     "an arterial PO2 above the alveolar PO2 is impossible",
                     "Check the FiO2 the sample was taken on, the PCO2, and the origin's altitude or "
                     "pressure.",
@@ -531,8 +532,8 @@ def _findings(report: Report, f: _Flight, ph: _Physiology) -> None:
         report.finding(
             "pco2_assumed",
             "notable",
-            "No PCO2 was given: 40 mmHg (5.3 kPa) was assumed. In a patient who retains CO2 the alveolar "
-            "PO2 is lower than shown; enter the measured PCO2.",
+            f"No PCO2 was given: {_p(report, DEFAULT_PCO2_MMHG)} was assumed. In a patient who retains CO2 "
+            "the alveolar PO2 is lower than shown; enter the measured PCO2.",
         )
     if f.cabin_m > alt.CABIN_LIMIT_M + 0.5:
         report.finding(
@@ -715,7 +716,7 @@ def altitude(inputs: Inputs, report: Report) -> None:
     ``origin_pb?``, ``target_po2?``, ``fio2_max?`` (1.0), ``trapped_gas_volume?``, ``rq?`` (0.8),
     ``alveolar_equation?`` (``simple``), ``trapped_gas_kind?`` (``wet``).
     """
-    f = _read_flight(inputs, profile=False)
+    f = _read_flight(inputs, report, profile=False)
     ph = _physiology(f)
     eq_src = ("alveolar_gas_1946",)
     assumptions = "PaCO2 and R as at the origin"
@@ -1029,7 +1030,7 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
     """
     import numpy as np  # only here: ``import tidewell.flight`` must stay numpy-free
 
-    f = _read_flight(inputs, profile=True)
+    f = _read_flight(inputs, report, profile=True)
     ph = _physiology(f)
     eq = f.alveolar
     f_eq_used = min(max(ph.fio2_equivalent, 0.21), f.fio2_max)
@@ -1099,7 +1100,7 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
         "pao2_alveolar", {"at_fio2": plist(pao2_now), "at_fio2_equivalent": plist(pao2_eq)}, decimals=pdec
     )
     report.step(
-        f"Alveolar PO2 along the profile ({f.equation} equation), PaCO2 {f.pco2:.1f} mmHg"
+        f"Alveolar PO2 along the profile ({f.equation} equation), PaCO2 {_p(report, f.pco2)}"
         + (" (assumed)" if f.pco2_assumed else "")
         + ", R unchanged",
         _equation_text(f, pb="PB(h)") + "; 0 where the equation gives 0 or less; result shown at the ceiling",

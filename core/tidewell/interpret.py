@@ -95,7 +95,7 @@ from . import acidbase as ab
 from . import altitude, oxygenation, temperature, units
 from .arrays import NAN, clamp, div, each, given, log10, maximum, minimum, none_if_nan, not_, where
 from .fields import Inputs
-from .report import Report
+from .report import Report, pressure_text
 
 MET_ACID = "metabolic_acidosis"
 MET_ALK = "metabolic_alkalosis"
@@ -375,7 +375,8 @@ def unusual_flags(*, glucose, urea, lactate):
 class _Sample:
     """The inputs, read and converted (pressures in mmHg)."""
 
-    def __init__(self, inputs: Inputs):
+    def __init__(self, inputs: Inputs, *, pressure_unit: str = "mmHg"):
+        self.unit = pressure_unit  # of the messages that refuse an input (the readings stay in mmHg)
         self.mix_ups: list[str] = []
         self.mix_up_suggest: list[dict] = []  # the value each mix-up offers instead, as data (one tap)
         self.unusual: list[str] = []
@@ -404,7 +405,7 @@ class _Sample:
             implied = implied_hco3(self.ph, self.pco2)
             if not implied_hco3_survivable(implied):
                 message = (
-                    f"pH {self.ph:g} with PCO2 {self.pco2:.1f} mmHg implies HCO3 {implied:.3g} mmol/L, "
+                    f"pH {self.ph:g} with PCO2 {self._p(self.pco2)} implies HCO3 {implied:.3g} mmol/L, "
                     "which is not survivable (1 to 70)"
                 )
                 hint = "One of pH or PCO2 is probably mistyped or sent in the wrong unit."
@@ -419,7 +420,7 @@ class _Sample:
                 i.fail(
                     "po2",
                     i.raw.get("po2"),
-                    f"PO2 {self.po2:.1f} mmHg is above the inspired PO2 ({pio2:.1f} mmHg at FiO2 "
+                    f"PO2 {self._p(self.po2)} is above the inspired PO2 ({self._p(pio2)} at FiO2 "
                     f"{self.fio2:.2f}): impossible",
                     "Check the FiO2 given and the unit of PO2.",
                     code="inconsistent",
@@ -431,13 +432,16 @@ class _Sample:
                     i.fail(
                         "fio2",
                         i.raw.get("fio2", self.fio2),
-                        f"at FiO2 {self.fio2:.2f} a PaCO2 of {self.pco2:.0f} mmHg leaves no alveolar oxygen "
-                        f"(alveolar PO2 {alveolar:.0f} mmHg), yet PO2 is {self.po2:.0f} mmHg",
+                        f"at FiO2 {self.fio2:.2f} a PaCO2 of {self._p(self.pco2)} leaves no alveolar oxygen "
+                        f"(alveolar PO2 {self._p(alveolar)}), yet PO2 is {self._p(self.po2)}",
                         "The patient must have been breathing supplemental oxygen: send the FiO2 used.",
                         code="inconsistent",
                     )
         self._grey_zone(i)
         i.finish()
+
+    def _p(self, mmhg: float) -> str:
+        return pressure_text(mmhg, self.unit)
 
     def values(self) -> SimpleNamespace:
         """The sample in the terms of :func:`decide`: NaN for what was not given."""
@@ -1376,6 +1380,10 @@ class _Work:
         """A pressure in the user's unit, as text."""
         return self.r.pressure_text(mmhg)
 
+    def basis_text(self, basis: str) -> str:
+        """Why the SpO2 target is what it is, thresholds in the user's unit."""
+        return SPO2_BASIS[basis].format(limit=self.p(PCO2_HIGH))
+
     def pf(self, mmhg: float) -> str:
         """A P/F ratio in the user's pressure unit, as text (kPa to one decimal, mmHg whole)."""
         if self.r.pressure_unit == "kPa":
@@ -1429,7 +1437,7 @@ def findings(d: Decision) -> list[str]:
 
 def blood_gas(inputs: Inputs, report: Report) -> None:
     """Interpret one blood-gas sample (CONTRACT.md ``blood_gas``); see the module docstring for the rules."""
-    s = _Sample(inputs)
+    s = _Sample(inputs, pressure_unit=report.pressure_unit)
     w = _Work(s, report, decide(s.values()))
     _input_findings(w)
     _core(w)
@@ -1694,17 +1702,13 @@ def _metabolic_expected(w: _Work, *, acidosis: bool):
     if acidosis:
         formula = "expected PaCO2 = 1.5 x HCO3 + 8, band +/- 2 mmHg (Winters)"
         sources = ("albert1967",)
-        alt = (
-            f"alternatives: 1.54 x HCO3 + 8.36 +/- 2.2 gives {1.54 * w.hco3 + 8.36:.1f} mmHg (Kidney360 2022)"
-        )
+        alt = f"alternatives: 1.54 x HCO3 + 8.36 +/- 2.2 gives {w.p(1.54 * w.hco3 + 8.36)} (Kidney360 2022)"
     else:
         a06 = ab.expected_pco2_metabolic_alkalosis(hco3_mmol_l=w.hco3, slope=0.6).value
         a075 = ab.expected_pco2_metabolic_alkalosis(hco3_mmol_l=w.hco3, slope=0.75).value
         formula = "expected PaCO2 = 40 + 0.7 x (HCO3 - 24), band +/- 5 mmHg"
         sources = ("berend2014", "kidney360_2022")
-        alt = (
-            f"alternatives: slope 0.6 gives {a06:.1f} mmHg (Narins & Emmett 1980), 0.75 gives {a075:.1f} mmHg"
-        )
+        alt = f"alternatives: slope 0.6 gives {w.p(a06)} (Narins & Emmett 1980), 0.75 gives {w.p(a075)}"
     r.pressure_range("expected_pco2", e.low, e.high)
     r.step(
         f"Expected PaCO2 ({formula}; {alt})", formula, e.value, sources, output="expected_pco2", pressure=True
@@ -1845,7 +1849,8 @@ def _respiratory_primary(w: _Work, code: str) -> None:
             r.finding(
                 "ph_rule_drift",
                 "info",
-                f"With PaCO2 {delta:.0f} mmHg above 40 the linear pH rules drift: the acute rule predicts "
+                f"With PaCO2 {w.p(delta)} above {w.p(40.0)} the linear pH rules drift: the acute rule "
+                "predicts "
                 f"pH {pr.acute:.2f}, while Henderson-Hasselbalch with the acute HCO3 gives "
                 f"{ph_hh['acute']:.3f}. The chronicity call uses the HCO3 rules.",
             )
@@ -2493,7 +2498,8 @@ def _ventilation(w: _Work) -> None:
             "niv_criteria_need_arterial_sample",
             "notable",
             f"This venous sample shows pH {s.ph:.2f} with PCO2 {w.p(p)}. The BTS/ICS 2016 NIV thresholds "
-            "(pH < 7.35 and PaCO2 > 6.5 kPa) are defined on arterial (or arterialised earlobe) values: "
+            f"(pH < 7.35 and PaCO2 > {w.p(NIV_PCO2_MMHG)}) are defined on arterial (or arterialised earlobe) "
+            "values: "
             "confirm with one.",
         )
     elif w.fires("niv_criteria_met"):
@@ -2669,7 +2675,8 @@ def _pco2_target(w: _Work) -> None:
             "notable",
             "The usual PaCO2 cannot be estimated from the HCO3 here: a concurrent metabolic disorder moves "
             "the HCO3 by an amount the anion gap does not show, and chronic retention may be hidden. The aim "
-            "is therefore the PaCO2 that would bring the pH to 7.35, not the normal 45 mmHg. Use a known "
+            f"is therefore the PaCO2 that would bring the pH to 7.35, not the normal {w.p(PCO2_HIGH)}. Use a "
+            "known "
             "usual PaCO2 (an earlier stable gas) where there is one.",
         )
     _below_baseline(w)
@@ -2896,7 +2903,7 @@ def _respiratory_failure(w: _Work) -> None:
         r.finding(
             "respiratory_failure_type_2",
             "notable",
-            f"Type 2 (hypercapnic) respiratory failure: PaCO2 {w.p(s.pco2)} is above 6.0 kPa with a "
+            f"Type 2 (hypercapnic) respiratory failure: PaCO2 {w.p(s.pco2)} is above {w.p(PCO2_HIGH)} with a "
             "respiratory acidosis (named from the PaCO2, with or without hypoxaemia)." + po2,
         )
     if w.fires("respiratory_failure_type_1"):
@@ -2905,7 +2912,7 @@ def _respiratory_failure(w: _Work) -> None:
             "notable",
             "Type 1 (hypoxaemic) respiratory failure: "
             + (
-                f"PaO2 {w.p(s.po2)} is below 8 kPa on {fio2_words}."
+                f"PaO2 {w.p(s.po2)} is below {w.p(HYPOXAEMIA_MMHG)} on {fio2_words}."
                 if s.po2 < HYPOXAEMIA_MMHG
                 else f"on FiO2 {s.fio2:.2f} the P/F ratio is at or below {w.pf(PF_IMPAIRED)}."
             ),
@@ -2985,8 +2992,8 @@ def _temperature(w: _Work) -> None:
 #: why the SpO2 target is what it is (``spo2_target_basis``)
 SPO2_BASIS = {
     "prescribed": "the patient's prescribed range",
-    "hypercapnic": "PCO2 above 6.0 kPa on this sample",
-    "venous_pco2_raised": "venous PCO2 above 6.0 kPa: a positive screen until an arterial or earlobe gas",
+    "hypercapnic": "PCO2 above {limit} on this sample",
+    "venous_pco2_raised": "venous PCO2 above {limit}: a positive screen until an arterial or earlobe gas",
     "previous_hypercapnic_failure": "NIV or invasive ventilation for hypercapnic failure before",
     "at_risk_pco2_normal": "at risk of hypercapnic failure, but the PCO2 is normal",
     "default": "not hypercapnic",
@@ -3002,7 +3009,7 @@ def _spo2_target(w: _Work) -> None:
     r.put("spo2_target", {"low": low, "high": high}, decimals=0)
     r.put("spo2_target_basis", basis)
     r.step(
-        f"SpO2 target range {low:g}-{high:g} % ({SPO2_BASIS[basis]})",
+        f"SpO2 target range {low:g}-{high:g} % ({w.basis_text(basis)})",
         "a prescribed range overrides; else 88-92 % when the PCO2 is above 6.0 kPa or after NIV or invasive "
         "ventilation for hypercapnic failure; else 94-98 % (an at-risk patient with a normal PCO2 too)",
         low,
@@ -3012,7 +3019,7 @@ def _spo2_target(w: _Work) -> None:
     r.finding(
         "spo2_target",
         "info",
-        f"SpO2 target {low:g}-{high:g} % ({SPO2_BASIS[basis]}; BTS 2017). Recheck the gas 30-60 minutes "
+        f"SpO2 target {low:g}-{high:g} % ({w.basis_text(basis)}; BTS 2017). Recheck the gas 30-60 minutes "
         "after a change of oxygen.",
     )
     if w.fires("spo2_target_needs_history"):
@@ -3184,13 +3191,16 @@ def _cautions(w: _Work) -> None:
             "venous_sample",
             "notable",
             (
-                f"Venous PCO2 {w.p(s.pco2)} is above 6.0 kPa: arterial hypercapnia is possible (venous PCO2 "
-                "runs about 4-6 mmHg above arterial, with wide limits). Confirm with an arterial or "
+                f"Venous PCO2 {w.p(s.pco2)} is above {w.p(PCO2_HIGH)}: arterial hypercapnia is possible "
+                "(venous "
+                f"PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial, with wide limits). Confirm with "
+                "an arterial or "
                 "arterialised earlobe gas before judging chronicity or setting a PaCO2 aim; meanwhile the "
                 "88-92 % SpO2 range applies."
                 if raised
-                else f"Venous PCO2 {w.p(s.pco2)} is not above 6.0 kPa: arterial hypercapnia is unlikely "
-                "(venous PCO2 runs about 4-6 mmHg above arterial)."
+                else f"Venous PCO2 {w.p(s.pco2)} is not above {w.p(PCO2_HIGH)}: arterial hypercapnia is "
+                "unlikely "
+                f"(venous PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial)."
             ),
         )
     elif s.site == "capillary":
@@ -3284,7 +3294,7 @@ def _summary(w: _Work) -> None:
         if w.fires("spo2_target_needs_history")
         else ""
     )
-    r.say(f"SpO2 target {low:g}-{high:g} % ({SPO2_BASIS[w.d.spo2_basis]}).{history}")
+    r.say(f"SpO2 target {low:g}-{high:g} % ({w.basis_text(w.d.spo2_basis)}).{history}")
     if w.temp:
         r.say(_temperature_line(w))
     hco3_note = (

@@ -41,6 +41,15 @@ def in_words(text: str) -> str:
     return _DEGREES.sub(lambda m: f"{m.group(1) + ' ' if m.group(1) else ''}°{m.group(2)}", text)
 
 
+def pressure_text(mmhg: float, unit: str) -> str:
+    """A pressure (given in mmHg) as text in ``unit``, as clinicians write it.
+
+    >>> pressure_text(45.0, "kPa"), pressure_text(45.0, "mmHg")
+    ('6.0 kPa', '45 mmHg')
+    """
+    return f"{units.convert(mmhg, 'mmHg', unit):.{PRESSURE_DECIMALS[unit]}f} {unit}"
+
+
 class Report:
     """The answer of one calculation."""
 
@@ -61,8 +70,7 @@ class Report:
 
     def pressure_text(self, mmhg: float) -> str:
         """A pressure (given in mmHg) as text in the request's unit: ``7.6 kPa``, ``57 mmHg``."""
-        q = self.pressure_value(mmhg)
-        return f"{q['value']:.{PRESSURE_DECIMALS[q['unit']]}f} {q['unit']}"
+        return pressure_text(mmhg, self.pressure_unit)
 
     def put(self, name: str, value, *, decimals: int | None = None) -> None:
         _check_finite(name, value)

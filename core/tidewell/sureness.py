@@ -350,7 +350,9 @@ def uncertainty(inputs: Inputs, report: Report) -> None:
     sample = None
     if sample_raw is not None:
         try:
-            sample = interpret._Sample(Inputs(sample_raw, prefix="inputs.sample"))
+            sample = interpret._Sample(
+                Inputs(sample_raw, prefix="inputs.sample"), pressure_unit=report.pressure_unit
+            )
         except InputErrors as exc:
             problems.extend(exc.errors)
     given_errors = read_errors(errors_raw, problems)

@@ -163,7 +163,7 @@ def test_bad_requests_answer_with_errors_not_hangs(browser, server):
 
 
 NUMPY_CALCS = {
-    # a calculation known to need numpy, and a small request for it (inputs of CONTRACT.md)
+    # a calculation known to need numpy, and a small request for it (inputs of docs/bridge.md)
     "oxygen_dissociation_curve": {
         "calc": "oxygen_dissociation_curve",
         "inputs": {"ph": 7.3, "po2": {"value": 60, "unit": "mmHg"}},

@@ -23,7 +23,7 @@ SUB_PATH = "/wards/night-shift/tidewell/"
 
 q = lambda value, unit: {"value": value, "unit": unit}  # noqa: E731
 # One or more requests for every calculation of tidewell.bridge.CALCULATIONS (invented values, inputs of
-# CONTRACT.md); the CPython bridge must answer each one ok, so the comparison below means something.
+# docs/bridge.md); the CPython bridge must answer each one ok, so the comparison below means something.
 OFFLINE_REQUESTS = [
     {"calc": "convert", "inputs": {"quantity": q(6.5, "kPa"), "to": "mmHg"}},
     {"calc": "convert", "inputs": {"quantity": q(180, "mg/dL"), "to": "mmol/L", "substance": "glucose"}},

@@ -2,9 +2,8 @@
 
 Provenance words beside each check: *published* (a table or worked example in the source), *derived* (hand
 computed here from the cited equation), *common practice*, *from memory* (the source was recalled, not
-re-read). The worked cases (tests/cases/reference_cases.json) were computed from the formulas of REFERENCE.md;
-their own
-``provenance`` field names the weakest element of each rule.
+re-read). The worked cases (tests/cases/reference_cases.json) were computed from the formulas of
+docs/methods.md#acid-base; their own ``provenance`` field names the weakest element of each rule.
 """
 
 from __future__ import annotations
@@ -67,13 +66,15 @@ def test_hh03_kassirer_bleich_and_hco3_from_ph(cases):
 
 
 def test_kassirer_constant_is_the_rounded_hh_constant():
-    # Derived: 10^-6.1 x 0.0307 x 1e9 = 24.39 (REFERENCE.md section 2), published rounded to 24.
+    # Derived: 10^-6.1 x 0.0307 x 1e9 = 24.39 (kassirer1965 with henderson1908, nccls1994), published rounded
+    # to 24.
     assert 10 ** (-ab.PK_PRIME) * ab.CO2_SOLUBILITY * 1e9 == pytest.approx(24.39, abs=0.005)
     assert ab.KASSIRER_BLEICH_K == 24.0
 
 
 def test_normal_triple_balance_matches_reference_note():
-    # Derived (REFERENCE.md section 2 caveat): with 6.1/0.0307 the HCO3 at pH 7.40, PCO2 40 is 24.50.
+    # Derived (henderson1908, nccls1994; docs/methods.md#henderson-hasselbalch-and-the-consistency-check):
+    # with 6.1/0.0307 the HCO3 at pH 7.40, PCO2 40 is 24.50.
     assert ab.hco3_henderson_hasselbalch(ph=7.40, pco2_mmhg=40) == pytest.approx(24.50, abs=0.01)
 
 
@@ -135,7 +136,7 @@ def test_be02_zander(cases):
 
 
 def test_sbe_alkalosis_examples():
-    # REFERENCE.md section 3 worked example: pH 7.50, HCO3 34 -> CLSI +10.82, Siggaard-Andersen +10.29
+    # nccls1994 and siggaard1971 worked example: pH 7.50, HCO3 34 -> CLSI +10.82, Siggaard-Andersen +10.29
     # (derived from the cited equations).
     assert ab.standard_base_excess_clsi2009(ph=7.50, hco3_mmol_l=34) == pytest.approx(10.82, abs=0.005)
     assert ab.standard_base_excess_siggaard_andersen1977(ph=7.50, hco3_mmol_l=34) == pytest.approx(
@@ -246,8 +247,9 @@ def test_cp06_copenhagen_rules(cases):
 
 
 def test_copenhagen_chronic_rule_is_steeper_than_boston():
-    # REFERENCE.md 4.2 note (derived): with the CLSI SBE, dSBE = 0.4 dPaCO2 at PaCO2 60 corresponds to HCO3
-    # 33.5 and pH 7.359. Solve SBE(pH(HCO3), HCO3) = 8 for HCO3 by bisection.
+    # schlichtig1998 with nccls1994 (derived; docs/methods.md#copenhagen-cross-check): with the CLSI SBE, dSBE
+    # = 0.4 dPaCO2 at PaCO2 60 corresponds to HCO3 33.5 and pH 7.359. Solve SBE(pH(HCO3), HCO3) = 8 for HCO3
+    # by bisection.
     def sbe_at(hco3):
         ph = ab.ph_henderson_hasselbalch(hco3_mmol_l=hco3, pco2_mmhg=60)
         return ab.standard_base_excess_clsi2009(ph=ph, hco3_mmol_l=hco3)
@@ -261,7 +263,8 @@ def test_copenhagen_chronic_rule_is_steeper_than_boston():
 
 
 def test_ph_rule_drift_at_large_rises():
-    # REFERENCE.md 4.4 caveat (derived): PaCO2 80, acute HCO3 28: HH 7.157 against the linear 7.08.
+    # berend2014 pH rules against henderson1908 (derived): PaCO2 80, acute HCO3 28: HH 7.157 against the
+    # linear 7.08.
     e = ab.expected_hco3_respiratory_acidosis(paco2_mmhg=80)
     assert e.acute.value == pytest.approx(28.0)
     assert ab.ph_henderson_hasselbalch(hco3_mmol_l=28, pco2_mmhg=80) == pytest.approx(7.157, abs=0.001)
@@ -269,7 +272,8 @@ def test_ph_rule_drift_at_large_rises():
 
 
 def test_bands_contain_default_and_order():
-    # Bands of published slopes (REFERENCE.md 4.1/13): the default lies inside; chronic beyond acute.
+    # Bands of published slopes (narins1980, brandis, martinu2003; docs/methods.md#expected-compensation): the
+    # default lies inside; chronic beyond acute.
     for p in (46, 60, 90, 140):
         e = ab.expected_hco3_respiratory_acidosis(paco2_mmhg=p)
         for x in e:
@@ -402,7 +406,7 @@ def test_delta_bands_edges():
 
 def test_ag04_osmolar_gap(cases):
     # AG-04: 2 Na + glucose + urea (Cleve Clin J Med osmol-gap box, verified). The US form with bedside
-    # divisors is the same equation; exact mg/dL conversions (REFERENCE.md section 1) reproduce it within
+    # divisors is the same equation; exact mg/dL conversions (iupac_masses) reproduce it within
     # 0.01.
     from tidewell import units
 
@@ -551,7 +555,7 @@ def test_functions_are_keyword_only():
 
 
 def test_no_function_returns_nan_on_its_accepted_edges():
-    # Edges of the accepted ranges give finite numbers (STYLE.md: never NaN).
+    # Edges of the accepted ranges give finite numbers (DEVELOPERS.md: a domain function never returns NaN).
     values = [
         ab.ph_henderson_hasselbalch(hco3_mmol_l=0.5, pco2_mmhg=300),
         ab.ph_henderson_hasselbalch(hco3_mmol_l=80, pco2_mmhg=1),

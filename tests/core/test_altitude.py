@@ -51,13 +51,13 @@ def test_pressure_matches_ussa1976_table(geometric_m, expected_kpa):
 
 
 def test_geometric_and_geopotential_differ_as_style_warns():
-    # Derived (STYLE.md section 2): treating geometric height as geopotential puts the pressure about
-    # 0.2 % off the 1976 table at 10 km.
+    # Derived (ussa1976): treating geometric height as geopotential puts the pressure about 0.2 % off the
+    # 1976 table at 10 km, which is why a name says which height it means.
     as_if_geopotential = alt.pressure_at_altitude_isa(altitude_m=10_000.0) * KPA_PER_MMHG
     assert 0.1 < 100 * (26.500 - as_if_geopotential) / 26.500 < 0.35
 
 
-# Published: altitude cross-check table quoted in REFERENCE.md 10.1 (verified), printed to whole mmHg and
+# Published: an altitude table, a cross-check of icao7488 (verified), printed to whole mmHg and
 # 0.1 kPa. Its rounding rule is not stated (8,000 ft, 564.51 mmHg, is printed 564: truncated or computed with
 # other constants), so the tolerance is one printed unit: 1 mmHg and 0.1 kPa.
 PUBLISHED_FT = [
@@ -77,13 +77,15 @@ def test_pressure_matches_published_feet_table(feet, mmhg, kpa):
     assert pb * KPA_PER_MMHG == pytest.approx(kpa, abs=0.1)
 
 
-# Published: Arch Dis Child altitude table (REFERENCE.md 10.1, verified), whole mmHg -> tolerance 0.5.
+# Published: Arch Dis Child altitude table (fio2_altitude_rules cites its footnote; verified), whole mmHg ->
+# tolerance 0.5.
 @pytest.mark.parametrize(("metres", "mmhg"), [(1000, 674), (2000, 596), (3000, 526)])
 def test_pressure_matches_arch_dis_child_table(metres, mmhg):
     assert alt.pressure_at_altitude_isa(altitude_m=metres) == pytest.approx(mmhg, abs=0.5)
 
 
-# Derived: REFERENCE.md 10.1 table, computed from the ICAO equation (hPa to 2 dp, mmHg to 2 dp, kPa to 3 dp).
+# Derived: the table of docs/methods.md#standard-atmosphere, computed from the ICAO equation (icao7488) (hPa
+# to 2 dp, mmHg to 2 dp, kPa to 3 dp).
 REFERENCE_TABLE = [
     pytest.param(0.0, 1013.25, 760.00, 101.325, id="0ft"),
     pytest.param(304.8, 977.17, 732.93, 97.717, id="1000ft"),
@@ -106,8 +108,9 @@ def test_pressure_matches_reference_table(metres, hpa, mmhg, kpa):
 
 def test_isa_exponent_and_sea_level():
     # Published constants (US Standard Atmosphere 1976 / ICAO Doc 7488): exponent g0 M / (R* L) = 5.255876
-    # with R* 8.31432 (REFERENCE.md 10.1 quotes 5.255877; the module's R_air gives 5.255880: all three agree
-    # to 1e-6 relative, about 1e-4 mmHg at 8,000 ft). Sea level 101325 Pa = 760.000 mmHg (conventional mmHg).
+    # with R* 8.31432 (docs/methods.md#standard-atmosphere quotes 5.255877; the module's R_air gives 5.255880:
+    # all three agree to 1e-6 relative, about 1e-4 mmHg at 8,000 ft). Sea level 101325 Pa = 760.000 mmHg
+    # (conventional mmHg).
     assert alt.ISA_EXPONENT == pytest.approx(9.80665 * 0.0289644 / (8.31432 * 0.0065), rel=1e-6)
     assert alt.ISA_EXPONENT == pytest.approx(5.255877, abs=5e-6)
     assert alt.pressure_at_altitude_isa(altitude_m=0.0) == pytest.approx(760.0, abs=0.001)
@@ -156,8 +159,8 @@ def test_inverse_rejects_pressures_outside_the_model(bad):
 
 def test_al04_inspired_and_alveolar_po2(cases):
     case = cases["AL-04"]
-    # Derived (REFERENCE.md 10.2, AL-04): PIO2 = FiO2 (PB - 47), alveolar gas equation with the ISA PB
-    # at 8000 ft, FiO2 0.21, PaCO2 40, R 0.8.
+    # Derived (alveolar_gas_1946 with icao7488, AL-04): PIO2 = FiO2 (PB - 47), alveolar gas equation with the
+    # ISA PB at 8000 ft, FiO2 0.21, PaCO2 40, R 0.8.
     h = case["inputs"]["altitude_ft"] * FT_M
     kw = {"fio2_fraction": case["inputs"]["fio2"], "altitude_m": h}
     tol = case["tolerance"]
@@ -173,7 +176,8 @@ def test_al04_inspired_and_alveolar_po2(cases):
 @pytest.mark.parametrize(
     ("metres", "pio2", "pao2"),
     [
-        # Derived: REFERENCE.md 10.1 table columns (FiO2 0.2095, PaCO2 40, R 0.8), to 0.1 mmHg.
+        # Derived: docs/methods.md#standard-atmosphere table columns (FiO2 0.2095, PaCO2 40, R 0.8), to 0.1
+        # mmHg.
         (0.0, 149.4, 99.4),
         (1524.0, 122.6, 72.6),
         (2438.4, 108.4, 58.4),
@@ -201,7 +205,7 @@ def test_al05_fio2_at_cabin(cases):
         "pb_destination_mmhg": pb1,
     }
     tol = case["tolerance"]
-    # Common practice (REFERENCE.md 10.2, AL-05): water-corrected 0.4822 (default), PB ratio 0.4712.
+    # Common practice (fio2_altitude_rules, AL-05): water-corrected 0.4822 (default), PB ratio 0.4712.
     assert pb1 == pytest.approx(case["expected"]["pb_cabin_mmHg"], abs=tol["pb_cabin_mmHg"])
     assert alt.fio2_at_altitude_water_corrected(**kw) == pytest.approx(
         case["expected"]["fio2_cabin_water_corrected"], abs=tol["fio2_cabin_water_corrected"]
@@ -212,7 +216,7 @@ def test_al05_fio2_at_cabin(cases):
 
 
 def test_water_corrected_fio2_keeps_pio2_and_simple_pao2():
-    # Derived (REFERENCE.md 10.2): equal PIO2 -> equal simple-equation PAO2 at the same PaCO2 and R; the
+    # Derived (fio2_altitude_rules): equal PIO2 -> equal simple-equation PAO2 at the same PaCO2 and R; the
     # full equation's PAO2 comes out slightly higher (safe side).
     pb0, pb1 = 760.0, alt.pressure_at_altitude_isa(altitude_m=2438.4)
     f1 = alt.fio2_at_altitude_water_corrected(fio2_fraction=0.35, pb_origin_mmhg=pb0, pb_destination_mmhg=pb1)
@@ -237,7 +241,8 @@ def test_fio2_rises_with_altitude():
 
 
 def test_reference_table_fio2_column():
-    # Derived: REFERENCE.md 10.1 last column, 0.2095 x 713 / (PB - 47), 3 dp.
+    # Derived: docs/methods.md#standard-atmosphere last column (fio2_altitude_rules), 0.2095 x 713 / (PB -
+    # 47), 3 dp.
     for metres, expected in [
         (304.8, 0.218),
         (1524.0, 0.255),
@@ -273,7 +278,8 @@ def test_al07_hypoxic_challenge_equivalence(cases):
 
 
 def test_sea_level_fio2_0_15_is_about_8300_ft():
-    # Derived (REFERENCE.md 10.2, AL-07): FiO2 0.15 at sea level has the PIO2 of ~8,330 ft ISA on air.
+    # Derived (fio2_altitude_rules with icao7488, AL-07): FiO2 0.15 at sea level has the PIO2 of ~8,330 ft ISA
+    # on air.
     feet = alt.altitude_of_sea_level_fio2(fio2_sea_level=0.15) / FT_M
     assert feet == pytest.approx(8330, abs=10)
     # and the forward and inverse agree exactly
@@ -351,7 +357,8 @@ def test_fio2_for_alveolar_po2_substitutes_back(want, pb, paco2, rq, full):
         got = alveolar(fio2_fraction=fio2, paco2_mmhg=paco2, pb_mmhg=pb, rq=rq)
         assert got == pytest.approx(want, abs=1e-8)
     if not full:
-        # Derived (REFERENCE.md 10.2): simple form in closed form (PAO2 + PaCO2 / R) / (PB - 47).
+        # Derived (alveolar_gas_1946, fio2_altitude_rules): simple form in closed form (PAO2 + PaCO2 / R) /
+        # (PB - 47).
         assert fio2 == pytest.approx((want + paco2 / rq) / (pb - 47.0), rel=1e-10)
 
 

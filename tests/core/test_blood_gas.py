@@ -3,8 +3,8 @@ hypothesis property tests (no NaN or exception; kPa and mmHg input classify the 
 
 Provenance words beside each check: *published* (table or worked example in the source), *derived* (computed
 here from the cited equation), *common practice*, *from memory*. The AB-xx cases are invented patients whose
-``interpretation`` strings define the vocabulary of REFERENCE.md 4.3; each is checked here as structure
-(``disorders``, findings, outputs), not as English text.
+``interpretation`` strings define the vocabulary of the reading (docs/methods.md#reading-a-blood-gas); each is
+checked here as structure (``disorders``, findings, outputs), not as English text.
 """
 
 from __future__ import annotations
@@ -30,8 +30,8 @@ CASES = load_cases()
 
 
 def check_response(response: dict) -> None:
-    """Contract shape (CONTRACT.md). The session hook of tests/conftest.py also checks every response against
-    schema/bridge.schema.json and the contract's conditional outputs."""
+    """Contract shape (docs/bridge.md). The session hook of tests/conftest.py also checks every response
+    against schema/bridge.schema.json and the contract's conditional outputs."""
     assert isinstance(response["ok"], bool)
     assert_finite_everywhere(response)
     json.dumps(response, allow_nan=False)
@@ -103,7 +103,7 @@ def test_ab_case_numbers(case_id):
 
 
 # The meaning of each AB interpretation string, as structure. The string itself is checked first so that an
-# edit of the shared cases is noticed here.
+# edit of the worked cases (tests/cases/reference_cases.json) is noticed here.
 AB_MEANING = {
     "AB-01": "high anion gap metabolic acidosis with appropriate respiratory compensation",
     "AB-02": "metabolic acidosis with concurrent respiratory acidosis",
@@ -163,7 +163,7 @@ def test_ab_case_meaning(case_id):
     elif case_id == "AB-07":
         assert len(d) == 3
         assert {x[0] for x in d} == {MA, MK, RK}
-        assert d[0][:2] == (RK, "primary")  # alkalaemia with PaCO2 < 35 (REFERENCE.md 4.3 step 3)
+        assert d[0][:2] == (RK, "primary")  # alkalaemia with PaCO2 < 35 (pco2_normal_range)
         assert o["disorders"][0]["fraction_acute"] is None  # the HCO3 also carries two metabolic processes
         assert "chronicity_indeterminate" in codes(response)
         assert o["metabolic_acidosis_type"] == "high_anion_gap"
@@ -563,7 +563,8 @@ def test_pco2_target_given_baseline():
 
 
 def test_pco2_target_acute_is_upper_limit_of_normal():
-    # AB-03 (acute): no chronic retention -> the normal range's upper limit, 45 mmHg (CONTRACT.md).
+    # AB-03 (acute): no chronic retention -> the normal range's upper limit, 45 mmHg (pco2_normal_range;
+    # docs/clinical-rules.md).
     o = ok(case_inputs(CASES["AB-03"]))["outputs"]
     assert o["pco2_target"]["value"] == pytest.approx(45.0)
     assert o["pco2_target_basis"] == "normal_upper_limit"
@@ -678,7 +679,8 @@ def test_metabolic_alkalosis_beside_chronic_hypercapnia_only_beyond_the_band(hco
 
 
 def test_ph_rule_drift_is_said():
-    # AB-09: PaCO2 80, the linear pH rule drifts (REFERENCE.md 4.4); chronicity comes from the HCO3 rules.
+    # AB-09: PaCO2 80, the linear pH rule drifts (berend2014 against henderson1908); chronicity comes from the
+    # HCO3 rules.
     response = ok(case_inputs(CASES["AB-09"]))
     assert "ph_rule_drift" in codes(response)
     assert response["outputs"]["expected_ph_hh"]["acute"] == pytest.approx(7.157, abs=0.001)
@@ -757,7 +759,7 @@ def test_temperature_37_shows_no_correction():
     o = ok({"ph": 7.30, "pco2": q(45, "mmHg"), "temperature": q(37, "degC")})["outputs"]
     assert "ph_at_temperature" not in o
     o = ok({"ph": 7.30, "pco2": q(45, "mmHg"), "temperature": q(89.6, "degF")})["outputs"]
-    # 89.6 degF = 32 degC (REFERENCE.md section 1): Rosenthal gives 7.3702 (derived)
+    # 89.6 degF = 32 degC (nist811): Rosenthal gives 7.3702 (derived)
     assert o["ph_at_temperature"] == pytest.approx(7.3702, abs=1e-4)
 
 
@@ -929,7 +931,7 @@ def test_null_means_not_given_and_bad_options():
 
 
 def test_urea_and_bun_that_agree_are_accepted():
-    # BUN 14 mg/dL = 4.998 mmol/L urea (REFERENCE.md section 1) agrees with urea 5 within 5 %.
+    # BUN 14 mg/dL = 4.998 mmol/L urea (iupac_masses) agrees with urea 5 within 5 %.
     ok({**GAS, "urea": q(5, "mmol/L"), "bun": q(14, "mg/dL")})
 
 
@@ -1092,7 +1094,7 @@ def test_more_hco3_never_means_more_acute(p, h, d):
     # estimated usual PaCO2 (when a respiratory acidosis is primary and no metabolic disorder is named).
     def outs(hco3):
         ph = 6.1 + math.log10(hco3 / (0.0307 * p))
-        assume(6.5 <= ph < 7.40)  # a respiratory acidosis stays primary (REFERENCE.md 4.3 step 3)
+        assume(6.5 <= ph < 7.40)  # a respiratory acidosis stays primary (acid_base_normal_ranges)
         return ok({"ph": ph, "pco2": q(p, "mmHg"), "hco3": q(hco3, "mmol/L")})["outputs"]
 
     o1, o2 = outs(h), outs(h + d)

@@ -123,14 +123,15 @@ def test_sf_estimate_withheld_above_97_percent():
 
 
 def test_patient_temperature_uses_buck_water_vapour():
-    # buck1981: 39 degC -> 52.5 mmHg (REFERENCE.md conventions), PIO2 = 0.21 x (760 - 52.5)
+    # buck1981: 39 degC -> 52.5 mmHg (docs/methods.md#water-vapour-pressure), PIO2 = 0.21 x (760 - 52.5)
     o = ok("alveolar_gas", {"fio2": 0.21, "pco2": mmhg(40), "temperature": q(39, "degC")})["outputs"]
     assert val(o["ph2o"]) == pytest.approx(52.5, abs=0.05)
     assert val(o["pio2"]) == pytest.approx(0.21 * (760 - 52.49), abs=0.02)
 
 
 def test_ab09_pure_hypoventilation_a_a_normal():
-    # REFERENCE.md 7.4 [AB-09] (derived): PaCO2 80, PaO2 48 on air, age 30 -> PAO2 49.73, A-a 1.73 vs 11.5
+    # alveolar_gas_1946, aa_age_rule, AB-09 (derived): PaCO2 80, PaO2 48 on air, age 30 -> PAO2 49.73, A-a
+    # 1.73 vs 11.5
     o = ok("alveolar_gas", {"fio2": 0.21, "pco2": mmhg(80), "po2": mmhg(48), "age": 30})["outputs"]
     assert val(o["pao2_alveolar"]) == pytest.approx(49.73, abs=0.01)
     assert val(o["a_a_gradient"]) == pytest.approx(1.73, abs=0.01)

@@ -1,4 +1,4 @@
-"""The bridge contract (CONTRACT.md): shapes, every error code, never raising, never NaN."""
+"""The bridge contract (docs/bridge.md): shapes, every error code, never raising, never NaN."""
 
 from __future__ import annotations
 
@@ -20,7 +20,7 @@ CONVERT = {"calc": "convert", "inputs": {"quantity": {"value": 6.5, "unit": "kPa
 
 
 def check_shape(response: dict) -> None:
-    """The success/failure shapes of CONTRACT.md."""
+    """The success/failure shapes of the contract (docs/bridge.md)."""
     assert isinstance(response["ok"], bool)
     assert response["engine"] == bridge.ENGINE
     assert "calc" in response
@@ -208,7 +208,7 @@ def probe(monkeypatch):
 def test_probe_reads_and_converts(probe):
     response = probe({"pco2": {"value": 6.0, "unit": "kPa"}, "fio2": {"value": 40, "unit": "%"}, "spo2": 92})
     assert response["ok"]
-    # 6.0 kPa = 45.0037 mmHg (REFERENCE.md section 1, derived from the exact mmHg)
+    # 6.0 kPa = 45.0037 mmHg (bipm2019, derived from the exact mmHg)
     assert response["outputs"]["pco2"]["value"] == pytest.approx(45.0037, abs=1e-4)
     assert response["outputs"]["fio2"] == pytest.approx(0.40)
     response = probe({"pco2": {"value": 45, "unit": "mmHg"}}, pressure_unit="kPa")
@@ -275,7 +275,7 @@ def test_null_means_not_given(probe):
 
 
 def test_every_contract_error_code_is_known():
-    # CONTRACT.md: error codes at least these.
+    # docs/bridge.md: error codes at least these.
     for code in (
         "missing",
         "not_a_number",
@@ -290,7 +290,7 @@ def test_every_contract_error_code_is_known():
 
 
 def test_registry_names_every_contract_calculation():
-    # CONTRACT.md "Calculations (required names ...)".
+    # docs/bridge.md: the calculations the contract requires.
     required = {
         "blood_gas",
         "alveolar_gas",

@@ -1,7 +1,7 @@
 """The altitude, altitude_profile and oxygen_supply calculations through tidewell.bridge.handle_obj.
 
-Worked cases AL-* and CY-* (tests/cases/reference_cases.json, a copy of the shared cases) are answered within
-their tolerances; unit variants give the same answers; every error path names its code and field.
+Worked cases AL-* and CY-* (tests/cases/reference_cases.json; methods: docs/methods.md#altitude) are answered
+within their tolerances; unit variants give the same answers; every error path names its code and field.
 Provenance words: *published* / *derived* (from the cited equation) / *common practice* / *from memory*.
 """
 
@@ -119,7 +119,8 @@ SUPPLY = {
 
 @pytest.mark.parametrize("case_id", ["AL-01", "AL-02", "AL-03"])
 def test_isa_cases(cases, case_id):
-    # Published formula (ICAO Doc 7488 / US Standard Atmosphere 1976; verified); REFERENCE.md 10.1 values.
+    # Published formula (ICAO Doc 7488 / US Standard Atmosphere 1976; verified); values as in
+    # docs/methods.md#standard-atmosphere.
     case = cases[case_id]
     i, e, tol = case["inputs"], case["expected"], case["tolerance"]
     where = ft(i["altitude_ft"]) if "altitude_ft" in i else m(i["altitude_m"])
@@ -143,7 +144,7 @@ def test_al04_pio2_and_pao2(cases):
         "rq": i["rq"],
     }
     r = ok("altitude", inputs)
-    # Derived (REFERENCE.md 10.2, AL-04; alveolar gas equation, verified form).
+    # Derived (alveolar_gas_1946 with icao7488, AL-04; alveolar gas equation, verified form).
     assert value(r, "pb") == pytest.approx(e["pb_mmHg"], abs=tol["pb_mmHg"])
     assert value(r, "pio2") == pytest.approx(e["pio2_mmHg"], abs=tol["pio2_mmHg"])
     assert value(r, "pao2_alveolar") == pytest.approx(e["pao2_alv_mmHg"], abs=tol["pao2_alv_mmHg"])
@@ -168,7 +169,8 @@ def test_al05_fio2_equivalent(cases):
             "pco2": mmhg(40),
         },
     )
-    # Common practice (REFERENCE.md 10.2 and 13): water-corrected ratio (default) 0.4822; PB ratio 0.4712.
+    # Common practice (fio2_altitude_rules; docs/methods.md#where-sources-disagree-the-defaults):
+    # water-corrected ratio (default) 0.4822; PB ratio 0.4712.
     assert value(r, "pb") == pytest.approx(e["pb_cabin_mmHg"], abs=tol["pb_cabin_mmHg"])
     assert value(r, "fio2_equivalent") == pytest.approx(
         e["fio2_cabin_water_corrected"], abs=tol["fio2_cabin_water_corrected"]
@@ -210,7 +212,7 @@ def test_al06_predicted_pao2(cases):
     assert needed == e["inflight_o2_needed"]
     low = next(f for f in r["findings"] if f["code"] == "predicted_po2_low")
     assert low["severity"] == "urgent" and "6.6 kPa" in low["text"]
-    # the predicted PaO2 in kPa (REFERENCE.md AL-06: 5.5 kPa)
+    # the predicted PaO2 in kPa (gilbert1974, worked case AL-06: 5.5 kPa)
     r_kpa = ok(
         "altitude",
         {"altitude": ft(8000), "fio2": 0.21, "pco2": mmhg(40), "po2": mmhg(70)},
@@ -233,7 +235,7 @@ def test_al07_hypoxic_challenge_equivalence(cases):
     step = next(s for s in r["steps"] if s.get("output") == "sea_level_fio2_equivalent")
     assert "0.15" in step["formula"] and "8,000 ft" in step["formula"]
     assert {"bradi2009", "bts2011_air", "aviation_o2_equivalence"} <= set(step["source_keys"])
-    # Derived (REFERENCE.md AL-07): FiO2 0.15 at sea level = air at ~8,330 ft ISA.
+    # Derived (fio2_altitude_rules with icao7488, AL-07): FiO2 0.15 at sea level = air at ~8,330 ft ISA.
     assert value(r, "hypoxic_challenge_altitude") == pytest.approx(8330, abs=10)
 
 
@@ -278,7 +280,8 @@ def test_cy01_cylinder_duration(cases):
         # CY-01 has no planned duration; any duration leaves these outputs unchanged
         "duration": {"value": 60, "unit": "min"},
     }
-    # Common practice (ideal gas, REFERENCE.md 11): 1973.8 L, 131.59 min; with a 25 % reserve 98.69 min.
+    # Common practice (cylinder_ideal_gas, transport_reserve, CY-01): 1973.8 L, 131.59 min; with a 25 %
+    # reserve 98.69 min.
     whole = ok("oxygen_supply", inputs)
     assert value(whole, "available_litres") == pytest.approx(
         e["free_gas_ideal_L"], abs=tol["free_gas_ideal_L"]
@@ -312,7 +315,8 @@ def test_cy02_sufficient_with_safety_factor(cases):
             "safety_factor": i["safety_factor"],
         },
     )
-    # Common practice (REFERENCE.md 11, CY-02): 454.0 L, 113.5 min, 360 L required, sufficient.
+    # Common practice (cylinder_ideal_gas, transport_reserve, CY-02): 454.0 L, 113.5 min, 360 L required,
+    # sufficient.
     assert value(r, "available_litres") == pytest.approx(e["free_gas_ideal_L"], abs=tol["free_gas_ideal_L"])
     assert value(r, "minutes_available") == pytest.approx(
         e["duration_ideal_min"], abs=tol["duration_ideal_min"]
@@ -521,7 +525,8 @@ def test_max_altitude_substitutes_back(equation):
 def test_max_altitude_simple_form_equals_closed_form():
     r = ok("altitude", {**FULL_ALTITUDE, "altitude": m(2000)})
     ratio = value(r, "a_over_A")
-    # Derived (REFERENCE.md 10.2 rearranged): lowest PB = 47 + (target / (a/A) + PaCO2 / R) / FiO2_max.
+    # Derived (gilbert1974 and alveolar_gas_1946, rearranged): lowest PB = 47 + (target / (a/A) + PaCO2 / R) /
+    # FiO2_max.
     pb = 47.0 + (50.0 / ratio + 40.0 / 0.8) / 0.3
     assert value(r, "max_altitude_pb") == pytest.approx(pb, abs=1e-3)
     assert value(r, "max_altitude") == pytest.approx(alt.altitude_at_pressure_isa(pb_mmhg=pb), abs=1e-3)
@@ -637,7 +642,7 @@ def test_every_number_output_has_a_step(calc, inputs):
 
 
 def test_contract_outputs_present():
-    # CONTRACT.md altitude outputs
+    # the contract's altitude outputs (docs/bridge.md)
     r = ok("altitude", FULL_ALTITUDE)
     for name in (
         "pb",
@@ -670,7 +675,7 @@ def test_profile_shapes_and_default_ceiling():
     out = r["outputs"]
     heights = out["altitude"]["value"]
     assert out["altitude"]["unit"] == "ft" and len(heights) == 61
-    # default ceiling 3,000 m (CONTRACT.md) from the origin (sea level)
+    # default ceiling 3,000 m (docs/bridge.md) from the origin (sea level)
     assert heights[0] == 0.0 and heights[-1] == pytest.approx(3000 / FT_M)
     for name in ("pao2_alveolar", "po2_predicted"):
         for curve in ("at_fio2", "at_fio2_equivalent"):

@@ -1,4 +1,4 @@
-"""Checks of the codebase itself (our version of a lint plugin, STYLE.md section 8).
+"""Checks of the codebase itself (our version of a lint plugin; the rules are in DEVELOPERS.md).
 
 - every worked case is used by at least one test;
 - every bibliography entry has a known check status;

@@ -33,7 +33,7 @@ def test_ox01_alveolar_gas_equation_simple_and_full():
 
 
 def test_full_form_at_fio2_one_is_pio2_minus_paco2():
-    # derived (REFERENCE.md 7.1): at FiO2 1.0 the full form is PIO2 - PaCO2: 713 - 40 = 673; simple 663
+    # derived (alveolar_gas_1946): at FiO2 1.0 the full form is PIO2 - PaCO2: 713 - 40 = 673; simple 663
     assert ox.alveolar_po2_full(fio2_fraction=1.0, paco2_mmhg=40.0) == pytest.approx(673.0)
     assert ox.alveolar_po2_simple(fio2_fraction=1.0, paco2_mmhg=40.0) == pytest.approx(663.0)
 
@@ -215,7 +215,7 @@ def test_three_curves_agree_over_the_clinical_range():
         assert gap < (0.01 if p >= 40 else 0.021), p
 
 
-# -- water vapour (Buck 1981 eq 3; REFERENCE.md conventions, from memory; coefficients verified) -------------
+# -- water vapour (buck1981 eq 3; docs/methods.md#water-vapour-pressure; coefficients verified) ------------
 @pytest.mark.parametrize(("t", "mmhg"), [(32, 35.7), (35, 42.2), (37, 47.1), (39, 52.5), (40, 55.4)])
 def test_water_vapour_pressure_buck(t, mmhg):
     assert ox.water_vapour_pressure_buck1981(temperature_c=t) == pytest.approx(mmhg, abs=0.05)

@@ -1,6 +1,6 @@
 """The machine-checkable contract: schema/bridge.schema.json and the check every bridge response gets.
 
-- the schema is a valid JSON Schema (draft 2020-12) and names what CONTRACT.md names;
+- the schema is a valid JSON Schema (draft 2020-12) and names what the contract requires (docs/bridge.md);
 - real responses of every calculation validate, in both pressure units, and deliberately wrong ones fail;
 - the session hook (tests/conftest.py) is registered, runs on ``handle`` and ``handle_obj``, and its
   AssertionError reaches the test;
@@ -27,7 +27,7 @@ SEEDS: dict[str, list[dict]] = json.loads(
 )
 AVAILABLE = bridge.available()
 
-#: the outputs CONTRACT.md names for each calculation
+#: the outputs the contract requires of each calculation (docs/bridge.md)
 CONTRACT_OUTPUTS = {
     "blood_gas": [
         "ph_status",
@@ -90,7 +90,7 @@ CONTRACT_OUTPUTS = {
     "convert": ["result"],
     "course": ["readings", "intervals", "response", "niv_response"],
 }
-#: the inputs CONTRACT.md names for each calculation
+#: the inputs the contract requires of each calculation (docs/bridge.md)
 CONTRACT_INPUTS = {
     "blood_gas": "ph pco2 hco3 po2 fio2 sample base_excess na k cl albumin lactate glucose urea bun "
     "phosphate measured_osmolality hb spo2 age temperature altitude pb baseline_pco2 hypercapnia_risk",

@@ -103,7 +103,8 @@ def test_on_a_threshold_probability_near_one_half():
     p = ask({"ph": 7.35, "pco2": q(8.0, "kPa")})["outputs"]["probabilities"]
     assert p["findings"]["niv_criteria_met"] == pytest.approx(0.5, abs=0.03)
     assert p["niv_criteria"]["met"] == p["findings"]["niv_criteria_met"]
-    # PaCO2 exactly 45 mmHg, the upper reference limit (REFERENCE.md section 12, common practice)
+    # PaCO2 exactly 45 mmHg, the upper reference limit (pco2_normal_range; which side the limit falls
+    # on is common practice)
     p = ask({"ph": 7.40, "pco2": q(45.0, "mmHg")})["outputs"]["probabilities"]
     assert p["findings"]["hypercapnic_without_risk_flag"] == pytest.approx(0.5, abs=0.03)
 

@@ -20,7 +20,7 @@ CASES = load_cases()
 
 def test_tc01_hypothermia_32():
     # rosenthal1948 (verified citation; coefficient form from memory), bradley1956 0.019 (instrument
-    # convention), severinghaus1979 eq 3 read as 0.243 (PO2/100)^3.88 (REFERENCE.md 13)
+    # convention), severinghaus1979 eq 3 read as 0.243 (PO2/100)^3.88 (docs/methods.md#temperature-correction)
     i = CASES["TC-01"]["inputs"]
     t = i["patient_temp_C"]
     close("TC-01", "ph_T", tc.ph_at_temperature_rosenthal(ph=i["ph_37"], temperature_c=t))
@@ -50,8 +50,9 @@ def test_tc02_fever_40():
 
 
 def test_trade_journal_factor_table_at_32():
-    # REFERENCE.md 9 (verified trade-journal table): at 32 degC pH +0.075, PCO2 x 0.815, PO2 x 0.70 for a
-    # normal sample; the equations agree within the stated tolerances (derived: +0.0735, x 0.804, x 0.73)
+    # A laboratory trade-journal table (verified; docs/methods.md#temperature-correction): at 32 degC pH
+    # +0.075, PCO2 x 0.815, PO2 x 0.70 for a normal sample; the equations agree within the stated tolerances
+    # (derived: +0.0735, x 0.804, x 0.73)
     assert tc.ph_at_temperature_rosenthal(ph=7.40, temperature_c=32) - 7.40 == pytest.approx(0.075, abs=0.002)
     assert tc.pco2_at_temperature(pco2_mmhg=40, temperature_c=32) / 40 == pytest.approx(0.815, abs=0.015)
     assert tc.po2_at_temperature_severinghaus(po2_mmhg=90, temperature_c=32) / 90 == pytest.approx(
@@ -60,8 +61,9 @@ def test_trade_journal_factor_table_at_32():
 
 
 def test_eq3_coefficient_reading():
-    # REFERENCE.md 9/13: the chosen reading gives 0.0597 ln/degC at PO2 100 (the other reading 0.0708);
-    # bradley1956 (verified) 0.0247 log10/degC x ln 10 = 0.057 at normal tensions
+    # severinghaus1979 eq 3 (docs/methods.md#temperature-correction): the chosen reading gives 0.0597 ln/degC
+    # at PO2 100 (the other reading 0.0708); bradley1956 (verified) 0.0247 log10/degC x ln 10 = 0.057 at
+    # normal tensions
     assert tc.severinghaus_po2_coefficient(po2_mmhg=100) == pytest.approx(0.0597, abs=0.0001)
     assert tc.severinghaus_po2_coefficient(po2_mmhg=100) == pytest.approx(0.0247 * math.log(10), abs=0.004)
 

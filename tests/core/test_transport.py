@@ -1,4 +1,6 @@
-"""tidewell.transport: cylinder contents, oxygen needed, minutes available (REFERENCE.md 11, cases CY-*).
+"""tidewell.transport: cylinder contents, oxygen needed, minutes available (cases CY-*).
+
+Methods and sources: docs/methods.md#cylinder-contents.
 
 Provenance words: *published* / *derived* (from the cited equation) / *common practice* / *from memory*.
 """
@@ -15,8 +17,8 @@ from tidewell import transport
 from tidewell.errors import InputError
 from tidewell.units import PSI_PA
 
-#: oxygen compressibility factor at 15 degC (CoolProp reference equation of state, computed for
-#: REFERENCE.md 11): 0.931 at 137-200 bar, 0.939 at 230 bar
+#: oxygen compressibility factor at 15 degC (CoolProp reference equation of state, coolprop2014):
+#: 0.931 at 137-200 bar, 0.939 at 230 bar
 Z_O2_200_BAR = 0.931
 Z_O2_230_BAR = 0.939
 
@@ -24,8 +26,8 @@ Z_O2_230_BAR = 0.939
 def test_cy01_free_gas_and_duration(cases):
     case = cases["CY-01"]
     i, e, tol = case["inputs"], case["expected"], case["tolerance"]
-    # Common practice (ideal gas WC x P / 1.01325; REFERENCE.md 11, CY-01): 1973.8 L, 131.59 min at 15 L/min,
-    # 98.69 min after a 25 % reserve.
+    # Common practice (ideal gas WC x P / 1.01325; cylinder_ideal_gas, CY-01): 1973.8 L, 131.59 min at 15
+    # L/min, 98.69 min after a 25 % reserve.
     free = transport.free_gas_litres(
         water_capacity_l=i["water_capacity_L"], pressure_bar=i["pressure_bar_gauge"]
     )
@@ -35,7 +37,7 @@ def test_cy01_free_gas_and_duration(cases):
     usable = transport.usable_litres(free_gas_l=free, reserve_fraction=i["reserve_fraction"])
     after = transport.minutes_available(litres=usable, flow_l_min=i["flow_L_min"])
     assert after == pytest.approx(e["duration_after_reserve_min"], abs=tol["duration_after_reserve_min"])
-    # Derived (CoolProp 8.0, Z 0.931 at 200 bar, 15 degC; REFERENCE.md 11): the real content, 2118.5 L, is
+    # Derived (CoolProp 8.0, Z 0.931 at 200 bar, 15 degC; coolprop2014): the real content, 2118.5 L, is
     # about 7 % more than the ideal estimate, so the ideal estimate is conservative for oxygen.
     real = free / Z_O2_200_BAR
     assert real == pytest.approx(e["free_gas_real_o2_15C_L"], abs=tol["free_gas_real_o2_15C_L"])
@@ -52,7 +54,8 @@ def test_cy02_required_with_safety_factor(cases):
         duration_min=i["transfer_time_min"],
         safety_factor=i["safety_factor"],
     )
-    # Common practice (REFERENCE.md 11, CY-02): 454.0 L, 113.5 min at 4 L/min, 60 min x 1.5 -> 360 L, enough.
+    # Common practice (cylinder_ideal_gas, transport_reserve, CY-02): 454.0 L, 113.5 min at 4 L/min, 60 min x
+    # 1.5 -> 360 L, enough.
     assert plan.available_litres == pytest.approx(e["free_gas_ideal_L"], abs=tol["free_gas_ideal_L"])
     assert plan.minutes_available == pytest.approx(e["duration_ideal_min"], abs=tol["duration_ideal_min"])
     assert plan.required_litres == pytest.approx(
@@ -65,8 +68,8 @@ def test_cy02_required_with_safety_factor(cases):
 
 
 def test_us_e_cylinder_close_to_nominal():
-    # REFERENCE.md 11: a US E cylinder, 4.7 L water capacity at about 137 bar (2000 psi): ideal 635 L, real
-    # about 683 L (CoolProp), close to the nominal ~680 L (nominal contents from memory).
+    # coolprop2014 (from memory): a US E cylinder, 4.7 L water capacity at about 137 bar (2000 psi): ideal 635
+    # L, real about 683 L (CoolProp), close to the nominal ~680 L (nominal contents from memory).
     ideal = transport.free_gas_litres(water_capacity_l=4.7, pressure_bar=137.0)
     assert ideal == pytest.approx(635, abs=1.0)
     assert ideal / Z_O2_200_BAR == pytest.approx(683, abs=2.0)
@@ -74,7 +77,7 @@ def test_us_e_cylinder_close_to_nominal():
 
 
 def test_default_margin_is_the_stated_common_practice():
-    # Common practice (REFERENCE.md 11: "carry 1.5-2 x the oxygen calculated"): default safety factor 1.5,
+    # Common practice (transport_reserve: "carry 1.5-2 x the oxygen calculated"): default safety factor 1.5,
     # reserve fraction 0, residual pressure 0.
     assert transport.DEFAULT_SAFETY_FACTOR == 1.5
     assert transport.DEFAULT_RESERVE_FRACTION == 0.0

@@ -25,7 +25,7 @@ def test_defined_factors_are_exact():
 def test_uc01_pressure_temperature_length(cases):
     case = cases["UC-01"]
     inp, exp, tol = case["inputs"], case["expected"], case["tolerance"]
-    # Worked example UC-01 (REFERENCE.md section 1), provenance: verified unit definitions.
+    # Worked example UC-01 (bipm2019, nist811), provenance: verified unit definitions.
     assert units.convert(inp["p1_kPa"], "kPa", "mmHg") == pytest.approx(exp["p1_mmHg"], abs=tol["p1_mmHg"])
     assert units.convert(inp["p2_mmHg"], "mmHg", "kPa") == pytest.approx(exp["p2_kPa"], abs=tol["p2_kPa"])
     assert units.convert(inp["temp_C"], "degC", "degF") == pytest.approx(exp["temp_F_from_C"], abs=1e-9)
@@ -37,12 +37,12 @@ def test_uc01_pressure_temperature_length(cases):
 
 
 def test_more_pressure_examples():
-    # Worked examples, REFERENCE.md section 1 (derived from the exact mmHg): 6.0 kPa = 45.0037 mmHg,
+    # Worked examples (bipm2019; derived from the exact mmHg): 6.0 kPa = 45.0037 mmHg,
     # 8.0 kPa = 60.0049 mmHg.
     assert units.convert(6.0, "kPa", "mmHg") == pytest.approx(45.0037, abs=1e-4)
     assert units.convert(8.0, "kPa", "mmHg") == pytest.approx(60.0049, abs=1e-4)
     # Published: standard atmosphere 101.325 kPa = 760 mmHg exactly by the torr definition; the conventional
-    # mmHg differs from the torr by 1.4e-7 (REFERENCE.md section 1).
+    # mmHg differs from the torr by 1.4e-7 (bipm2019).
     assert units.convert(101.325, "kPa", "mmHg") == pytest.approx(760.0, rel=2e-7)
     # Published: 1 bar = 100 kPa; 1 hPa = 0.1 kPa (SI Brochure).
     assert units.convert(1, "bar", "kPa") == pytest.approx(100.0)
@@ -77,7 +77,7 @@ def test_uc02_chemistry(cases):
 
 
 def test_bedside_factors_agree_with_molar_masses():
-    # Common practice bedside factors (REFERENCE.md section 1): glucose /18, BUN x 0.357, phosphate x 0.3229.
+    # Common practice bedside factors (iupac_masses): glucose /18, BUN x 0.357, phosphate x 0.3229.
     assert units.convert(18.0, "mg/dL", "mmol/L", substance="glucose") == pytest.approx(1.0, rel=1e-3)
     assert units.convert(1.0, "mg/dL", "mmol/L", substance="bun") == pytest.approx(0.357, rel=1e-3)
     assert units.convert(1.0, "mg/dL", "mmol/L", substance="phosphate") == pytest.approx(0.3229, rel=1e-3)

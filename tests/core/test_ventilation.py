@@ -25,7 +25,7 @@ K_BTPS = 760.0 * 310.15 / 273.15 / 1000.0
 CASES = load_cases()
 
 
-# -- VN-01: alveolar_ventilation (0.863 derived from STPD -> BTPS, REFERENCE.md 8) -----------------------
+# -- VN-01: alveolar_ventilation (0.863 derived from STPD -> BTPS; alveolar_ventilation) -------------------
 def test_vn01_ve_va_and_predicted_paco2():
     close("VN-01", "ve_L_min", vn.minute_ventilation(vt_ml=500, rr_per_min=12))  # derived
     va = vn.alveolar_ventilation(vt_ml=500, vd_ml=150, rr_per_min=12)
@@ -101,9 +101,10 @@ def test_vn04_predicted_body_weight_and_tidal_volumes():
 
 
 def test_pbw_inch_form_agrees():
-    # ardsnet2000 inch form 50 + 2.3 (in - 60). REFERENCE.md 13 says the forms differ by <= 0.1 kg; derived
-    # here: they differ by (0.91 - 2.3 / 2.54) x (cm - 152.4) = 0.0045 kg per cm, so <= 0.1 kg up to about
-    # 174 cm and 0.21 kg at 200 cm (the cm form, the recommended default, is used).
+    # ardsnet2000 inch form 50 + 2.3 (in - 60). docs/methods.md#where-sources-disagree-the-defaults says the
+    # forms differ by <= 0.1 kg; derived here: they differ by (0.91 - 2.3 / 2.54) x (cm - 152.4) = 0.0045 kg
+    # per cm, so <= 0.1 kg up to about 174 cm and 0.21 kg at 200 cm (the cm form, the recommended default, is
+    # used).
     for cm in range(150, 201, 5):
         inch = cm / 2.54
         diff = vn.predicted_body_weight_ardsnet(height_cm=cm, sex="male") - (50 + 2.3 * (inch - 60))

@@ -1,6 +1,6 @@
 // The page's side of the engine: owns the worker, matches answers to requests by id, runs the start-up
 // watchdog, supervises the running engine, and defines window.tidewell = { ready, compute(request),
-// version } (CONTRACT.md). No DOM here: the page listens to the "state" events (main.js).
+// version } (docs/bridge.md). No DOM here: the page listens to the "state" events (main.js).
 //
 // Performance marks: tidewell:shell-ready (markShellReady(), called by main.js once the form works),
 // tidewell:engine-ready (the worker can answer), tidewell:first-result (the first successful answer).

@@ -142,32 +142,41 @@ async function fetchChecked(name, sha256) {
   return buffer;
 }
 
-// The snapshot in the offline copy: a promise of its checked bytes (rejected when they are not this
-// build's), or a reason why there is none. Looking it up is quick; reading and checking 21 MB is not, so
-// that runs while loadPyodide loads the runtime (it awaits the promise only once it needs the bytes).
+// The snapshot in the offline copy: promises of its bytes and of their sha256 check (rejected when they
+// are not this build's), or a reason why there is none. Looking it up is quick; reading 21 MB is not, so
+// that runs while loadPyodide loads the runtime (it awaits the bytes only once it needs them). The check
+// runs beside the restore rather than before it: WebCrypto copies the bytes when the digest is asked
+// for and hashes them off this thread, and start() awaits the check before the engine answers anything
+// (docs/performance.md: on a slowed worker thread the check in line cost ~120 ms of the start).
 async function storedSnapshot() {
   if (!SNAPSHOT) return { reason: "this build has no snapshot" };
   if (!self.caches) return { reason: "no offline copy here" };
   const stored = await caches.match(new URL(SNAPSHOT, INDEX_URL).href);
   if (!stored) return { reason: "not in the offline copy yet (stored after the first start)" };
-  const checked = (async () => {
-    const buffer = await stored.arrayBuffer();
+  const read = stored.arrayBuffer().then((buffer) => {
     snapshotReadAt[0] = performance.now();
+    return buffer;
+  });
+  // registered first, so the digest has its copy before loadPyodide sees the bytes
+  const checked = read.then(async (buffer) => {
     const digest = hex(await crypto.subtle.digest("SHA-256", buffer));
     if (digest !== SNAPSHOT_SHA256) {
       throw new Error(`the stored copy is not this build's (sha256 ${digest.slice(0, 16)}...)`);
     }
     snapshotReadAt[1] = performance.now();
-    return new Uint8Array(buffer);
-  })();
-  checked.catch(() => {}); // reported by loadPyodide, which awaits it
-  return { checked };
+  });
+  const bytes = read.then((buffer) => new Uint8Array(buffer));
+  checked.catch(() => {}); // reported where start() awaits it
+  bytes.catch(() => {}); // reported by loadPyodide, which awaits it
+  return { bytes, checked };
 }
 
 const lang = () => `${((self.navigator && navigator.languages && navigator.languages[0]) || "C").replace("-", "_")}.UTF-8`;
 
-async function startFromSnapshot(checked, archive) {
-  const py = await loadPyodide({ ...OPTIONS, _loadSnapshot: checked });
+async function startFromSnapshot(stored, archive) {
+  // a failed check ends the wait at once, whatever the restore of damaged bytes would do
+  const refused = stored.checked.then(() => new Promise(() => {}));
+  const py = await Promise.race([loadPyodide({ ...OPTIONS, _loadSnapshot: stored.bytes }), refused]);
   py.FS.writeFile(ZIP_PATH, new Uint8Array(await archive));
   if (py.globals.get("_tidewell_label") !== BUILD_LABEL) {
     throw new Error("it was made for another build");
@@ -178,6 +187,7 @@ async function startFromSnapshot(checked, archive) {
   const names = m.HEAPU32.subarray(m._tzname >>> 2, (m._tzname >>> 2) + 2);
   m.__tzset_js(m._timezone, m._daylight, names[0], names[1]);
   py.runPython(RESTORED)(lang());
+  await stored.checked; // nothing is answered from bytes that are not this build's
   return py;
 }
 
@@ -241,11 +251,11 @@ async function start(config) {
   if (method === "zip" && config.snapshot !== false) {
     try {
       const stored = await storedSnapshot();
-      if (stored.checked) {
+      if (stored.bytes) {
         // the page's watchdog knows: if this wedges the worker, the next attempt starts the normal way
         post({ type: "progress", text: "Starting the engine from its stored image", snapshot: true });
         const timeout = Number(config.snapshotTimeout) > 0 ? Number(config.snapshotTimeout) : SNAPSHOT_TIMEOUT_MS;
-        pyodide = await withTimeout(startFromSnapshot(stored.checked, archive), timeout, "the start from it");
+        pyodide = await withTimeout(startFromSnapshot(stored, archive), timeout, "the start from it");
         startInfo = { start: "snapshot", note: "" };
       } else {
         startInfo.note = `snapshot not used: ${stored.reason}`;
