@@ -1,18 +1,18 @@
 """The ``uncertainty`` calculation: how sure a blood-gas reading is, given the measurement error of inputs.
 
 =====================  ===================================================================================
-``uncertainty``        bridge calculation (CONTRACT.md ``uncertainty``): a blood_gas ``sample``, per-input
+``uncertainty``        bridge calculation (docs/bridge.md ``uncertainty``): a blood_gas ``sample``, per-input
                        ``errors``, ``draws`` and ``seed`` -> the probability of each disorder code, each
                        chronicity and each finding, and 95 % intervals of the derived numbers
 ``DEFAULT_ERRORS``     the default measurement error (1 SD or CV) of each measured input, with its source
-``draw_inputs``        Monte Carlo draws of one read sample: arrays for :func:`tidewell.interpret.decide`
+``draw_inputs``        Monte Carlo draws of one read sample: arrays for :func:`calculations.blood_gas.decide`
 ``simulate``           a read sample and its errors -> (the point Decision, the Decision of all draws)
 =====================  ===================================================================================
 
 Method (JCGM 101:2008, the Monte Carlo supplement to the GUM): each measured input is drawn ``draws`` times
 from a normal distribution centred on the value entered, with its standard deviation (given as an SD in the
 input's unit, or as a CV times the value); each draw is limited to the range the blood_gas reader accepts.
-Every draw is interpreted by :func:`tidewell.interpret.decide`, the very function the blood_gas report is
+Every draw is interpreted by :func:`calculations.blood_gas.decide`, the very function the blood_gas report is
 written from, so a probability here is the share of draws in which the report would say the same. The 95 %
 interval of a number is the 2.5th to 97.5th percentile of its draws. The draws are seeded: the same request
 gives the same answer, and each input has its own stream (adding an error for one input does not change the
@@ -34,12 +34,13 @@ import math
 
 import numpy as np
 
-from . import acidbase as ab
-from . import interpret, units
-from .arrays import given
-from .errors import InputError, InputErrors
-from .fields import Inputs
-from .report import Report
+from .. import units
+from ..arrays import given
+from ..errors import InputError, InputErrors
+from ..fields import Inputs
+from ..formulas import acidbase as ab
+from ..report import Report
+from . import blood_gas as interpret
 
 #: input key -> ("sd" or "cv", value; SD in the reader's internal unit) for the measured inputs with a
 #: default (REFERENCES["analyser_imprecision"], common practice)
@@ -332,7 +333,7 @@ def _reading_key(d, n: int | None = None):
 
 
 def uncertainty(inputs: Inputs, report: Report) -> None:
-    """How sure is a blood-gas reading (CONTRACT.md ``uncertainty``); see the module docstring."""
+    """How sure is a blood-gas reading (docs/bridge.md ``uncertainty``); see the module docstring."""
     problems: list[InputError] = []
     sample_raw = inputs.mapping("sample", label="sample", required=True)
     errors_raw = inputs.mapping("errors", label="errors")

@@ -1,7 +1,7 @@
 """The ``blood_gas`` calculation: a whole, sourced interpretation of one blood-gas sample.
 
 ==================  =====================================================================================
-``blood_gas``       bridge calculation (CONTRACT.md ``blood_gas``): inputs -> outputs, findings, cautions,
+``blood_gas``       bridge calculation (docs/bridge.md ``blood_gas``): inputs -> outputs, findings, cautions,
                     steps and a plain-language summary
 ``decide``          every decision of the interpretation (disorders, chronicity, consistency, findings, key
                     numbers) for one sample or for numpy arrays of samples: the one implementation the
@@ -14,13 +14,13 @@
 ==================  =====================================================================================
 
 Structure: ``_Sample`` reads the inputs (``FIELDS`` and the cross-field checks, written once for floats and
-arrays); :func:`decide` takes every decision with the array-polymorphic rules of :mod:`tidewell.acidbase` and
+arrays); :func:`decide` takes every decision with the array-polymorphic rules of :mod:`formulas.acidbase` and
 the helpers of :mod:`tidewell.arrays` (no numpy is imported here; with floats everything runs on ``math``);
 the private narrative functions then write the report (outputs, steps, findings, cautions, summary) from the
 scalar Decision. They decide nothing that the batch or the uncertainty calculation reports (only wording: for
 example whether the pH-stat view reads "near normal").
 
-What it does, in order (REFERENCE.md 4.3, extended):
+What it does, in order (docs/clinical-rules.md gives the rules in words):
 
 1. Reads and checks every input (plausibility ranges; a number that fits only in another unit is refused as
    ``implausible`` with the unit probably meant; values that are possible but look like a unit slip are kept
@@ -37,14 +37,14 @@ What it does, in order (REFERENCE.md 4.3, extended):
    is called primary; at a normal pH the side of 7.40 chooses (common practice). With a pH outside normal but
    PCO2 and HCO3 inside their ranges the same contribution rule names a tentative primary (finding
    ``borderline_values``).
-4. Compensation (Boston rules, REFERENCE.md 4.1 defaults): Winters' formula; metabolic alkalosis 0.7 per
+4. Compensation (Boston rules: albert1967, narins1980): Winters' formula; metabolic alkalosis 0.7 per
    mmol/L +/- 5; respiratory acidosis 1 (acute) and 3.5 (chronic) per 10 mmHg, alkalosis 2 and 4, with the
    alternative published slopes shown as the band of ``expected_hco3``. A second, metabolic, disorder is named
    only when the measured HCO3 lies beyond the acute-to-chronic range by more than max(2 mmol/L, 0.2 x the
    acute-chronic span) -- the 0.2 is the published fraction-acute band (f > 1.2 / f < -0.2), the 2 mmol/L
    floor keeps analyser scatter from naming a disorder when PaCO2 is only just abnormal (Tidewell convention).
 5. Fraction acute by the HCO3 rules (used for the call) and by the pH rules (shown; they drift above a rise of
-   about 30 mmHg, REFERENCE.md 4.4). With ``baseline_pco2`` the chronicity comes from the baseline instead. A
+   about 30 mmHg, berend2014). With ``baseline_pco2`` the chronicity comes from the baseline instead. A
    respiratory disorder always carries a chronicity word (the contract keeps null for metabolic ones); when it
    cannot be judged (PaCO2 within 5 mmHg of 40, or a concurrent metabolic disorder moving the HCO3) the word
    is what the HCO3 rules alone say, ``fraction_acute`` is null and a finding says so; a respiratory disorder
@@ -73,7 +73,7 @@ What it does, in order (REFERENCE.md 4.3, extended):
 The P/F ratio (PaO2 / FiO2) and a/A ratio (PaO2 / PAO2, left out when PAO2 is not positive) are computed in
 :func:`decide`, so that this module calls only the oxygenation functions that are settled
 (``alveolar_po2_simple``, ``alveolar_po2_full``, ``aa_gradient_upper_by_age``). Those are scalar, validated
-functions of tidewell.oxygenation: on arrays :func:`tidewell.arrays.each` calls them once per distinct set of
+functions of formulas.oxygenation: on arrays :func:`tidewell.arrays.each` calls them once per distinct set of
 arguments.
 
 The consciousness threshold (clinical change with the batch work): without a known baseline, chronic retention
@@ -91,11 +91,12 @@ import math
 from types import SimpleNamespace
 from typing import NamedTuple
 
-from . import acidbase as ab
-from . import altitude, oxygenation, temperature, units
-from .arrays import NAN, clamp, div, each, given, log10, maximum, minimum, none_if_nan, not_, where
-from .fields import Inputs
-from .report import Report, pressure_text
+from ... import units
+from ...arrays import NAN, clamp, div, each, given, log10, maximum, minimum, none_if_nan, not_, where
+from ...fields import Inputs
+from ...formulas import acidbase as ab
+from ...formulas import altitude, oxygenation, temperature
+from ...report import Report, pressure_text
 
 MET_ACID = "metabolic_acidosis"
 MET_ALK = "metabolic_alkalosis"
@@ -109,7 +110,7 @@ NAMES = {
 }
 SITES = ("arterial", "venous", "capillary")
 
-# reference values (REFERENCE.md conventions and section 12; common practice)
+# reference values (acid_base_normal_ranges, ph_severity; common practice)
 PH_LOW, PH_HIGH = 7.35, 7.45
 PCO2_LOW, PCO2_HIGH = 35.0, 45.0
 HCO3_LOW, HCO3_HIGH = 22.0, 26.0
@@ -837,7 +838,7 @@ def decide(x) -> Decision:
     f["value_unusual"] = x.unusual
     f["pb_used_not_altitude"] = x.pb_and_altitude
 
-    # -- HCO3, consistency, base excess (REFERENCE.md 2-3) ---------------------------------------------------
+    # -- HCO3, consistency, base excess (henderson1908, nccls1994) -------------------------------------------
     hco3_given = given(x.hco3)
     d.hco3_given = hco3_given
     d.hco3_computed = ab._hco3_hh(ph, p)
@@ -868,7 +869,7 @@ def decide(x) -> Decision:
     d.ph_status = where(ph < PH_LOW, "acidaemia", where(ph > PH_HIGH, "alkalaemia", "normal"))
     d.pco2_status = where(p > PCO2_HIGH, "hypercapnia", where(p < PCO2_LOW, "hypocapnia", "normal"))
 
-    # -- primary process and compensation (REFERENCE.md 4.1, 4.3) --------------------------------------------
+    # -- primary process and compensation (albert1967, narins1980) -------------------------------------------
     primary0, tentative = _primary_process(ph, p, h)
     d.primary_classified, d.tentative = primary0, tentative
     f["borderline_values"] = tentative & (primary0 != NONE)
@@ -949,7 +950,7 @@ def decide(x) -> Decision:
     has_ra = (primary0 == RESP_ACID) | above
     has_rk = (primary0 == RESP_ALK) | below
 
-    # -- gaps (REFERENCE.md 5); named disorders only on consistent data --------------------------------------
+    # -- gaps (kraut2007, brandis); named disorders only on consistent data ----------------------------------
     na, cl = x.na, x.cl
     d.has_gap = has_gap = given(na) & given(cl)
     d.anion_gap = ag = ab._anion_gap(na, cl, d.hco3_out)
@@ -1436,7 +1437,7 @@ def findings(d: Decision) -> list[str]:
 
 
 def blood_gas(inputs: Inputs, report: Report) -> None:
-    """Interpret one blood-gas sample (CONTRACT.md ``blood_gas``); see the module docstring for the rules."""
+    """Interpret one blood-gas sample (docs/bridge.md); see the module docstring for the rules."""
     s = _Sample(inputs, pressure_unit=report.pressure_unit)
     w = _Work(s, report, decide(s.values()))
     _input_findings(w)

@@ -10,7 +10,7 @@
 ``temperature_correction``     pH, PCO2, PO2 between 37 degC and the patient's temperature
 =============================  ====================================================================
 
-Each function is ``f(inputs, report)`` (see CORE_API.md): it reads every input with the ``Inputs``
+Each function is ``f(inputs, report)`` (DEVELOPERS.md): it reads every input with the ``Inputs``
 accessors, calls ``inputs.finish()`` once, computes with the domain modules (oxygenation,
 ventilation, temperature, altitude) and fills the report. Blood-gas values (pH, PCO2, PO2) are
 always the analyser's values at 37 degC unless a calculation says otherwise; ``temperature`` is
@@ -21,13 +21,13 @@ from __future__ import annotations
 
 import math
 
-from . import altitude as alt
-from . import oxygenation as ox
-from . import temperature as tc
-from . import ventilation as vn
-from .errors import InputError, InputErrors, is_real
-from .fields import _ABSENT_REPR, Inputs
-from .report import Report
+from ..errors import InputError, InputErrors, is_real
+from ..fields import _ABSENT_REPR, Inputs
+from ..formulas import altitude as alt
+from ..formulas import oxygenation as ox
+from ..formulas import temperature as tc
+from ..formulas import ventilation as vn
+from ..report import Report
 
 _LOCAL = "Use with clinical judgement and local protocols; these are estimates, not orders."
 _PCO2_WORD = "is not survivable"
@@ -42,7 +42,7 @@ def _fail_now(field: str, value, problem: str, hint: str = "", code: str = "inco
 PCO2_LOW_MMHG, PCO2_HIGH_MMHG = 8.0, 250.0
 
 
-#: accepted measured VCO2 [mL/min] (REFERENCE.md 8 valid input)
+#: accepted measured VCO2 [mL/min] (resting_vco2; common practice)
 VCO2_LOW_ML_MIN, VCO2_HIGH_ML_MIN = 50.0, 1000.0
 
 
@@ -830,7 +830,7 @@ def _read_ie(inputs: Inputs) -> tuple[float, float] | None:
 def ventilation(inputs: Inputs, report: Report) -> None:
     """Ventilation, dead space, CO2 output, settings for a target PaCO2 and the causes of hypercapnia.
 
-    inputs (CONTRACT.md): ``rr``, ``vt``, ``pco2``, ``vd?``, ``weight?``, ``height?`` and ``sex?``,
+    inputs (docs/bridge.md): ``rr``, ``vt``, ``pco2``, ``vd?``, ``weight?``, ``height?`` and ``sex?``,
     ``vco2?`` (measured), ``temperature?``, ``etco2?`` (paired with ``pco2``), ``peco2?`` (mixed
     expired), ``target_pco2?``, ``etco2_now?``; extras: ``ie_ratio?`` ("1:2" or E for I = 1),
     ``obstructive?`` (COPD/asthma: gas-trapping cautions), ``expiratory_time_constant?`` (s).
@@ -847,7 +847,7 @@ def ventilation(inputs: Inputs, report: Report) -> None:
     - to_target fixed-VD forms use the entered ``vd``, else VD = VD/VT x VT.
     - Gas trapping: Te < 3 expiratory time constants; the constant is the given one, else an assumed
       0.5 s (1.0 s with ``obstructive``); I:E 1:2 assumed when not given.
-    - mechanisms: see :func:`tidewell.ventilation.co2_mechanisms`; present when PaCO2 > 45 mmHg.
+    - mechanisms: see :func:`tidewell.formulas.ventilation.co2_mechanisms`; present when PaCO2 > 45 mmHg.
     """
     rr = inputs.number("rr", low=vn.RR_RANGE[0], high=vn.RR_RANGE[1], label="respiratory rate", required=True)
     vt = inputs.quantity(

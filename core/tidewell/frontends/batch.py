@@ -6,7 +6,7 @@
 ``Reader``                  a CSV stream -> its ``Layout`` (header, units, dialect) and one ``Table`` per
                             chunk of :data:`CHUNK` rows
 ``read_table``              CSV text -> one ``Table``: input columns (named by the contract's input keys or
-                            the names of :mod:`tidewell.cells`, units in a ``pco2[kPa]`` or ``pCO2 (kPa)``
+                            the names of :mod:`frontends.cells`, units in a ``pco2[kPa]`` or ``pCO2 (kPa)``
                             header, a units row, or in the cell: ``9.3 kPa``) and the other columns
 ``interpret_table``         every row of a ``Table`` -> ``Audit`` (outputs, findings, errors, notes per row)
 ``row_inputs``              one row as the ``inputs`` of a blood_gas request (what the bridge would be sent)
@@ -16,15 +16,15 @@
 ==========================  ==============================================================================
 
 One implementation of each rule: a row is read with the blood_gas reader's own field table
-(:data:`tidewell.interpret.FIELDS`: units, ranges, defaults) and its cross-field checks, and interpreted by
-:func:`tidewell.interpret.decide`, the function the scalar report is written from. The batch path only runs
+(:data:`.blood_gas.FIELDS`: units, ranges, defaults) and its cross-field checks, and interpreted by
+:func:`.blood_gas.decide`, the function the scalar report is written from. The batch path only runs
 them on arrays. Rows the array reader cannot pass as plainly valid (any doubt at all: a bad cell, a value
 out of range, a unit that needs a guess, a cross-field conflict) are read by the scalar reader itself, which
 either accepts them or gives the bridge's own error messages; a row's errors go in its ``error`` column and
 the batch goes on. tests/core/test_batch.py checks on thousands of generated rows that every row equals the
 scalar bridge's answer for the same inputs.
 
-Cells (:mod:`tidewell.cells`): empty, ``NA``, ``N/A``, ``null``, ``none``, ``nan`` and ``-`` mean "not given";
+Cells (:mod:`.cells`): empty, ``NA``, ``N/A``, ``null``, ``none``, ``nan`` and ``-`` mean "not given";
 a decimal comma is read in a file not separated by commas. Units are matched ignoring case (``kpa`` is kPa;
 ``C`` and ``°C`` are degC). ``hypercapnia_risk`` is true/false, yes/no, y/n or 1/0. FiO2 and SpO2 may be
 written ``28%``. A site not given is read as :data:`SITE_NOT_GIVEN`; an optional cell that cannot be read is
@@ -51,8 +51,11 @@ from types import SimpleNamespace
 
 import numpy as np
 
-from . import interpret, units
-from .arrays import each
+from .. import units
+from ..arrays import each
+from ..calculations import blood_gas as interpret
+from ..errors import InputErrors
+from ..fields import Inputs
 from .cells import (
     ABSENT,
     BAD,
@@ -68,8 +71,6 @@ from .cells import (
     typed_value,
 )
 from .cells import censored as censored_cell
-from .errors import InputErrors
-from .fields import Inputs
 
 FIELDS = {f.key: f for f in interpret.FIELDS}
 #: rows interpreted at a time (the progress bar moves per chunk)
@@ -607,7 +608,7 @@ SITE_NOTE = f"site not given: read as {SITE_NOT_GIVEN} (no oxygenation outputs, 
 
 
 def choice_word(key: str, text: str) -> str:
-    """The word a choice cell gives (a sample site through :func:`tidewell.cells.site_word`)."""
+    """The word a choice cell gives (a sample site through :func:`tidewell.frontends.cells.site_word`)."""
     return site_word(text) if key == "sample" else text.strip().casefold()
 
 
@@ -1670,7 +1671,7 @@ def run(
     ``pressure_unit``: None follows the input (the unit of the PCO2 column, else of most of its cells in the
     first chunk; mmHg when there is none). ``progress``: None shows the bar only when stderr is a terminal;
     True always; False never. ``episodes``: a path; each episode (an episode and a time column) is read as a
-    course and written there, one row each (:mod:`tidewell.episodes`), and its summary follows the batch's.
+    course and written there, one row each (:mod:`frontends.episodes`), and its summary follows the batch's.
 
     Raises
     ------
@@ -1695,7 +1696,7 @@ def run(
             from . import episodes as episode_file
 
             try:
-                collector = episode_file.Collector(layout.header, SITE_NOT_GIVEN)
+                collector = episode_file.Collector(layout.header, SITE_NOT_GIVEN, row_inputs)
             except episode_file.MissingColumns as exc:
                 raise TableError(str(exc)) from None
             stack.callback(collector.close)

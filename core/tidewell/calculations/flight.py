@@ -10,7 +10,7 @@
                       sufficient or not, cylinders needed
 ====================  ==========================================================================
 
-Inputs beyond CONTRACT.md (all optional; the glossary docs/glossary/flight.md lists every name):
+Inputs beyond docs/bridge.md (all optional; the glossary docs/glossary/flight.md lists every name):
 
 - ``altitude`` / ``altitude_profile``: ``pb`` (measured cabin or destination PB: overrides the ISA
   pressure of ``altitude``; either one is enough), ``rq`` (0.8), ``alveolar_equation`` (``simple``
@@ -46,13 +46,14 @@ import difflib
 import math
 from dataclasses import dataclass
 
-from . import altitude as alt
-from . import transport, units
-from .errors import is_real
-from .fields import Inputs
-from .oxygenation import alveolar_po2_full, alveolar_po2_simple, inspired_po2
-from .report import Report
-from .units import FT_M
+from .. import units
+from ..errors import is_real
+from ..fields import Inputs
+from ..formulas import altitude as alt
+from ..formulas import transport
+from ..formulas.oxygenation import alveolar_po2_full, alveolar_po2_simple, inspired_po2
+from ..report import Report
+from ..units import FT_M
 
 ALTITUDE_UNITS = ("m", "ft", "km")
 PB_UNITS = ("mmHg", "kPa", "hPa")
@@ -65,7 +66,7 @@ DURATION_UNITS = ("min", "h")
 DEFAULT_PCO2_MMHG = 40.0
 #: in-flight PaO2 below which BTS 2011 advises in-flight oxygen (from memory): 6.6 kPa [mmHg]
 INFLIGHT_PO2_THRESHOLD_MMHG = units.convert(6.6, "kPa", "mmHg")
-#: default top of the altitude profile [m] (CONTRACT.md)
+#: default top of the altitude profile [m] (docs/bridge.md)
 DEFAULT_CEILING_M = 3000.0
 #: default number of points of the altitude profile
 DEFAULT_POINTS = 61
@@ -710,7 +711,7 @@ def _pressure_steps(report: Report, f: _Flight) -> None:
 
 
 def altitude(inputs: Inputs, report: Report) -> None:
-    """The ``altitude`` calculation (CONTRACT.md): what a cabin or destination altitude does to this patient.
+    """The ``altitude`` calculation (docs/bridge.md): what a cabin or destination altitude does to a patient.
 
     Inputs: ``altitude`` (m/ft/km) or ``pb``, ``fio2``, ``pco2?``, ``po2?``, ``origin_altitude?`` or
     ``origin_pb?``, ``target_po2?``, ``fio2_max?`` (1.0), ``trapped_gas_volume?``, ``rq?`` (0.8),
@@ -1028,7 +1029,7 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
     fio2_equivalent" uses ``fio2_equivalent`` for the cabin altitude, limited to 0.21-``fio2_max``
     (``fio2_profile`` says which FiO2 each curve used).
     """
-    import numpy as np  # only here: ``import tidewell.flight`` must stay numpy-free
+    import numpy as np  # only here: ``import tidewell.calculations.flight`` must stay numpy-free
 
     f = _read_flight(inputs, report, profile=True)
     ph = _physiology(f)
@@ -1184,7 +1185,7 @@ def altitude_profile(inputs: Inputs, report: Report) -> None:
 
 
 def oxygen_supply(inputs: Inputs, report: Report) -> None:
-    """The ``oxygen_supply`` calculation (CONTRACT.md): is the oxygen on board enough, with a margin?
+    """The ``oxygen_supply`` calculation (docs/bridge.md): is the oxygen on board enough, with a margin?
 
     Inputs: ``cylinder_water_capacity`` (L), ``cylinder_pressure`` (bar/psi/kPa), ``cylinders?`` (1),
     ``flow`` (L/min) *or* ``minute_ventilation`` + ``fio2`` (+ ``device_allowance?``, 2 L/min),
