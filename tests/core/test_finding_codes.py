@@ -27,7 +27,7 @@ CORE = HERE.parents[1] / "core" / "tidewell"
 TABLE: dict[str, dict] = json.loads((HERE / "finding_requests.json").read_text(encoding="utf-8"))
 
 #: f-string codes and what their placeholder takes: the Berlin bands a finding names (berlin2012; the band
-#: above the ARDS range has no finding, breathing.py)
+#: above the ARDS range has no finding, calculations/alveolar_gas.py)
 EXPANSIONS = {"pf_band_{band}": ("mild", "moderate", "severe")}
 #: codes every answer of a calculation carries
 ALWAYS = {"spo2_target": "blood_gas", "alpha_stat_ph_stat": "temperature_correction"}

@@ -751,8 +751,8 @@ def test_profile_below_cabin_altitude_is_said():
 def test_import_flight_is_numpy_free_and_profile_loads_numpy():
     code = "\n".join(
         [
-            "import sys, tidewell.calculations.flight, tidewell.formulas.altitude, "
-            "tidewell.formulas.transport",
+            "import sys, tidewell.calculations.altitude, tidewell.calculations.altitude_profile, "
+            "tidewell.calculations.oxygen_supply, tidewell.formulas.altitude, tidewell.formulas.transport",
             "print('numpy' in sys.modules)",
             "from tidewell.bridge import handle_obj",
             f"handle_obj({{'calc': 'altitude', 'inputs': {ALT_BASE!r}}})",

@@ -34,8 +34,14 @@ DOMAIN_MODULES = [
 CALC_MODULES = [
     "calculations.convert",
     "calculations.blood_gas",
-    "calculations.breathing",
-    "calculations.flight",
+    "calculations.alveolar_gas",
+    "calculations.oxygen_content",
+    "calculations.oxygen_dissociation_curve",
+    "calculations.ventilation",
+    "calculations.temperature_correction",
+    "calculations.altitude",
+    "calculations.altitude_profile",
+    "calculations.oxygen_supply",
     "calculations.course",
 ]
 
