@@ -13,6 +13,7 @@ what the earlier ones left in a shared namespace and leaves what the later ones 
 from __future__ import annotations
 
 import math
+from types import SimpleNamespace
 
 from ..errors import InputError, is_real
 from ..fields import _ABSENT_REPR, Inputs
@@ -69,6 +70,22 @@ def ventilation(inputs: Inputs, report: Report) -> None:
       0.5 s (1.0 s with ``obstructive``); I:E 1:2 assumed when not given.
     - mechanisms: see :func:`tidewell.formulas.ventilation.co2_mechanisms`; present when PaCO2 > 45 mmHg.
     """
+    v = SimpleNamespace(inputs=inputs, report=report)
+    _read_ventilation(v)
+    _minute_ventilation(v)
+    _body_size(v)
+    _co2_output(v)
+    _dead_space(v)
+    _alveolar_ventilation(v)
+    _timing(v)
+    _settings_for_target(v)
+    _causes_of_hypercapnia(v)
+    _ventilation_summary(v)
+
+
+def _read_ventilation(v: SimpleNamespace) -> None:
+    """Read the inputs and check them against each other."""
+    inputs, report = v.inputs, v.report
     rr = inputs.number("rr", low=vn.RR_RANGE[0], high=vn.RR_RANGE[1], label="respiratory rate", required=True)
     vt = inputs.quantity(
         "vt", unit="mL", low=vn.VT_RANGE_ML[0], high=vn.VT_RANGE_ML[1], label="tidal volume", required=True
@@ -125,7 +142,46 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             "height", _ABSENT_REPR, "is needed with sex for the predicted body weight", code="missing"
         )
     inputs.finish()
+    (
+        v.etco2,
+        v.etco2_now,
+        v.height,
+        v.ie,
+        v.obstructive,
+        v.pco2,
+        v.peco2,
+        v.rr,
+        v.sex,
+        v.target,
+        v.tau,
+        v.temperature,
+        v.vco2_measured,
+        v.vd,
+        v.vt,
+        v.weight,
+    ) = (
+        etco2,
+        etco2_now,
+        height,
+        ie,
+        obstructive,
+        pco2,
+        peco2,
+        rr,
+        sex,
+        target,
+        tau,
+        temperature,
+        vco2_measured,
+        vd,
+        vt,
+        weight,
+    )
 
+
+def _minute_ventilation(v: SimpleNamespace) -> None:
+    """Minute ventilation."""
+    report, rr, vt = v.report, v.rr, v.vt
     ve = vn.minute_ventilation(vt_ml=vt, rr_per_min=rr)
     report.computed(
         "minute_ventilation",
@@ -136,8 +192,12 @@ def ventilation(inputs: Inputs, report: Report) -> None:
         unit="L/min",
         decimals=1,
     )
+    v.ve = ve
 
-    # -- body size ---------------------------------------------------------------------------------
+
+def _body_size(v: SimpleNamespace) -> None:
+    """Predicted body weight, VT per kg PBW, the lung-protective band and the anatomical dead space."""
+    height, report, sex, vt = v.height, v.report, v.sex, v.vt
     pbw = None
     if height is not None and sex is not None:
         pbw = vn.predicted_body_weight_ardsnet(height_cm=height, sex=sex)
@@ -204,8 +264,21 @@ def ventilation(inputs: Inputs, report: Report) -> None:
         report.finding(
             "pbw_needs_sex", "notable", "Predicted body weight needs sex (female or male) as well as height."
         )
+    v.pbw = pbw
 
-    # -- VCO2 ------------------------------------------------------------------------------------------
+
+def _co2_output(v: SimpleNamespace) -> None:
+    """CO2 output (VCO2): measured, from mixed expired gas, or estimated by body size and fever."""
+    inputs, pbw, peco2, report, temperature, vco2_measured, ve, weight = (
+        v.inputs,
+        v.pbw,
+        v.peco2,
+        v.report,
+        v.temperature,
+        v.vco2_measured,
+        v.ve,
+        v.weight,
+    )
     size_weight, size_word = (
         (weight, "actual weight") if weight is not None else (pbw, "predicted body weight")
     )
@@ -293,8 +366,27 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             )
     report.quantity("vco2", vco2, "mL/min", decimals=0)
     report.put("vco2_source", vco2_source)
+    v.reference_formula, v.vco2, v.vco2_reference, v.vco2_source = (
+        reference_formula,
+        vco2,
+        vco2_reference,
+        vco2_source,
+    )
 
-    # -- dead space ----------------------------------------------------------------------------------
+
+def _dead_space(v: SimpleNamespace) -> None:
+    """Dead-space fraction (Enghoff, or the alveolar ventilation equation) and the EtCO2 gradient."""
+    etco2, etco2_now, inputs, pco2, peco2, report, vco2, vco2_source, ve = (
+        v.etco2,
+        v.etco2_now,
+        v.inputs,
+        v.pco2,
+        v.peco2,
+        v.report,
+        v.vco2,
+        v.vco2_source,
+        v.ve,
+    )
     vd_vt = None
     if peco2 is not None:
         vd_vt = vn.vd_vt_enghoff(paco2_mmhg=pco2, peco2_mmhg=peco2)
@@ -407,8 +499,22 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             "EtCO2 tracking assumes the arterial to end-tidal gradient is unchanged; it changes with dead "
             "space, cardiac output, position and ventilator settings. Confirm with a blood gas."
         )
+    v.method, v.vd_vt = method, vd_vt
 
-    # -- alveolar ventilation ------------------------------------------------------------------------
+
+def _alveolar_ventilation(v: SimpleNamespace) -> None:
+    """Alveolar ventilation and the PaCO2 it predicts."""
+    pco2, report, rr, vco2, vco2_source, vd, vd_vt, ve, vt = (
+        v.pco2,
+        v.report,
+        v.rr,
+        v.vco2,
+        v.vco2_source,
+        v.vd,
+        v.vd_vt,
+        v.ve,
+        v.vt,
+    )
     va_effective = ve * (1.0 - vd_vt) if vd_vt is not None else None
     if vd is not None:
         va = vn.alveolar_ventilation(vt_ml=vt, vd_ml=vd, rr_per_min=rr)
@@ -462,7 +568,10 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             decimals=2,
         )
 
-    # -- timing ----------------------------------------------------------------------------------------
+
+def _timing(v: SimpleNamespace) -> None:
+    """Expiratory and inspiratory time, and the risk of gas trapping."""
+    ie, obstructive, report, rr, tau = v.ie, v.obstructive, v.report, v.rr, v.tau
     i_part, e_part = ie if ie is not None else (1.0, 2.0)
     tau_used = tau if tau is not None else (1.0 if obstructive else 0.5)
     te_min = 3.0 * tau_used
@@ -499,8 +608,46 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             "Obstructive disease: prefer a low rate and a long expiratory time; check that expiratory flow "
             "returns to zero and measure auto-PEEP before raising the rate. " + _LOCAL
         )
+    v.e_part, v.i_part, v.tau_used, v.tau_word, v.te_min = e_part, i_part, tau_used, tau_word, te_min
 
-    # -- to target -------------------------------------------------------------------------------------
+
+def _settings_for_target(v: SimpleNamespace) -> None:
+    """Settings for a target PaCO2."""
+    (
+        e_part,
+        i_part,
+        ie,
+        obstructive,
+        pbw,
+        pco2,
+        report,
+        rr,
+        target,
+        tau_used,
+        tau_word,
+        te_min,
+        vd,
+        vd_vt,
+        ve,
+        vt,
+    ) = (
+        v.e_part,
+        v.i_part,
+        v.ie,
+        v.obstructive,
+        v.pbw,
+        v.pco2,
+        v.report,
+        v.rr,
+        v.target,
+        v.tau_used,
+        v.tau_word,
+        v.te_min,
+        v.vd,
+        v.vd_vt,
+        v.ve,
+        v.vt,
+    )
     if target is not None:
         _to_target(
             report,
@@ -520,7 +667,20 @@ def ventilation(inputs: Inputs, report: Report) -> None:
             obstructive=obstructive,
         )
 
-    # -- mechanisms ------------------------------------------------------------------------------------
+
+def _causes_of_hypercapnia(v: SimpleNamespace) -> None:
+    """Why the PaCO2 is high (when it is above 45 mmHg)."""
+    method, pco2, reference_formula, report, vco2, vco2_reference, vco2_source, vd_vt, ve = (
+        v.method,
+        v.pco2,
+        v.reference_formula,
+        v.report,
+        v.vco2,
+        v.vco2_reference,
+        v.vco2_source,
+        v.vd_vt,
+        v.ve,
+    )
     if pco2 > vn.PACO2_NORMAL_HIGH_MMHG:
         if vd_vt is None:
             report.finding(
@@ -540,6 +700,11 @@ def ventilation(inputs: Inputs, report: Report) -> None:
                 vd_vt_method=method,
                 reference_formula=reference_formula,
             )
+
+
+def _ventilation_summary(v: SimpleNamespace) -> None:
+    """The summary sentence and the steady-state caution."""
+    report, vco2, vco2_source, vd_vt, ve = v.report, v.vco2, v.vco2_source, v.vd_vt, v.ve
     report.say(
         f"VE {ve:.1f} L/min"
         + (f", VD/VT {vd_vt:.2f}" if vd_vt is not None else "")
