@@ -51,7 +51,7 @@ declare -A PATHS=(
     [course]="core/tidewell/calculations/course.py"
 )
 declare -A SUBSET_PATHS=(
-    [blood_gas]="core/tidewell/calculations/blood_gas/__init__.py"
+    [blood_gas]="core/tidewell/calculations/blood_gas/thresholds.py"
 )
 modules=("$@")
 [ ${#modules[@]} -gt 0 ] || modules=(acidbase blood_gas oxygenation ventilation altitude transport temperature course)

@@ -26,6 +26,7 @@ import compare
 from conftest import load_cases
 from tidewell import bridge, units
 from tidewell.calculations import blood_gas
+from tidewell.calculations.blood_gas import reading
 from tidewell.errors import InputErrors
 from tidewell.fields import Inputs
 from tidewell.frontends import batch
@@ -383,7 +384,7 @@ def test_decide_on_arrays_is_decide_on_each_sample():
     samples = []
     while len(samples) < 600:
         try:
-            samples.append(blood_gas._Sample(Inputs(generate_sample(rng))).values())
+            samples.append(reading._Sample(Inputs(generate_sample(rng))).values())
         except InputErrors:
             continue
     arrays = type(samples[0])(**{k: np.array([getattr(s, k) for s in samples]) for k in vars(samples[0])})

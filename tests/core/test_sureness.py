@@ -17,6 +17,7 @@ import pytest
 import compare
 from tidewell.bridge import handle_obj
 from tidewell.calculations import blood_gas, uncertainty
+from tidewell.calculations.blood_gas import reading
 
 
 def q(value, unit):
@@ -298,7 +299,7 @@ def test_every_draw_gets_the_scalar_alveolar_gas_and_a_a_limit():
     from tidewell.formulas import oxygenation
 
     raw = {**AB05, "po2": q(7.1, "kPa"), "fio2": 0.28, "age": 71}
-    sample = blood_gas._Sample(Inputs(raw))
+    sample = reading._Sample(Inputs(raw))
     errors = {key: (kind, value, "default") for key, (kind, value) in uncertainty.DEFAULT_ERRORS.items()}
     values, _ = uncertainty.draw_inputs(sample, errors, 500, 5)
     _, cloud, _ = uncertainty.simulate(sample, errors, 500, 5)

@@ -53,7 +53,8 @@ import numpy as np
 
 from .. import units
 from ..arrays import each
-from ..calculations import blood_gas as interpret
+from ..calculations import blood_gas
+from ..calculations.blood_gas import reading
 from ..errors import InputErrors
 from ..fields import Inputs
 from .cells import (
@@ -72,7 +73,7 @@ from .cells import (
 )
 from .cells import censored as censored_cell
 
-FIELDS = {f.key: f for f in interpret.FIELDS}
+FIELDS = {f.key: f for f in blood_gas.FIELDS}
 #: rows interpreted at a time (the progress bar moves per chunk)
 CHUNK = 10_000
 _ABSENT, _OK, _BAD = ABSENT, NUMBER, BAD
@@ -672,7 +673,7 @@ def _read_arrays(table: Table, rows: np.ndarray):
     ok = np.ones(n, dtype=bool)
     v = SimpleNamespace()
     unit_of = {}
-    for f in interpret.FIELDS:
+    for f in blood_gas.FIELDS:
         column = table.columns.get(f.key)
         o = f.options
         if column is None:
@@ -745,21 +746,21 @@ def _read_arrays(table: Table, rows: np.ndarray):
     # cross-field checks (interpret's own functions, on arrays)
     urea_given, bun = v.urea_given, v.bun
     both = ~np.isnan(urea_given) & ~np.isnan(bun)
-    ok &= ~(both & interpret.urea_bun_disagree(urea_given, bun))
+    ok &= ~(both & reading.urea_bun_disagree(urea_given, bun))
     v.urea = np.where(np.isnan(urea_given), bun, urea_given)
-    ok &= interpret.implied_hco3_survivable(interpret.implied_hco3(v.ph, v.pco2))
+    ok &= reading.implied_hco3_survivable(reading.implied_hco3(v.ph, v.pco2))
     has_pb, has_alt = ~np.isnan(v.pb), ~np.isnan(v.altitude)
     isa = each(
-        lambda altitude_m: interpret.pb_value(None, altitude_m),
+        lambda altitude_m: reading.pb_value(None, altitude_m),
         ok & ~has_pb & has_alt,
         altitude_m=v.altitude,
     )
     v.pb_value = np.where(has_pb, v.pb, np.where(has_alt, isa, 760.0))
-    pio2 = interpret.inspired_po2(v.fio2, v.pb_value)
+    pio2 = reading.inspired_po2(v.fio2, v.pb_value)
     oxygen = ~np.isnan(v.po2) & (v.site != "venous") & v.fio2_given
-    ok &= ~(oxygen & interpret.po2_above_inspired(v.po2, pio2))
-    ok &= ~(oxygen & interpret.no_alveolar_oxygen(pio2, v.pco2, v.rq))
-    flags = interpret.mix_up_flags(
+    ok &= ~(oxygen & reading.po2_above_inspired(v.po2, pio2))
+    ok &= ~(oxygen & reading.no_alveolar_oxygen(pio2, v.pco2, v.rq))
+    flags = reading.mix_up_flags(
         ph=v.ph,
         hco3=v.hco3,
         pco2=v.pco2,
@@ -774,7 +775,7 @@ def _read_arrays(table: Table, rows: np.ndarray):
     )
     v.mix_up = np.logical_or.reduce(list(flags.values()))
     v.unusual = np.logical_or.reduce(
-        list(interpret.unusual_flags(glucose=v.glucose, urea=v.urea, lactate=v.lactate).values())
+        list(reading.unusual_flags(glucose=v.glucose, urea=v.urea, lactate=v.lactate).values())
     )
     v.pb_and_altitude = has_pb & has_alt
     return v, ok
@@ -895,7 +896,7 @@ def interpret_rows(table: Table, rows: np.ndarray, pressure_unit: str = "mmHg") 
             continue
         raw = row_inputs(table, int(rows[j]))
         try:
-            s = interpret._Sample(Inputs(raw), pressure_unit=pressure_unit)
+            s = reading._Sample(Inputs(raw), pressure_unit=pressure_unit)
         except InputErrors as exc:
             errors[j] = [_csv_message(e.as_entry()["message"]) for e in exc.errors]
             error_kinds[j] = list(dict.fromkeys(_error_kind(e) for e in exc.errors))
@@ -913,7 +914,7 @@ def interpret_rows(table: Table, rows: np.ndarray, pressure_unit: str = "mmHg") 
     present = {name: np.zeros(n, dtype=bool) for name in OUTPUT_NAMES}
     if len(idx):
         with np.errstate(all="ignore"):
-            d = interpret.decide(x)
+            d = blood_gas.decide(x)
         _outputs(d, x, idx, values, present, pressure_unit)
     sites = np.where(site_given, np.asarray(v.site, dtype=object), NOT_GIVEN)
     notes, note_kinds = _notes(table, rows, site_given)
@@ -973,7 +974,7 @@ def _notes(table: Table, rows: np.ndarray, site_given: np.ndarray) -> tuple[list
         for j in np.flatnonzero(unread).tolist():
             text = column.cells[int(rows[j])].strip()
             if key == "sample":
-                close = difflib.get_close_matches(text.casefold(), interpret.SITES, n=1, cutoff=0.6)
+                close = difflib.get_close_matches(text.casefold(), blood_gas.SITES, n=1, cutoff=0.6)
                 hint = f" (did you mean '{close[0]}'?)" if close else ""
                 notes[j].append(f"sample '{text}' not read{hint}")
                 kinds[j].append("sample site not read")
@@ -1016,12 +1017,12 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("primary_disorder", d.primary, arr(d.primary) != "")
     # the disorders in the order the report names them (by stage), one text per combination
     key = np.zeros(m, dtype=np.int64)
-    for i, code in enumerate(interpret.DISORDER_CODES):
+    for i, code in enumerate(blood_gas.DISORDER_CODES):
         key += np.where(arr(d.has[code], bool), arr(d.stage[code]) + 1, 0) * 5**i
     combos, which = np.unique(key, return_inverse=True)
     texts = []
     for combo in combos.tolist():
-        stages = {code: (combo // 5**i) % 5 for i, code in enumerate(interpret.DISORDER_CODES)}
+        stages = {code: (combo // 5**i) % 5 for i, code in enumerate(blood_gas.DISORDER_CODES)}
         texts.append(" ".join(sorted((c for c in stages if stages[c]), key=lambda c: stages[c])))
     put("disorders", np.array(texts, dtype=object)[which.reshape(-1)])
     respiratory = arr(d.chronicity) != ""
@@ -1030,7 +1031,7 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("hco3", d.hco3_out)
     put("hco3_computed", d.hco3_computed)
     put("standard_base_excess", d.sbe)
-    metabolic = (arr(d.primary) == interpret.MET_ACID) | (arr(d.primary) == interpret.MET_ALK)
+    metabolic = (arr(d.primary) == blood_gas.MET_ACID) | (arr(d.primary) == blood_gas.MET_ALK)
     put("expected_pco2_low", pressure(d.met_expected.low), metabolic)
     put("expected_pco2_high", pressure(d.met_expected.high), metabolic)
     put("anion_gap", d.anion_gap, d.has_gap)
@@ -1054,11 +1055,11 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("pco2_target_basis", d.pco2_target_basis, d.target_given)
     put("pco2_consciousness_threshold", pressure(d.consciousness_threshold))
     # findings in the response's order: by severity, then in the order the report emits them
-    codes = interpret.FINDING_ORDER
+    codes = blood_gas.FINDING_ORDER
     slots = []  # (code, is urgent, mask) in the response's order
     for severity in ("urgent", "notable", "info"):
         for code in codes:
-            level = d.severity.get(code, interpret.SEVERITY.get(code))
+            level = d.severity.get(code, blood_gas.SEVERITY.get(code))
             at = arr(d.finding[code], bool) & (arr(level) == severity)
             if at.any():
                 slots.append((code, severity == "urgent", at))
@@ -1457,7 +1458,7 @@ class Tally:
 
 
 def _site_order(item) -> int:
-    order = (*interpret.SITES, NOT_GIVEN)
+    order = (*blood_gas.SITES, NOT_GIVEN)
     return order.index(item[0]) if item[0] in order else len(order)
 
 
@@ -1537,7 +1538,7 @@ FINDING_WORDS = {
 }
 #: the other codes of the summary in words
 WORDS = {
-    **{code: name for code, name in interpret.NAMES.items()},
+    **{code: name for code, name in blood_gas.NAMES.items()},
     "none": "none",
     "acute": "acute",
     "chronic": "chronic",
