@@ -21,9 +21,9 @@ from offline_support import manifest, precache_list
 from selenium.common.exceptions import WebDriverException
 from selenium.webdriver.common.by import By
 from selenium.webdriver.support.ui import WebDriverWait
-from test_worked_cases import _requests
 
 import compare
+from casebook import worked_requests
 from tidewell import bridge
 
 
@@ -90,7 +90,7 @@ def first_visit(browser, server, site: Path, query: str = "") -> None:
 
 
 def answers(browser) -> list[tuple[str, dict]]:
-    return [(case_id, browser.compute(request)) for case_id, request, _ in _requests()]
+    return [(case_id, browser.compute(request)) for case_id, request, _ in worked_requests()]
 
 
 def test_a_start_from_the_snapshot_answers_every_worked_case_as_a_normal_start(
@@ -113,7 +113,7 @@ def test_a_start_from_the_snapshot_answers_every_worked_case_as_a_normal_start(
     for (case_id, a), (_, b) in zip(normal, restored, strict=True):
         assert b["ok"], (case_id, b.get("errors"))
         same(a, b, case_id)
-    for (case_id, request, _), (_, page) in zip(_requests(), restored, strict=True):
+    for (case_id, request, _), (_, page) in zip(worked_requests(), restored, strict=True):
         _close(page, bridge.handle_obj(request), case_id)  # and CPython's answer, to 1e-9
     # numpy is not in the snapshot: it loads on first use, as in a normal start
     assert "numpy" not in browser.wait_js("return (await window.tidewell.engine.diagnostics()).packages;")
@@ -166,7 +166,7 @@ def check_falls_back(browser, server, site: Path, query: str, reason: str) -> No
     visit(browser, server.url + query + "#convert")
     info = start_of(browser)
     assert info["start"] == "normal" and re.search(reason, info["note"]), info
-    for case_id, request, _ in (_requests()[0], _requests()[-1]):
+    for case_id, request, _ in (worked_requests()[0], worked_requests()[-1]):
         _close(browser.compute(request), bridge.handle_obj(request), case_id)
 
 
@@ -186,7 +186,7 @@ def test_a_damaged_stored_snapshot_is_not_used_and_is_replaced(make_browser, mak
     visit(browser, server.url + "#convert")
     info = start_of(browser)
     assert info["start"] == "normal" and "not this build's" in info["note"], info
-    request = _requests()[0][1]
+    request = worked_requests()[0][1]
     _close(browser.compute(request), bridge.handle_obj(request))
     # the normal start asked the service worker again: it found the copy wrong and stored the build's
     wait_stored(browser, dist)
@@ -249,5 +249,5 @@ def test_an_update_replaces_the_snapshot(make_browser, make_server, dist, other_
     assert held == [f"tidewell-{new_id}"] and old_id != new_id
     visit(browser, server.url + "?engine-timeout=120000#convert")
     assert start_of(browser) == {"start": "snapshot", "note": "", "label": "snapshot-other"}
-    request = _requests()[0][1]
+    request = worked_requests()[0][1]
     _close(browser.compute(request), bridge.handle_obj(request))
