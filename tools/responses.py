@@ -12,7 +12,8 @@ on where the calculations live. One line per request, ``{"id", "request", "respo
 The corpus (fixed, deterministic; the order is the order of the file):
 - ``case``: every worked case of tests/cases/reference_cases.json as a request of the calculation that
   answers it (the blood-gas cases through tests/casebook.py's ``case_inputs``, the others through the
-  mapping below); each blood-gas case also through ``uncertainty`` (seeded: ``sureness`` draws with
+  mapping below), and each request of casebook's ``worked_requests`` (the tests' own mapping of the cases
+  onto requests); each blood-gas case also through ``uncertainty`` (seeded: the calculation draws with
   ``numpy.random.default_rng([seed, index])`` and a default seed, so the same request gives the same answer;
   the default seed and one given seed are both recorded);
 - ``sweep``: each of these requests with each optional input of its calculation toggled (taken out when it
@@ -188,6 +189,9 @@ def case_requests(casebook) -> list[tuple[str, dict]]:
             for name, value in FILL.get(calc, {}).items():
                 inputs.setdefault(name, value)
             out.append((f"case:{case_id}:{calc}", {"calc": calc, "inputs": inputs}))
+    if hasattr(casebook, "worked_requests"):  # the test suite's own mapping of the worked cases
+        for case_id, request, _ in casebook.worked_requests():
+            out.append((f"case:{case_id}:tests", request))
     return out
 
 
