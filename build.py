@@ -606,7 +606,7 @@ maker.runPython(job.setup);
 maker.globals.set("_tidewell_label", job.label);
 maker.runPython(`
 import importlib, os, pkgutil, random, tidewell
-for _m in pkgutil.iter_modules(tidewell.__path__, "tidewell."):
+for _m in pkgutil.walk_packages(tidewell.__path__, "tidewell.", onerror=lambda name: None):
     if not _m.name.endswith("__main__"):
         try:
             importlib.import_module(_m.name)

@@ -9,8 +9,8 @@ Builds a seeded, invented audit file (--rows samples: COPD exacerbations, compen
 normal gases, venous and capillary samples, about 2 % of rows with a typing slip or a unit mix-up, units in
 the header and now and then in a cell) and times:
 
-- the batch: reading the CSV text, interpreting every row (numpy, tidewell.batch.interpret_table), writing
-  the output CSV and the summary; and end to end, file to file (tidewell.batch.run);
+- the batch: reading the CSV text, interpreting every row (numpy, frontends.batch.interpret_table), writing
+  the output CSV and the summary; and end to end, file to file (tidewell.frontends.batch.run);
 - the scalar bridge looped over the same rows (tidewell.bridge.handle_obj on each row's inputs, no CSV work
   at all, so the ratio favours the loop). By default a random sample of --scalar-sample rows is timed
   before and after the batch and the per-row mean is extrapolated to --rows (printed as extrapolated);
@@ -23,7 +23,7 @@ CPU time (time.process_time), which other jobs on a shared machine disturb less 
 beside the wall-clock one; neither replaces the other).
 
 Scale (issue 19): the same invented file at each --scale size (10^5 and 10^6 rows by default; written row by
-row, never held in memory) read, interpreted and written file to file by tidewell.batch.run, each run in a
+row, never held in memory) read, interpreted and written file to file by frontends.batch.run, each run in a
 fresh process so that its peak resident memory (ru_maxrss) is its own, the sizes alternated --scale-repeat
 times so they share the machine's load alike; printed side by side: median wall time, rows per second, median
 CPU time, rows per CPU second, the largest peak RSS, and the ratio of the largest size's peak RSS to the
@@ -289,7 +289,7 @@ def _child(rows: int, path: str, episodes: bool = False) -> int:
 
 
 def time_scale(sizes: list[int], repeat: int, seed: int = 7) -> dict:
-    """``tidewell.batch.run`` file to file at each size, each run in a fresh process (peak RSS is per
+    """``frontends.batch.run`` file to file at each size, each run in a fresh process (peak RSS is per
     process), the sizes alternated ``repeat`` times so that they share the machine's load alike."""
     runs: dict[int, list[dict]] = {n: [] for n in sizes}
     with tempfile.TemporaryDirectory() as tmp:
@@ -380,7 +380,7 @@ def time_episodes(sizes: list[int], repeat: int, seed: int = 7) -> dict:
 
 def print_episodes(result: dict) -> None:
     print(
-        f"episodes (tidewell.batch.run file to file without and with --episodes, {EPISODE_GASES} gases per "
+        f"episodes (frontends.batch.run file to file without and with --episodes, {EPISODE_GASES} gases per "
         f"episode spread through the file; one process per run, median of {result['repeat']}; load average "
         f"1 min before/after: {result['load_average_1min']}):"
     )
@@ -397,7 +397,7 @@ def print_episodes(result: dict) -> None:
 
 def print_scale(scale: dict) -> None:
     print(
-        f"scale (tidewell.batch.run file to file, one process per run, median of {scale['repeat']}; "
+        f"scale (frontends.batch.run file to file, one process per run, median of {scale['repeat']}; "
         f"load average 1 min before/after: {scale['load_average_1min']}):"
     )
     print(
@@ -530,7 +530,7 @@ def main() -> int:
         f"write + summary {best['write_and_summary']:.2f} s, total {best['total']:.2f} s "
         f"(runs: {', '.join(f'{t:.2f}' for t in totals)} s)"
     )
-    print(f"file to file (tidewell.batch.run): {', '.join(f'{t:.2f}' for t in files)} s")
+    print(f"file to file (tidewell.frontends.batch.run): {', '.join(f'{t:.2f}' for t in files)} s")
     print(
         f"scalar bridge: {per_row * 1e3:.3f} ms per row ({report['scalar_total_is']}: "
         f"{report['scalar_rows_timed']:,} rows timed) -> {scalar_total:.0f} s for {args.rows:,} rows"

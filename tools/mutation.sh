@@ -3,7 +3,7 @@
 #
 # Usage:
 #   bash tools/mutation.sh                         every module below, every constant and comparison
-#   bash tools/mutation.sh interpret course        some modules
+#   bash tools/mutation.sh blood_gas course        some modules
 #   MUTATION_SUBSET=1 bash tools/mutation.sh ...   only the names listed in SUBSET below (docs/testing.md)
 #
 # The mutants are the audit's kind: one number changed (cosmic-ray's NumberReplacer, +1 / -1) or one
@@ -20,7 +20,7 @@ out=${MUTATION_DIR:-/tmp/tidewell-mutation}
 
 declare -A TESTS=(
     [acidbase]="tests/core/test_acidbase.py tests/core/test_thresholds.py"
-    [interpret]="tests/core/test_thresholds.py tests/core/test_retainer_rules.py"
+    [blood_gas]="tests/core/test_thresholds.py tests/core/test_retainer_rules.py"
     [oxygenation]="tests/core/test_oxygenation.py tests/core/test_thresholds.py"
     [ventilation]="tests/core/test_ventilation.py"
     [altitude]="tests/core/test_altitude.py"
@@ -33,14 +33,28 @@ declare -A TESTS=(
 # name: the named decision thresholds and the course's NIV and oxygen rules
 declare -A SUBSET=(
     [acidbase]="ACUTE_AT_LEAST CHRONIC_AT_MOST chronicity_from_fraction _chronicity"
-    [interpret]="PH_LOW PCO2_LOW HCO3_LOW SEVERE_ACIDAEMIA_PH NIV_PH NIV_PCO2_MMHG NIV_INVASIVE_PH
+    [blood_gas]="PH_LOW PCO2_LOW HCO3_LOW SEVERE_ACIDAEMIA_PH NIV_PH NIV_PCO2_MMHG NIV_INVASIVE_PH
         NARCOSIS_NORMAL_MMHG HYPOXAEMIA_MMHG PF_IMPAIRED AG_ALWAYS_ACIDOSIS LACTATE_ACIDOSIS LACTATE_RAISED
         HCO3_MARGIN_MIN SBE_TOLERANCE STEWART_EFFECT FLOOR_PH"
     [oxygenation]="RICE_SPO2_MAX_PERCENT"
     [course]="PH_CHANGE PH_LOW NIV_FIRST_CHECK_MIN _Course.niv _Course.oxygen_finding _Course.falling_fast_finding"
 )
+# where each module is (blood_gas is a package: every module of it; its SUBSET names are in one file)
+declare -A PATHS=(
+    [acidbase]="core/tidewell/formulas/acidbase.py"
+    [blood_gas]="core/tidewell/calculations/blood_gas"
+    [oxygenation]="core/tidewell/formulas/oxygenation.py"
+    [ventilation]="core/tidewell/formulas/ventilation.py"
+    [altitude]="core/tidewell/formulas/altitude.py"
+    [transport]="core/tidewell/formulas/transport.py"
+    [temperature]="core/tidewell/formulas/temperature.py"
+    [course]="core/tidewell/calculations/course.py"
+)
+declare -A SUBSET_PATHS=(
+    [blood_gas]="core/tidewell/calculations/blood_gas/thresholds.py"
+)
 modules=("$@")
-[ ${#modules[@]} -gt 0 ] || modules=(acidbase interpret oxygenation ventilation altitude transport temperature course)
+[ ${#modules[@]} -gt 0 ] || modules=(acidbase blood_gas oxygenation ventilation altitude transport temperature course)
 
 rm -rf "$out/tree" && mkdir -p "$out/tree"
 git archive HEAD | tar -x -C "$out/tree"
@@ -48,7 +62,8 @@ cd "$out/tree"
 
 for m in "${modules[@]}"; do
     tests=${TESTS[$m]:?unknown module $m}
-    path="core/tidewell/$m.py"
+    path=${PATHS[$m]}
+    [ -z "${MUTATION_SUBSET:-}" ] || path=${SUBSET_PATHS[$m]:-$path}
     cfg="$out/$m.toml"
     db="$out/$m.sqlite"
     {

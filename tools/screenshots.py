@@ -27,7 +27,7 @@ from harness import Browser, Server, build  # noqa: E402
 from screens_support import TALL_PHONE, fill, open_screen, phone, wait_report  # noqa: E402
 from selenium.webdriver.common.by import By  # noqa: E402
 
-from tidewell.coursefile import event_words  # noqa: E402
+from tidewell.frontends.cells import event_words  # noqa: E402
 
 OUT = ROOT / "docs" / "screenshots"
 EXAMPLES = ROOT / "docs" / "examples"

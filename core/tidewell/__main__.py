@@ -1,5 +1,5 @@
-"""``python -m tidewell``: the command line (see :mod:`tidewell.cli`)."""
+"""``python -m tidewell``: the command line (see :mod:`tidewell.frontends.cli`)."""
 
-from .cli import main
+from .frontends.cli import main
 
 raise SystemExit(main())

@@ -7,7 +7,7 @@
 ``available``       the calculations this build can answer
 ==================  =====================================================================
 
-Shapes are those of CONTRACT.md (project description in docs/bridge.md). Each calculation is a
+Shapes are those of the contract (docs/bridge.md, schema/bridge.schema.json). Each calculation is a
 function ``f(inputs: Inputs, report: Report) -> None`` imported only when first asked for, so
 ``import tidewell.bridge`` stays cheap and imports no numpy.
 """
@@ -29,19 +29,19 @@ ENGINE = __version__
 
 #: calculation name -> "module:function" (an allow-list; nothing else is reachable).
 CALCULATIONS: dict[str, str] = {
-    "convert": "tidewell.converter:convert",
-    "blood_gas": "tidewell.interpret:blood_gas",
-    "alveolar_gas": "tidewell.breathing:alveolar_gas",
-    "oxygen_content": "tidewell.breathing:oxygen_content",
-    "oxygen_dissociation_curve": "tidewell.breathing:oxygen_dissociation_curve",
-    "ventilation": "tidewell.breathing:ventilation",
-    "temperature_correction": "tidewell.breathing:temperature_correction",
-    "altitude": "tidewell.flight:altitude",
-    "altitude_profile": "tidewell.flight:altitude_profile",
-    "oxygen_supply": "tidewell.flight:oxygen_supply",
-    "uncertainty": "tidewell.sureness:uncertainty",
-    "course": "tidewell.course:course",
-    "acid_base_map": "tidewell.bands:acid_base_map",
+    "convert": "tidewell.calculations.convert:convert",
+    "blood_gas": "tidewell.calculations.blood_gas:blood_gas",
+    "alveolar_gas": "tidewell.calculations.alveolar_gas:alveolar_gas",
+    "oxygen_content": "tidewell.calculations.oxygen_content:oxygen_content",
+    "oxygen_dissociation_curve": "tidewell.calculations.oxygen_dissociation_curve:oxygen_dissociation_curve",
+    "ventilation": "tidewell.calculations.ventilation:ventilation",
+    "temperature_correction": "tidewell.calculations.temperature_correction:temperature_correction",
+    "altitude": "tidewell.calculations.altitude:altitude",
+    "altitude_profile": "tidewell.calculations.altitude_profile:altitude_profile",
+    "oxygen_supply": "tidewell.calculations.oxygen_supply:oxygen_supply",
+    "uncertainty": "tidewell.calculations.uncertainty:uncertainty",
+    "course": "tidewell.calculations.course:course",
+    "acid_base_map": "tidewell.calculations.acid_base_map:acid_base_map",
 }
 
 PRESSURE_UNITS = ("mmHg", "kPa")
@@ -92,7 +92,7 @@ RESPONSE_HOOKS: list = []
 
 
 def handle_obj(request: object) -> dict:
-    """Answer one request object (see CONTRACT.md). Never raises (response hooks aside)."""
+    """Answer one request object (see docs/bridge.md). Never raises (response hooks aside)."""
     response = _handle_safely(request)
     for hook in RESPONSE_HOOKS:
         hook(request, response)

@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import math
 
-#: Error codes of the bridge contract (CONTRACT.md) plus the project's own additions.
+#: Error codes of the bridge contract (docs/bridge.md) plus the project's own additions.
 ERROR_CODES = (
     "missing",
     "not_a_number",

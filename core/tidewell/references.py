@@ -553,7 +553,7 @@ REFERENCES: dict[str, Ref] = {
         "Aviation-medicine chapter (8,000 ft ~ 15.1 % O2)",
         "Aviation-medicine book chapter (Taylor & Francis): a cabin altitude of 8,000 ft is equivalent "
         "to breathing about 15.1 % oxygen at sea level, and a healthy PaO2 falls to about 8.7 kPa "
-        "(as summarised in the project's REFERENCE.md 10.2).",
+        "(as summarised in the project's docs).",
     ),
     "bts2011_inflight_threshold": _r(
         "BTS 2011 in-flight oxygen threshold (from memory)",
@@ -573,7 +573,7 @@ REFERENCES: dict[str, Ref] = {
         "Bell IH, Wronski J, Quoilin S, Lemort V. Pure and pseudo-pure fluid thermophysical property "
         "evaluation and the open-source thermophysical property library CoolProp. Ind Eng Chem Res "
         "2014;53:2498-508 (oxygen Z about 0.931 at 137-200 bar and 0.939 at 230 bar, 15 degC, as "
-        "computed for REFERENCE.md 11; citation details from memory).",
+        "computed for Tidewell's cylinder rules; citation details from memory).",
         "from memory",
     ),
     "ventilator_o2_estimate": _r(

@@ -207,7 +207,7 @@ importlib.invalidate_caches()
 # every source now fails if it is read: the import must come from the compiled files alone
 for path in pathlib.Path(site.getsitepackages()[0], "tidewell").rglob("*.py"):
     path.write_text("raise ImportError('the source was compiled at start-up')\\n")
-import sys, tidewell.bridge, tidewell.interpret
+import sys, tidewell.bridge, tidewell.calculations.blood_gas
 json.dumps({"convert": json.loads(tidewell.bridge.handle(json.dumps(
     {"calc": "convert", "inputs": {"quantity": {"value": 1, "unit": "kPa"}, "to": "mmHg"}})))["ok"],
     "json": sys.modules["json"].__file__, "difflib": sys.modules["difflib"].__file__})

@@ -52,7 +52,7 @@ pyodide.FS.writeFile(target, new Uint8Array(readFileSync(zipPath)));
 process.stdout.write(pyodide.runPython(`
 import json, sys
 sys.path.insert(0, ${JSON.stringify(target)})
-import tidewell.bridge, tidewell.interpret
+import tidewell.bridge, tidewell.calculations.blood_gas
 gas = {"ph": 7.31, "pco2": {"value": 9.1, "unit": "kPa"}, "hco3": {"value": 33, "unit": "mmol/L"}}
 json.dumps({"ok": json.loads(tidewell.bridge.handle(json.dumps({"calc": "blood_gas", "inputs": gas})))["ok"],
             "files": sorted({m.__file__ for n, m in sys.modules.items() if n.startswith("tidewell")})})

@@ -1,4 +1,4 @@
-"""Domain tests for tidewell.acidbase against the worked cases and the cited equations.
+"""Domain tests for tidewell.formulas.acidbase against the worked cases and the cited equations.
 
 Provenance words beside each check: *published* (a table or worked example in the source), *derived* (hand
 computed here from the cited equation), *common practice*, *from memory* (the source was recalled, not
@@ -14,8 +14,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from tidewell import acidbase as ab
 from tidewell.errors import InputError
+from tidewell.formulas import acidbase as ab
 
 
 def approx(case, key):

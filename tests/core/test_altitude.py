@@ -1,4 +1,4 @@
-"""tidewell.altitude: the ICAO standard atmosphere and the physiology of flight, against published values.
+"""formulas.altitude: the ICAO standard atmosphere and the physiology of flight, against published values.
 
 Provenance words beside each expected value: *published* (a printed table or a worked example in a named
 source), *derived* (hand-computed from the cited equation), *common practice*, *from memory*.
@@ -12,9 +12,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from tidewell import altitude as alt
 from tidewell.errors import InputError
-from tidewell.oxygenation import alveolar_po2_full, alveolar_po2_simple
+from tidewell.formulas import altitude as alt
+from tidewell.formulas.oxygenation import alveolar_po2_full, alveolar_po2_simple
 from tidewell.units import FT_M, MMHG_PA
 
 KPA_PER_MMHG = MMHG_PA / 1000.0

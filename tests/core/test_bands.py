@@ -1,4 +1,4 @@
-"""The acid-base map (tidewell.bands, the ``acid_base_map`` calculation): each band at a point checked
+"""The acid-base map (the ``acid_base_map`` calculation): each band at a point checked
 against the published rule it draws, in both pressure units."""
 
 from __future__ import annotations

@@ -1,7 +1,7 @@
-"""The batch audit (tidewell.batch): every row equals the scalar bridge, and the CSV edge cases.
+"""The batch audit (tidewell.frontends.batch): every row equals the scalar bridge, and the CSV edge cases.
 
 The rules themselves are checked against their published sources in test_acidbase.py and test_blood_gas.py;
-here the scalar bridge is the reference: one implementation of each rule (interpret.decide and the reader's
+here the scalar bridge is the reference: one implementation of each rule (blood_gas.decide and the reader's
 field table) must give the same answer on arrays as on one sample. Rows are generated with a seeded random
 generator over plausible clinical ranges, with the decision thresholds themselves (pH 7.35, PCO2 45 mmHg,
 HCO3 22 and 26 mmol/L, PO2 60 mmHg ...) and the reader's limits mixed in, in every accepted unit; some rows
@@ -24,9 +24,12 @@ import pytest
 
 import compare
 from conftest import load_cases
-from tidewell import batch, bridge, interpret, units
+from tidewell import bridge, units
+from tidewell.calculations import blood_gas
+from tidewell.calculations.blood_gas import reading
 from tidewell.errors import InputErrors
 from tidewell.fields import Inputs
+from tidewell.frontends import batch
 
 KPA = units.convert(1.0, "kPa", "mmHg")
 
@@ -157,7 +160,7 @@ def _cell(value, column_unit):
 
 def to_csv(samples: list[dict], rng: random.Random, *, units_row: bool = False) -> str:
     """Samples as CSV: an id column, units in the header (the commonest unit), other units in the cells."""
-    keys = [f.key for f in interpret.FIELDS if any(f.key in s for s in samples)]
+    keys = [f.key for f in blood_gas.FIELDS if any(f.key in s for s in samples)]
     column_unit = {}
     for key in keys:
         found = [s[key]["unit"] for s in samples if isinstance(s.get(key), dict)]
@@ -341,19 +344,19 @@ def test_every_finding_code_is_exercised_by_the_generator():
     seen = set()
     for i in range(audit.n):
         seen.update(audit.findings(i))
-    missing = set(interpret.FINDING_ORDER) - seen
+    missing = set(blood_gas.FINDING_ORDER) - seen
     assert len(missing) <= 3, f"finding codes the generator never reaches: {sorted(missing)}"
     disorders = {audit.value("disorders", i) for i in range(audit.n) if not audit.errors[i]}
     assert len(disorders) >= 20  # single, double and triple disorders in many orders
 
 
 def _decided(sample) -> dict:
-    """interpret.decide for one sample as plain values (dicts, lists, floats, words)."""
-    return compare.plain(vars(interpret.decide(sample)))
+    """blood_gas.decide for one sample as plain values (dicts, lists, floats, words)."""
+    return compare.plain(vars(blood_gas.decide(sample)))
 
 
 def _sample_row(together, j: int, n: int):
-    """Sample ``j`` of the array answer of interpret.decide, in the shape of the scalar answer."""
+    """Sample ``j`` of the array answer of blood_gas.decide, in the shape of the scalar answer."""
 
     def pick(value):
         if isinstance(value, dict):
@@ -373,7 +376,7 @@ def _nudged_samples(sample, rel: float):
 
 
 def test_decide_on_arrays_is_decide_on_each_sample():
-    """interpret.decide: the array answer is the scalar answer for every sample: numbers to a relative
+    """blood_gas.decide: the array answer is the scalar answer for every sample: numbers to a relative
     1e-12 (numpy's SIMD power and log differ from CPython's libm in the last place on some CPUs), words,
     codes and flags exactly; a sample within that tolerance of a threshold may take the reading the scalar
     path gives for its values nudged by the tolerance, and is counted in the session summary."""
@@ -381,12 +384,12 @@ def test_decide_on_arrays_is_decide_on_each_sample():
     samples = []
     while len(samples) < 600:
         try:
-            samples.append(interpret._Sample(Inputs(generate_sample(rng))).values())
+            samples.append(reading._Sample(Inputs(generate_sample(rng))).values())
         except InputErrors:
             continue
     arrays = type(samples[0])(**{k: np.array([getattr(s, k) for s in samples]) for k in vars(samples[0])})
     with np.errstate(all="ignore"):
-        together = interpret.decide(arrays)
+        together = blood_gas.decide(arrays)
     same = compare.tally(compare.REL_SAME_ENGINE)
     for j, sample in enumerate(samples):
         same.check(
@@ -613,7 +616,7 @@ def test_summary_counts_match_the_rows():
     ok = [i for i in range(audit.n) if not audit.errors[i]]
     assert counts["rows"] == 400 and counts["interpreted"] == len(ok)
     assert counts["with_errors"] == sum(1 for e in audit.errors if e)
-    for code in interpret.DISORDER_CODES:
+    for code in blood_gas.DISORDER_CODES:
         want = sum(1 for i in ok if code in (audit.value("disorders", i) or "").split())
         assert counts["disorders"].get(code, 0) == want
     want = sum(1 for i in ok if "niv_criteria_met" in audit.findings(i))

@@ -21,7 +21,7 @@ from pathlib import Path
 import pytest
 from messy_export import make_export
 
-from tidewell import batch, cells, episodes
+from tidewell.frontends import batch, cells, episodes
 
 NIV_PH, NIV_PCO2_KPA, HYPERCAPNIA_KPA = 7.35, 6.5, 6.0  # bts_ics2016; bts2017_o2
 PH_CHANGE = 0.03  # reference_change_value: 1.96 x sqrt(2) x 0.01 analyser SD, used as 0.03

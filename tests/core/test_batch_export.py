@@ -17,7 +17,8 @@ from pathlib import Path
 import pytest
 from messy_export import make_export
 
-from tidewell import batch, bridge, cells, units
+from tidewell import bridge, units
+from tidewell.frontends import batch, cells
 
 
 def q(value, unit):

@@ -15,8 +15,8 @@ import sys
 import pytest
 
 from casebook import close, load_cases
-from tidewell.altitude import altitude_at_pressure_isa
 from tidewell.bridge import handle, handle_obj
+from tidewell.formulas.altitude import altitude_at_pressure_isa
 
 CASES = load_cases()
 
@@ -250,7 +250,12 @@ def test_oxygen_content_errors(inputs, field, code):
 
 
 def test_importing_breathing_does_not_import_numpy():
-    code = "import sys, tidewell.breathing, tidewell.bridge; print('numpy' in sys.modules)"
+    code = (
+        "import sys, tidewell.bridge, tidewell.calculations.alveolar_gas, "
+        "tidewell.calculations.oxygen_content, tidewell.calculations.oxygen_dissociation_curve, "
+        "tidewell.calculations.ventilation, tidewell.calculations.temperature_correction; "
+        "print('numpy' in sys.modules)"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 

@@ -94,7 +94,7 @@ def text_of(path: Path) -> str | None:
 
 
 def prose_of_python(text: str) -> list[tuple[int, str]]:
-    """(line, text) of the comments and strings of a Python file: code (``args.json``) is not prose.
+    """(line, text) of the comments and strings of a Python file: code (``response.json()``) is not prose.
 
     A string that is nothing but a file name is a file the code makes or reads at run time, not a citation.
     """
@@ -195,7 +195,7 @@ def test_the_scan_catches_what_it_should():
         f"# {page}.md 4.4 caveat",
         f"# ({page} 12a)",
         "# the " + "CONT" + "RACT `blood_gas` outputs",
-        "# " + "STY" + "LE.md section 8",
+        "# " + "STY" + "LE" + ".md section 8",
         "path = ROOT / '..' / '" + "sha" + "red' / 'cases.json'",
         "see ../" + "sha" + "red/cases.json",
     ]

@@ -1,4 +1,4 @@
-"""The command line (tidewell.cli): text and JSON answers, exit codes, messages for bad input.
+"""The command line (tidewell.frontends.cli): text and JSON answers, exit codes, messages for bad input.
 
 Run both in-process (``cli.main([...])``) and as a real process (``python -m tidewell``). The numbers are the
 bridge's (checked against their sources in the other test files); here what is checked is that the command
@@ -14,8 +14,8 @@ from pathlib import Path
 
 import pytest
 
-from tidewell import cli
 from tidewell.bridge import handle_obj
+from tidewell.frontends import cli
 
 # worked case AB-05 (tests/cases/reference_cases.json): COPD exacerbation, acute-on-chronic respiratory
 # acidosis meeting the BTS/ICS 2016 NIV thresholds
@@ -105,7 +105,7 @@ def test_flags_read_units_percentages_words_and_flags():
 
 
 def test_every_blood_gas_input_has_a_flag():
-    from tidewell.interpret import INPUT_KEYS
+    from tidewell.calculations.blood_gas import INPUT_KEYS
 
     assert set(cli.FLAG_OF) == set(INPUT_KEYS)
 
@@ -209,7 +209,7 @@ def test_internal_fault_exits_1(capsys, monkeypatch):
 def test_single_sample_without_how_sure_loads_no_numpy():
     code = (
         "import sys\n"
-        "from tidewell import cli\n"
+        "from tidewell.frontends import cli\n"
         "status = cli.main(['--ph', '7.24', '--pco2', '9.3kPa', '--no-how-sure'])\n"
         "assert status == 0 and 'numpy' not in sys.modules\n"
     )

@@ -3,7 +3,7 @@
 Each rule of docs/course.md on invented series, on both sides of every threshold: the reference change of pH
 (0.03) and of PCO2 (8 %), 60 minutes and 4 hours on NIV, 7.35 and 7.45. Expected values are computed here from
 the sources' formulas (the reference change value, the rate as change per hour, minutes between date-times),
-never from tidewell.course. What a single gas reads as (disorders, PaCO2 aim, SpO2 target) belongs to the
+never from calculations.course. What a single gas reads as (disorders, PaCO2 aim, SpO2 target) belongs to the
 blood_gas calculation: here it is checked that the course copies that reading, and a threshold that rests on
 the aim is set from the aim the blood_gas calculation gives for that gas.
 
@@ -18,8 +18,8 @@ import math
 
 import pytest
 
-from tidewell import course as course_module
 from tidewell.bridge import handle, handle_obj
+from tidewell.calculations import course as course_module
 from tidewell.references import REFERENCES
 
 # reference_change_value (Fraser, from memory): RCV = 1.96 x sqrt(2) x SD; analyser_imprecision (common

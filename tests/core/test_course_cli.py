@@ -1,4 +1,4 @@
-"""``tidewell course FILE.csv`` (tidewell.coursefile): the CSV read as a course request, text and JSON
+"""``tidewell course FILE.csv`` (frontends.coursefile): the CSV read as a course request, text and JSON
 answers, exit codes, and problems shown with their line in the file.
 
 The clinical rules are checked in test_course.py; here what is checked is that the command sends the request
@@ -14,9 +14,10 @@ from pathlib import Path
 
 import pytest
 
-from tidewell import cli
 from tidewell.bridge import handle_obj
-from tidewell.coursefile import event_words, read_course
+from tidewell.frontends import cli
+from tidewell.frontends.cells import event_words
+from tidewell.frontends.coursefile import read_course
 
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = ROOT / "docs" / "examples"

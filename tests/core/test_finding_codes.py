@@ -3,7 +3,7 @@
 The table (finding_requests.json beside this file) maps each code to a request that must emit it and a
 request (the nearest one found, of the same calculation where the calculation can go without it) that
 must not. Each runs through ``tidewell.bridge.handle_obj``. The meta-test lists every code the core can
-emit, from ``interpret.FINDING_ORDER`` and from the core's ``.finding(...)`` calls (f-string codes
+emit, from ``blood_gas.FINDING_ORDER`` and from the core's ``.finding(...)`` calls (f-string codes
 expanded), and fails when a code has no row: a new code needs its provoking request here.
 
 Two codes are emitted by every answer of their calculation (``spo2_target`` in ``blood_gas``,
@@ -19,15 +19,15 @@ from pathlib import Path
 
 import pytest
 
-from tidewell import interpret
 from tidewell.bridge import handle_obj
+from tidewell.calculations import blood_gas
 
 HERE = Path(__file__).resolve().parent
 CORE = HERE.parents[1] / "core" / "tidewell"
 TABLE: dict[str, dict] = json.loads((HERE / "finding_requests.json").read_text(encoding="utf-8"))
 
 #: f-string codes and what their placeholder takes: the Berlin bands a finding names (berlin2012; the band
-#: above the ARDS range has no finding, breathing.py)
+#: above the ARDS range has no finding, calculations/alveolar_gas.py)
 EXPANSIONS = {"pf_band_{band}": ("mild", "moderate", "severe")}
 #: codes every answer of a calculation carries
 ALWAYS = {"spo2_target": "blood_gas", "alpha_stat_ph_stat": "temperature_correction"}
@@ -38,8 +38,8 @@ _LITERAL = re.compile(r'\.finding\(\s*(f?)"([^"]+)"')
 
 def emitted_codes() -> set[str]:
     """Every code the core can emit: FINDING_ORDER plus the codes of every ``.finding(`` call."""
-    codes = set(interpret.FINDING_ORDER)
-    for path in sorted(CORE.glob("*.py")):
+    codes = set(blood_gas.FINDING_ORDER)
+    for path in sorted(CORE.rglob("*.py")):
         text = path.read_text(encoding="utf-8")
         calls = len(_CALL.findall(text))
         literal = _LITERAL.findall(text)

@@ -18,10 +18,10 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from conftest import assert_finite_everywhere
-from tidewell import altitude as alt
 from tidewell.bridge import handle_obj
 from tidewell.errors import ERROR_CODES
-from tidewell.oxygenation import alveolar_po2_full, alveolar_po2_simple
+from tidewell.formulas import altitude as alt
+from tidewell.formulas.oxygenation import alveolar_po2_full, alveolar_po2_simple
 from tidewell.units import FT_M, MMHG_PA
 
 KPA_PER_MMHG = MMHG_PA / 1000.0
@@ -751,7 +751,8 @@ def test_profile_below_cabin_altitude_is_said():
 def test_import_flight_is_numpy_free_and_profile_loads_numpy():
     code = "\n".join(
         [
-            "import sys, tidewell.flight, tidewell.altitude, tidewell.transport",
+            "import sys, tidewell.calculations.altitude, tidewell.calculations.altitude_profile, "
+            "tidewell.calculations.oxygen_supply, tidewell.formulas.altitude, tidewell.formulas.transport",
             "print('numpy' in sys.modules)",
             "from tidewell.bridge import handle_obj",
             f"handle_obj({{'calc': 'altitude', 'inputs': {ALT_BASE!r}}})",

@@ -13,8 +13,8 @@ import re
 
 import pytest
 
-from tidewell import cli
 from tidewell.bridge import handle_obj
+from tidewell.frontends import cli
 
 BASE = {"ph": 7.35, "pco2": {"value": 6.0, "unit": "kPa"}}
 
@@ -158,7 +158,7 @@ def vent(**inputs) -> dict:
     ("x", "step", "expected"), [(22.5, 1, 23), (22.49, 1, 22), (495, 10, 500), (494.9, 10, 490)]
 )
 def test_settings_round_halves_up_to_what_a_ventilator_takes(x, step, expected):
-    from tidewell.breathing import _whole
+    from tidewell.calculations.ventilation import _whole
 
     # common practice: a rate in whole breaths per minute, a tidal volume to 10 mL
     assert _whole(x, step) == expected

@@ -22,8 +22,28 @@ from tidewell.references import REFERENCES
 
 ROOT = Path(__file__).resolve().parents[2]
 TESTS = Path(__file__).resolve().parent
-DOMAIN_MODULES = ["units", "acidbase", "oxygenation", "ventilation", "temperature", "altitude", "transport"]
-CALC_MODULES = ["converter", "interpret", "breathing", "flight", "course"]
+DOMAIN_MODULES = [
+    "units",
+    "formulas.acidbase",
+    "formulas.oxygenation",
+    "formulas.ventilation",
+    "formulas.temperature",
+    "formulas.altitude",
+    "formulas.transport",
+]
+CALC_MODULES = [
+    "calculations.convert",
+    "calculations.blood_gas",
+    "calculations.alveolar_gas",
+    "calculations.oxygen_content",
+    "calculations.oxygen_dissociation_curve",
+    "calculations.ventilation",
+    "calculations.temperature_correction",
+    "calculations.altitude",
+    "calculations.altitude_profile",
+    "calculations.oxygen_supply",
+    "calculations.course",
+]
 
 
 def _importable(name: str):

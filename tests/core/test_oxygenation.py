@@ -16,9 +16,9 @@ from hypothesis import strategies as st
 
 import compare
 from casebook import close, load_cases
-from tidewell import oxygenation as ox
-from tidewell.altitude import pressure_at_altitude_isa
 from tidewell.errors import InputError
+from tidewell.formulas import oxygenation as ox
+from tidewell.formulas.altitude import pressure_at_altitude_isa
 
 CASES = load_cases()
 

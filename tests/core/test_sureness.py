@@ -1,4 +1,4 @@
-"""The ``uncertainty`` calculation (tidewell.sureness): seeded Monte Carlo over the measurement errors.
+"""The ``uncertainty`` calculation (calculations.uncertainty): seeded Monte Carlo over the measurement errors.
 
 Checks: reproducible with a seed; a sample far from every decision threshold gives probabilities near 1 and
 one sitting on a threshold near 0.5; the Monte Carlo agrees with the normal distribution and with first-order
@@ -15,8 +15,9 @@ import sys
 import pytest
 
 import compare
-from tidewell import interpret, sureness
 from tidewell.bridge import handle_obj
+from tidewell.calculations import blood_gas, uncertainty
+from tidewell.calculations.blood_gas import reading
 
 
 def q(value, unit):
@@ -65,8 +66,8 @@ def test_same_seed_same_answer_and_the_seed_matters():
 def test_default_seed_and_draws_are_stated_and_reproducible():
     a, b = ask(AB05), ask(AB05)
     assert a["outputs"] == b["outputs"]
-    assert a["outputs"]["draws"] == sureness.DEFAULT_DRAWS == 10_000
-    assert a["outputs"]["seed"] == sureness.DEFAULT_SEED
+    assert a["outputs"]["draws"] == uncertainty.DEFAULT_DRAWS == 10_000
+    assert a["outputs"]["seed"] == uncertainty.DEFAULT_SEED
     assert any(s["output"] == "draws" and "seeded" in s["formula"] for s in a["steps"])
 
 
@@ -183,7 +184,7 @@ def test_intervals_in_the_pressure_unit_asked_for():
 
 def test_probabilities_cover_every_code_and_chronicity():
     o = ask(AB05)["outputs"]
-    assert set(o["probabilities"]["disorders"]) == set(interpret.DISORDER_CODES)
+    assert set(o["probabilities"]["disorders"]) == set(blood_gas.DISORDER_CODES)
     assert set(o["probabilities"]["chronicity"]) == {"acute", "acute_on_chronic", "chronic"}
     point = handle_obj({"calc": "blood_gas", "inputs": AB05})
     assert {f["code"] for f in point["findings"]} <= set(o["probabilities"]["findings"])
@@ -259,9 +260,10 @@ def test_defaults_are_stated_with_their_source():
 
 
 def test_blood_gas_path_never_imports_numpy():
-    """import tidewell, tidewell.acidbase, tidewell.interpret and a whole blood_gas answer load no numpy."""
+    """import tidewell, its acid-base formulas and the blood_gas calculation, and an answer: no numpy."""
     code = (
-        "import sys, tidewell, tidewell.acidbase, tidewell.interpret, tidewell.arrays, tidewell.cli\n"
+        "import sys, tidewell, tidewell.formulas.acidbase, tidewell.calculations.blood_gas, tidewell.arrays\n"
+        "import tidewell.frontends.cli\n"
         "from tidewell.bridge import handle_obj\n"
         "r = handle_obj({'calc': 'blood_gas', 'inputs': {'ph': 7.24, 'pco2': {'value': 9.3, 'unit': 'kPa'}, "
         "'hco3': {'value': 29.7, 'unit': 'mmol/L'}, 'na': {'value': 140, 'unit': 'mmol/L'}, "
@@ -293,14 +295,14 @@ def test_every_draw_gets_the_scalar_alveolar_gas_and_a_a_limit():
     # compare.REL_SAME_ENGINE (numpy's kernels may differ from CPython's in the last place)
     import numpy as np
 
-    from tidewell import oxygenation
     from tidewell.fields import Inputs
+    from tidewell.formulas import oxygenation
 
     raw = {**AB05, "po2": q(7.1, "kPa"), "fio2": 0.28, "age": 71}
-    sample = interpret._Sample(Inputs(raw))
-    errors = {key: (kind, value, "default") for key, (kind, value) in sureness.DEFAULT_ERRORS.items()}
-    values, _ = sureness.draw_inputs(sample, errors, 500, 5)
-    _, cloud, _ = sureness.simulate(sample, errors, 500, 5)
+    sample = reading._Sample(Inputs(raw))
+    errors = {key: (kind, value, "default") for key, (kind, value) in uncertainty.DEFAULT_ERRORS.items()}
+    values, _ = uncertainty.draw_inputs(sample, errors, 500, 5)
+    _, cloud, _ = uncertainty.simulate(sample, errors, 500, 5)
     alveolar = [
         oxygenation.alveolar_po2_simple(fio2_fraction=f, paco2_mmhg=p, pb_mmhg=b, rq=r)
         for f, p, b, r in zip(

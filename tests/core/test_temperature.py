@@ -12,8 +12,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from casebook import close, load_cases
-from tidewell import temperature as tc
 from tidewell.errors import InputError
+from tidewell.formulas import temperature as tc
 
 CASES = load_cases()
 

@@ -22,8 +22,8 @@ from typing import Any
 import pytest
 
 from casebook import q
-from tidewell import acidbase as ab
 from tidewell.bridge import handle_obj
+from tidewell.formulas import acidbase as ab
 from tidewell.references import REFERENCES
 
 MMHG_PER_KPA = 1000.0 / 133.322387415  # bipm2019 (1 mmHg = 133.322387415 Pa)

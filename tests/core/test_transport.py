@@ -1,4 +1,4 @@
-"""tidewell.transport: cylinder contents, oxygen needed, minutes available (cases CY-*).
+"""tidewell.formulas.transport: cylinder contents, oxygen needed, minutes available (cases CY-*).
 
 Methods and sources: docs/methods.md#cylinder-contents.
 
@@ -13,8 +13,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from tidewell import transport
 from tidewell.errors import InputError
+from tidewell.formulas import transport
 from tidewell.units import PSI_PA
 
 #: oxygen compressibility factor at 15 degC (CoolProp reference equation of state, coolprop2014):

@@ -14,8 +14,8 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from casebook import close, load_cases
-from tidewell import ventilation as vn
 from tidewell.errors import InputError
+from tidewell.formulas import ventilation as vn
 
 # The alveolar ventilation constant written here from its definition, not imported from the module under
 # test: 760 mmHg x (310.15 K / 273.15 K) / 1000 mL/L converts VCO2 at STPD to VA at BTPS (derived;

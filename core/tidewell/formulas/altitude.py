@@ -31,7 +31,7 @@ Assumptions of the flight physiology (stated in every step that uses them):
   shunt behave differently when PAO2 falls, so the real PaO2 can be lower.
 - Water vapour 47 mmHg (37 degC, by convention), the value the alveolar gas equation uses.
 
-The alveolar gas equation is always that of :mod:`tidewell.oxygenation` (``inspired_po2``,
+The alveolar gas equation is always that of :mod:`tidewell.formulas.oxygenation` (``inspired_po2``,
 ``alveolar_po2_simple``, ``alveolar_po2_full``); functions that need one take it as the ``alveolar``
 argument (default: the simple form), so the same equation is used at the origin and at altitude.
 """
@@ -41,9 +41,9 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import NamedTuple
 
-from .errors import InputError, require_number
+from ..errors import InputError, require_number
+from ..units import FT_M, MMHG_PA
 from .oxygenation import PH2O_37_MMHG, alveolar_po2_simple, inspired_po2
-from .units import FT_M, MMHG_PA
 
 #: sea-level standard pressure [Pa] (ICAO Doc 7488; US Standard Atmosphere 1976)
 P0_PA = 101_325.0
@@ -56,7 +56,7 @@ G0 = 9.80665
 #: specific gas constant of dry air [J/(kg K)], close to R* / M = 8.31432 / 0.0289644 = 287.0531 (kept as
 #: first written: the 7e-7 relative difference changes PB by about 1e-4 mmHg at 8,000 ft)
 R_AIR = 287.05287
-#: exponent g0 / (R_air L) = 5.255880 (5.255876 with the 1976 R*; REFERENCE.md 10.1 quotes 5.255877)
+#: exponent g0 / (R_air L) = 5.255880 (5.255876 with the 1976 R*; ussa1976 lineage, 5.255877 also quoted)
 ISA_EXPONENT = G0 / (R_AIR * LAPSE_K_PER_M)
 #: top of the ISA troposphere [m, geopotential]
 TROPOPAUSE_M = 11_000.0
@@ -195,7 +195,7 @@ def alveolar_po2_at_altitude(
     rq : float
         Respiratory quotient. [1] Accepted 0.5-1.5.
     alveolar : callable
-        ``tidewell.oxygenation.alveolar_po2_simple`` (default) or ``alveolar_po2_full``.
+        ``tidewell.formulas.oxygenation.alveolar_po2_simple`` (default) or ``alveolar_po2_full``.
 
     Returns
     -------
@@ -210,7 +210,7 @@ def alveolar_po2_at_altitude(
     --------
     >>> round(alveolar_po2_at_altitude(fio2_fraction=0.21, paco2_mmhg=40.0, altitude_m=2438.4), 2)
     58.68
-    >>> from tidewell.oxygenation import alveolar_po2_full
+    >>> from tidewell.formulas.oxygenation import alveolar_po2_full
     >>> round(alveolar_po2_at_altitude(fio2_fraction=0.21, paco2_mmhg=40.0, altitude_m=2438.4,
     ...                                alveolar=alveolar_po2_full), 2)
     60.78
@@ -258,8 +258,8 @@ def fio2_at_altitude_water_corrected(
 
     References
     ----------
-    alveolar_gas_1946 (PIO2); the water-vapour-corrected ratio is common practice (REFERENCE.md 10.2,
-    13: the recommended default).
+    alveolar_gas_1946 (PIO2); the water-vapour-corrected ratio is common practice (fio2_altitude_rules:
+    the recommended default).
 
     Examples
     --------
@@ -295,7 +295,7 @@ def fio2_at_altitude_pb_ratio(
 
     References
     ----------
-    Common practice (REFERENCE.md 10.2).
+    fio2_altitude_rules (common practice).
 
     Examples
     --------
@@ -468,7 +468,7 @@ def fio2_for_alveolar_po2(
     Both forms of the alveolar gas equation are linear in FiO2, so the equation itself, evaluated
     at FiO2 0.5 and 1.0, gives the exact answer:
     FiO2 = 0.5 + 0.5 x (PAO2_wanted - PAO2(0.5)) / (PAO2(1.0) - PAO2(0.5)).
-    For the simple form this is (PAO2 + PaCO2 / R) / (PB - 47) (REFERENCE.md 10.2).
+    For the simple form this is (PAO2 + PaCO2 / R) / (PB - 47) (fio2_altitude_rules).
 
     Parameters
     ----------

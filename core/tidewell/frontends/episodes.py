@@ -9,7 +9,7 @@
 ==================  ==========================================================================================
 
 Each episode is read by the ``course`` calculation through the bridge (``tidewell.bridge.handle_obj``), its
-rows turned into samples by :func:`tidewell.coursefile.course_sample` (the batch's own row reader): nothing
+rows turned into samples by ``cells.course_sample`` (from the batch's own row reader): nothing
 about a gas or a course is decided here a second time. What this module adds is the audit's questions, asked
 of the course's answer:
 
@@ -25,7 +25,7 @@ of the course's answer:
 - gases on oxygen (FiO2 above 0.21) with an SpO2 above the top of the gas's own SpO2 target (BTS 2017).
 
 Memory: the gases wait in the SQLite file, not in memory; the episodes come back sorted by key and one is held
-at a time (at most :data:`tidewell.course.MAX_SAMPLES` + 1 of its gases; a longer episode is counted only).
+at a time (at most :data:`.course.MAX_SAMPLES` + 1 of its gases; a longer episode is counted only).
 """
 
 from __future__ import annotations
@@ -42,12 +42,11 @@ from collections import Counter
 from itertools import groupby
 from operator import itemgetter
 
-from .bridge import handle_obj
-from .cells import role_column
-from .course import MAX_SAMPLES, MIN_SAMPLES
-from .coursefile import course_sample
-from .fields import Inputs
-from .interpret import HYPERCAPNIA_MMHG
+from ..bridge import handle_obj
+from ..calculations.blood_gas import HYPERCAPNIA_MMHG
+from ..calculations.course import MAX_SAMPLES, MIN_SAMPLES
+from ..fields import Inputs
+from .cells import course_sample, role_column
 
 #: the columns of the episode file
 COLUMNS = (
@@ -89,7 +88,7 @@ class Collector:
     one episode at a time, sorted by key, its gases in file order.
     """
 
-    def __init__(self, header: list[str], site_default: str):
+    def __init__(self, header: list[str], site_default: str, read_row):
         roles = [role_column(h) for h in header]
         missing = [role for role in ("episode", "time") if role not in roles]
         if missing:
@@ -101,6 +100,7 @@ class Collector:
         self.episode, self.time = roles.index("episode"), roles.index("time")
         self.events = roles.index("events") if "events" in roles else None
         self.site_default = site_default
+        self.read_row = read_row  #: the batch's row reader: (table, i, site_default) -> inputs
         self.no_key = 0  #: rows without an episode key
         self._seq = 0
         self._dir = tempfile.TemporaryDirectory(prefix="tidewell-episodes-")
@@ -121,7 +121,8 @@ class Collector:
                 continue
             data = None
             if not errors[i]:
-                sample, given = course_sample(table, i, when, what, self.site_default)
+                row = self.read_row(table, i, site_default="")
+                sample, given = course_sample(row, when, what, self.site_default)
                 data = json.dumps([given, sample], separators=(",", ":"), ensure_ascii=False)
             rows.append((key, self._seq, table.line[i], data))
             self._seq += 1

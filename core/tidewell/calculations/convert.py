@@ -7,10 +7,10 @@
 
 from __future__ import annotations
 
-from . import units
-from .errors import InputError, InputErrors, is_real
-from .fields import Inputs
-from .report import Report
+from .. import units
+from ..errors import InputError, InputErrors, is_real
+from ..fields import Inputs
+from ..report import Report
 
 
 def convert(inputs: Inputs, report: Report) -> None:

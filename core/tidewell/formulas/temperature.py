@@ -17,14 +17,14 @@ PCO2 factor are inverted algebraically; the single-step PO2 form is inverted num
 (bisection on a strictly increasing map); the integrated PO2 form is the same differential equation
 integrated from T back to 37 degC.
 
-Eq 3 is read as k = 0.058 / (0.243 x (PO2/100)^3.88 + 1) + 0.013 (REFERENCE.md section 13).
+Eq 3 is read as k = 0.058 / (0.243 x (PO2/100)^3.88 + 1) + 0.013 (severinghaus1966).
 """
 
 from __future__ import annotations
 
 import math
 
-from .errors import require_number
+from ..errors import require_number
 
 #: log10 change in PCO2 per degC (instrument convention 0.019; Bradley 1956 gives 0.0185)
 PCO2_LOG10_PER_DEGC = 0.019

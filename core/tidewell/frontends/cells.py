@@ -8,6 +8,10 @@
 ``column_key``          the input key and unit a column header names: "pCO2 (kPa)" -> ("pco2", "kPa")
 ``site_word``           a sample site as written in an export ("ABG", "cap") -> arterial, venous, capillary
 ``role_column``         the course columns a header names: "Taken at" -> "time", "Episode ID" -> "episode"
+``event_words``         an events cell -> its event words (``niv started | oxygen-increased`` -> two words)
+``time_value``          a time cell as a course request carries it (minutes, or the date-time text)
+``course_sample``       a row's blood_gas inputs, time and events -> one sample of a course request (the
+                        one place a row becomes a sample: ``tidewell course`` and ``batch --episodes``)
 ======================  ================================================================================
 
 The spellings accepted here are Tidewell's own list (docs/cli.md), written from the names the trade uses
@@ -20,7 +24,7 @@ from __future__ import annotations
 import math
 import re
 
-from . import units
+from .. import units
 
 #: cell or flag texts that mean "not given"
 EMPTY = frozenset({"", "na", "n/a", "null", "none", "nan", "-"})
@@ -113,7 +117,7 @@ _KINDS: dict[str, str] = {}
 def kinds() -> dict[str, str]:
     """input key -> how the blood_gas reader reads it (interpret.FIELDS), looked up once."""
     if not _KINDS:
-        from .interpret import FIELDS
+        from ..calculations.blood_gas import FIELDS
 
         _KINDS.update({f.key: f.kind for f in FIELDS})
     return _KINDS
@@ -336,3 +340,49 @@ def role_column(header: str) -> str | None:
     ('episode', 'time', 'events', None)
     """
     return _ROLES.get(_fold_name(header))
+
+
+# -- course rows ---------------------------------------------------------------------------------------------
+
+_SEPARATORS = re.compile(r"[|;]")
+
+
+def event_words(cell: str | None) -> list[str]:
+    """The event words of an events cell (unknown words are kept: the bridge names them).
+
+    >>> event_words("niv started | Oxygen-Decreased"), event_words(""), event_words("intubated;")
+    (['niv_started', 'oxygen_decreased'], [], ['intubated'])
+    """
+    if not cell:
+        return []
+    words = []
+    for part in _SEPARATORS.split(cell):
+        word = "_".join(part.strip().casefold().replace("-", " ").split())
+        if word:
+            words.append(word)
+    return words
+
+
+def time_value(cell: str):
+    """A time cell as the request carries it: a number of minutes, else the text (None when empty)."""
+    text = cell.strip()
+    if not text:
+        return None
+    try:
+        return float(text) if "." in text or "e" in text.casefold() else int(text)
+    except ValueError:
+        return text
+
+
+def course_sample(inputs: dict, time_cell: str, events_cell: str, site_default: str) -> tuple[dict, bool]:
+    """(a row as one sample of a course request, whether the row gave its site): ``inputs`` are the row's
+    blood_gas inputs as the batch's reader gives them (``batch.row_inputs(table, i, site_default="")``), with
+    its time and its event words; a row without a site is read as ``site_default``."""
+    site_given = bool(inputs.get("sample"))
+    if not site_given:
+        inputs["sample"] = site_default
+    sample = {"time": time_value(time_cell), "inputs": inputs}
+    words = event_words(events_cell)
+    if words:
+        sample["events"] = words
+    return sample, site_given

@@ -1,18 +1,18 @@
 """The ``uncertainty`` calculation: how sure a blood-gas reading is, given the measurement error of inputs.
 
 =====================  ===================================================================================
-``uncertainty``        bridge calculation (CONTRACT.md ``uncertainty``): a blood_gas ``sample``, per-input
+``uncertainty``        bridge calculation (docs/bridge.md ``uncertainty``): a blood_gas ``sample``, per-input
                        ``errors``, ``draws`` and ``seed`` -> the probability of each disorder code, each
                        chronicity and each finding, and 95 % intervals of the derived numbers
 ``DEFAULT_ERRORS``     the default measurement error (1 SD or CV) of each measured input, with its source
-``draw_inputs``        Monte Carlo draws of one read sample: arrays for :func:`tidewell.interpret.decide`
+``draw_inputs``        Monte Carlo draws of one read sample: arrays for :func:`calculations.blood_gas.decide`
 ``simulate``           a read sample and its errors -> (the point Decision, the Decision of all draws)
 =====================  ===================================================================================
 
 Method (JCGM 101:2008, the Monte Carlo supplement to the GUM): each measured input is drawn ``draws`` times
 from a normal distribution centred on the value entered, with its standard deviation (given as an SD in the
 input's unit, or as a CV times the value); each draw is limited to the range the blood_gas reader accepts.
-Every draw is interpreted by :func:`tidewell.interpret.decide`, the very function the blood_gas report is
+Every draw is interpreted by :func:`calculations.blood_gas.decide`, the very function the blood_gas report is
 written from, so a probability here is the share of draws in which the report would say the same. The 95 %
 interval of a number is the 2.5th to 97.5th percentile of its draws. The draws are seeded: the same request
 gives the same answer, and each input has its own stream (adding an error for one input does not change the
@@ -34,12 +34,14 @@ import math
 
 import numpy as np
 
-from . import acidbase as ab
-from . import interpret, units
-from .arrays import given
-from .errors import InputError, InputErrors
-from .fields import Inputs
-from .report import Report
+from .. import units
+from ..arrays import given
+from ..errors import InputError, InputErrors
+from ..fields import Inputs
+from ..formulas import acidbase as ab
+from ..report import Report
+from . import blood_gas
+from .blood_gas import reading
 
 #: input key -> ("sd" or "cv", value; SD in the reader's internal unit) for the measured inputs with a
 #: default (REFERENCES["analyser_imprecision"], common practice)
@@ -66,9 +68,9 @@ DEFAULT_ERRORS: dict[str, tuple[str, float]] = {
 #: measured inputs without a default error (0 unless an error is sent): the reported HCO3 and base excess
 #: follow the drawn pH and PCO2; FiO2, the barometric pressure and the usual PaCO2 are taken as given
 NO_DEFAULT = ("hco3", "base_excess", "fio2", "pb", "baseline_pco2")
-MEASURED = tuple(f.key for f in interpret.FIELDS if f.key in DEFAULT_ERRORS or f.key in NO_DEFAULT)
+MEASURED = tuple(f.key for f in blood_gas.FIELDS if f.key in DEFAULT_ERRORS or f.key in NO_DEFAULT)
 #: blood_gas inputs that are settings or facts, not measurements: they take no error
-SETTINGS = tuple(f.key for f in interpret.FIELDS if f.key not in MEASURED)
+SETTINGS = tuple(f.key for f in blood_gas.FIELDS if f.key not in MEASURED)
 
 DEFAULT_DRAWS = 10_000
 DRAWS_RANGE = (100, 100_000)
@@ -95,7 +97,7 @@ _INTERVALS = (
     ("pco2_target", "pco2_target", "pressure"),
 )
 CHRONICITIES = ("acute", "acute_on_chronic", "chronic")
-_LABELS = {f.key: f.options.get("label", f.key) for f in interpret.FIELDS} | {"ph": "pH"}
+_LABELS = {f.key: f.options.get("label", f.key) for f in blood_gas.FIELDS} | {"ph": "pH"}
 #: the findings that change care, named in the "how sure" summary when they are unsettled
 KEY_FINDINGS = (
     "inconsistent_triple",
@@ -129,7 +131,7 @@ KEY_FINDINGS = (
 
 
 def _internal_unit(key: str) -> str | None:
-    f = next(f for f in interpret.FIELDS if f.key == key)
+    f = next(f for f in blood_gas.FIELDS if f.key == key)
     if f.kind == "quantity":
         return f.options["unit"]
     if f.kind == "concentration":
@@ -138,7 +140,7 @@ def _internal_unit(key: str) -> str | None:
 
 
 def _substance(key: str) -> str | None:
-    f = next(f for f in interpret.FIELDS if f.key == key)
+    f = next(f for f in blood_gas.FIELDS if f.key == key)
     return (
         f.options.get("substance") if f.kind == "quantity" else (key if f.kind == "concentration" else None)
     )
@@ -242,18 +244,18 @@ def sd_of(key: str, kind: str, value: float, point: float) -> float:
 
 
 def draw_inputs(sample, errors: dict[str, tuple[str, float, str]], draws: int, seed: int):
-    """The values of ``draws`` draws of ``sample`` (a read blood_gas sample) for interpret.decide.
+    """The values of ``draws`` draws of ``sample`` (a read blood_gas sample) for blood_gas.decide.
 
     Returns (values namespace of arrays, {key: SD used}). ``errors`` holds the errors to apply (defaults
     already merged): input key -> (kind, value, origin).
     """
     point = sample.values()
-    v = {name: np.full(draws, getattr(point, name), dtype=float) for name in interpret.NUMERIC_FIELDS}
+    v = {name: np.full(draws, getattr(point, name), dtype=float) for name in blood_gas.NUMERIC_FIELDS}
     used: dict[str, float] = {}
-    attr_of = {f.key: f.attr for f in interpret.FIELDS}
+    attr_of = {f.key: f.attr for f in blood_gas.FIELDS}
     attr_of["urea"] = attr_of["bun"] = "urea"
-    bounds = {f.key: (f.options.get("low"), f.options.get("high")) for f in interpret.FIELDS}
-    for index, f in enumerate(interpret.FIELDS):
+    bounds = {f.key: (f.options.get("low"), f.options.get("high")) for f in blood_gas.FIELDS}
+    for index, f in enumerate(blood_gas.FIELDS):
         key = f.key
         if key not in errors:
             continue
@@ -296,10 +298,10 @@ def draw_inputs(sample, errors: dict[str, tuple[str, float, str]], draws: int, s
 
 def simulate(sample, errors, draws: int, seed: int):
     """(point Decision, Decision of the draws, SDs used) for a read sample."""
-    point = interpret.decide(sample.values())
+    point = blood_gas.decide(sample.values())
     values, used = draw_inputs(sample, errors, draws, seed)
     with np.errstate(all="ignore"):
-        cloud = interpret.decide(values)
+        cloud = blood_gas.decide(values)
     return point, cloud, used
 
 
@@ -317,14 +319,14 @@ def _reading_key(d, n: int | None = None):
     """The reading (disorders in order, with the respiratory chronicity) as one integer per draw."""
     if n is None:
         key = _CHRONICITY_INDEX[d.chronicity] * 5**4
-        for i, code in enumerate(interpret.DISORDER_CODES):
+        for i, code in enumerate(blood_gas.DISORDER_CODES):
             key += (d.stage[code] + 1 if d.has[code] else 0) * 5**i
         return key
     chron = np.broadcast_to(np.asarray(d.chronicity), (n,))
     key = np.zeros(n, dtype=np.int64)
     for word, index in _CHRONICITY_INDEX.items():
         key += np.where(chron == word, index * 5**4, 0)
-    for i, code in enumerate(interpret.DISORDER_CODES):
+    for i, code in enumerate(blood_gas.DISORDER_CODES):
         has = np.broadcast_to(np.asarray(d.has[code], dtype=bool), (n,))
         stage = np.broadcast_to(np.asarray(d.stage[code]), (n,))
         key += np.where(has, stage + 1, 0) * 5**i
@@ -332,7 +334,7 @@ def _reading_key(d, n: int | None = None):
 
 
 def uncertainty(inputs: Inputs, report: Report) -> None:
-    """How sure is a blood-gas reading (CONTRACT.md ``uncertainty``); see the module docstring."""
+    """How sure is a blood-gas reading (docs/bridge.md ``uncertainty``); see the module docstring."""
     problems: list[InputError] = []
     sample_raw = inputs.mapping("sample", label="sample", required=True)
     errors_raw = inputs.mapping("errors", label="errors")
@@ -350,7 +352,7 @@ def uncertainty(inputs: Inputs, report: Report) -> None:
     sample = None
     if sample_raw is not None:
         try:
-            sample = interpret._Sample(
+            sample = reading._Sample(
                 Inputs(sample_raw, prefix="inputs.sample"), pressure_unit=report.pressure_unit
             )
         except InputErrors as exc:
@@ -368,17 +370,17 @@ def uncertainty(inputs: Inputs, report: Report) -> None:
 def _report(report, sample, point, cloud, used, errors, given_errors, errors_raw, draws, seed) -> None:
     r, n = report, draws
     # -- probabilities --------------------------------------------------------------------------------------
-    disorders = {code: _mean(cloud.has[code], n) for code in interpret.DISORDER_CODES}
+    disorders = {code: _mean(cloud.has[code], n) for code in blood_gas.DISORDER_CODES}
     chron = np.broadcast_to(np.asarray(cloud.chronicity), (n,))
     chronicity = {word: _mean(chron == word, n) for word in CHRONICITIES}
-    point_codes = set(interpret.findings(point))
+    point_codes = set(blood_gas.findings(point))
     findings = {}
-    for code in interpret.FINDING_ORDER:
+    for code in blood_gas.FINDING_ORDER:
         p = _mean(cloud.finding[code], n)
         if p > 0.0 or code in point_codes:
             findings[code] = p
     primary = np.broadcast_to(np.asarray(cloud.primary), (n,))
-    by_primary = {code: _mean(primary == code, n) for code in interpret.DISORDER_CODES}
+    by_primary = {code: _mean(primary == code, n) for code in blood_gas.DISORDER_CODES}
     by_primary["none"] = _mean(primary == "", n)
 
     def words(values, choices):
@@ -395,7 +397,7 @@ def _report(report, sample, point, cloud, used, errors, given_errors, errors_raw
     if point.rf_given:
         probabilities["respiratory_failure"] = words(cloud.respiratory_failure, ("none", "type_1", "type_2"))
     same = _mean(_reading_key(cloud, n) == _reading_key(point), n)
-    point_list = interpret.disorders(point)
+    point_list = blood_gas.disorders(point)
     r.put("probabilities", probabilities, decimals=3)
     r.put(
         "reading",

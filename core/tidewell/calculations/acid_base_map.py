@@ -16,7 +16,8 @@ Pressures are returned in the unit asked for. Standard library only: no numpy.
 
 from __future__ import annotations
 
-from . import acidbase, units
+from .. import units
+from ..formulas import acidbase
 
 #: the fixed axes of the picture, so that every sample is seen on the same familiar plane
 PCO2_AXIS_MMHG = (10.0, 110.0)

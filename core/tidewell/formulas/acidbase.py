@@ -72,13 +72,13 @@ Stewart (physicochemical) approach
 ``base_excess_partition_story2004``          Na-Cl (Na - Cl - 38), albumin, rest including lactate
 ===========================================  =================================================================
 
-Conventions (REFERENCE.md sections 2-6 and 13): pK' 6.1 with CO2 solubility 0.0307 mmol/L/mmHg; normal
+Conventions (henderson1908; nccls1994): pK' 6.1 with CO2 solubility 0.0307 mmol/L/mmHg; normal
 anchors PaCO2 40 mmHg, HCO3 24 mmol/L, pH 7.40, anion gap 12 mmol/L, albumin 4.0 g/dL (user-settable).
 Pressures are mmHg. Every rule is an empirical adult rule: none is validated for neonates, pregnancy or
 non-steady states. Functions validate their arguments with ``require_number`` (``InputError``) and never
 return NaN.
 
-The linear pH rules for respiratory acidosis drift at large rises in PaCO2 (REFERENCE.md 4.4): for PaCO2
+The linear pH rules for respiratory acidosis drift at large rises in PaCO2 (berend2014): for PaCO2
 80 mmHg with acute buffering (HCO3 28) Henderson-Hasselbalch gives pH 7.157 where 7.40 - 0.008 x 40 gives
 7.08. Above a rise of about 30 mmHg the HCO3 rules (or the pH computed from the expected HCO3) are the ones to
 trust; ``fraction_acute_ph`` says so in its Notes and the blood_gas report says so in a finding.
@@ -89,16 +89,16 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
-from .arrays import NAN, div, log10, maximum, minimum, where
-from .errors import InputError, require_number
+from ..arrays import NAN, div, log10, maximum, minimum, where
+from ..errors import InputError, require_number
 
-#: apparent pK of the CO2/HCO3 system in plasma at 37 degC (REFERENCE.md section 13 default)
+#: apparent pK of the CO2/HCO3 system in plasma at 37 degC (henderson1908; nccls1994)
 PK_PRIME = 6.1
 #: CO2 solubility in plasma at 37 degC [mmol/L per mmHg] (NCCLS/Siggaard-Andersen lineage)
 CO2_SOLUBILITY = 0.0307
 #: Kassirer-Bleich constant [nmol/L x mmol/L per mmHg]; 10^-6.1 x 0.0307 x 1e9 = 24.39, rounded to 24
 KASSIRER_BLEICH_K = 24.0
-#: normal anchors (REFERENCE.md conventions)
+#: normal anchors (acid_base_normal_ranges)
 NORMAL_PCO2_MMHG = 40.0
 NORMAL_HCO3_MMOL_L = 24.0
 NORMAL_PH = 7.40
@@ -107,7 +107,7 @@ NORMAL_ALBUMIN_G_DL = 4.0
 #: band for the consistency check [pH units] (common practice)
 CONSISTENCY_BAND_PH = 0.03
 
-# accepted ranges (REFERENCE.md "valid input", widened where a derived value may legitimately lie outside)
+# accepted ranges (widened where a derived value may legitimately lie outside)
 _PH = (6.5, 8.0)
 _PCO2 = (1.0, 300.0)
 _HCO3 = (0.5, 80.0)
@@ -195,7 +195,7 @@ def ph_henderson_hasselbalch(*, hco3_mmol_l: float, pco2_mmhg: float) -> float:
     Notes
     -----
     pK' drifts with temperature and at extreme pH; outside pH 6.9-7.7 expect errors of a few hundredths.
-    The normal triple 7.40/40/24 gives 7.391 with these constants (REFERENCE.md section 2).
+    The normal triple 7.40/40/24 gives 7.391 with these constants (henderson1908; nccls1994).
 
     References
     ----------
@@ -703,7 +703,7 @@ def expected_hco3_respiratory_acidosis(*, paco2_mmhg: float) -> RespiratoryExpec
 
     Notes
     -----
-    Defaults of REFERENCE.md section 13: acute 1 (Narins & Emmett; Brandis), chronic 3.5 (Narins & Emmett
+    Tidewell's defaults: acute 1 (Narins & Emmett; Brandis), chronic 3.5 (Narins & Emmett
     1980; Berend 2014; Kidney360 2022). The band shows the disagreement: chronic 3 (some texts), 4 (Brandis),
     about 5 (Martinu 2003, stable COPD).
 
@@ -769,7 +769,7 @@ def expected_ph_respiratory_acidosis(*, paco2_mmhg: float) -> PhRules:
     Notes
     -----
     The rules drift at large rises: for PaCO2 80 the acute rule gives 7.08, whereas Henderson-Hasselbalch with
-    the acute HCO3 (28) gives 7.157. Above a rise of about 30 mmHg prefer the HCO3 rules (REFERENCE.md 4.4).
+    the acute HCO3 (28) gives 7.157. Above a rise of about 30 mmHg prefer the HCO3 rules (berend2014).
 
     References
     ----------

@@ -24,7 +24,7 @@
 ``K_CO2``                               0.863 (760 x 310.15 / 273.15 / 1000)
 ======================================  ===========================================================
 
-Decisions (REFERENCE.md sections 8 and 13; each also stated in the calculation's steps):
+Decisions (each also stated in the calculation's steps, with its references.py key):
 
 - ``K_CO2`` is the exact STPD -> BTPS constant 0.86295 (the textbook 0.863 rounded); it does not
   depend on barometric pressure.
@@ -43,7 +43,7 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
-from .errors import InputError, require_number
+from ..errors import InputError, require_number
 
 #: PaCO2 [mmHg] = K_CO2 x VCO2 [mL/min STPD] / VA [L/min BTPS]: 760 x (310.15 / 273.15) / 1000
 K_CO2 = 760.0 * 310.15 / 273.15 / 1000.0

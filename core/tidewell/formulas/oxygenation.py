@@ -27,7 +27,7 @@
 ``oxygen_delivery``                        DO2 = CaO2 x cardiac output x 10 [mL/min]
 =========================================  ==========================================================
 
-Decisions where the sources leave a choice (REFERENCE.md sections 7 and 13):
+Decisions where the sources leave a choice (each names its references.py key below):
 
 - Water vapour: 47 mmHg by convention at 37 degC (``PH2O_37_MMHG``); at any other stated temperature,
   Buck 1981 eq 3 over liquid water (47.1 mmHg at 37 degC). The calculations use 47 when no
@@ -48,8 +48,8 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
-from .arrays import elementwise, require
-from .errors import InputError, require_number
+from ..arrays import elementwise, require
+from ..errors import InputError, require_number
 
 #: water vapour pressure at 37 degC used by convention [mmHg]
 PH2O_37_MMHG = 47.0

@@ -6,7 +6,7 @@
 ``Reader``                  a CSV stream -> its ``Layout`` (header, units, dialect) and one ``Table`` per
                             chunk of :data:`CHUNK` rows
 ``read_table``              CSV text -> one ``Table``: input columns (named by the contract's input keys or
-                            the names of :mod:`tidewell.cells`, units in a ``pco2[kPa]`` or ``pCO2 (kPa)``
+                            the names of :mod:`frontends.cells`, units in a ``pco2[kPa]`` or ``pCO2 (kPa)``
                             header, a units row, or in the cell: ``9.3 kPa``) and the other columns
 ``interpret_table``         every row of a ``Table`` -> ``Audit`` (outputs, findings, errors, notes per row)
 ``row_inputs``              one row as the ``inputs`` of a blood_gas request (what the bridge would be sent)
@@ -16,15 +16,15 @@
 ==========================  ==============================================================================
 
 One implementation of each rule: a row is read with the blood_gas reader's own field table
-(:data:`tidewell.interpret.FIELDS`: units, ranges, defaults) and its cross-field checks, and interpreted by
-:func:`tidewell.interpret.decide`, the function the scalar report is written from. The batch path only runs
+(:data:`.blood_gas.FIELDS`: units, ranges, defaults) and its cross-field checks, and interpreted by
+:func:`.blood_gas.decide`, the function the scalar report is written from. The batch path only runs
 them on arrays. Rows the array reader cannot pass as plainly valid (any doubt at all: a bad cell, a value
 out of range, a unit that needs a guess, a cross-field conflict) are read by the scalar reader itself, which
 either accepts them or gives the bridge's own error messages; a row's errors go in its ``error`` column and
 the batch goes on. tests/core/test_batch.py checks on thousands of generated rows that every row equals the
 scalar bridge's answer for the same inputs.
 
-Cells (:mod:`tidewell.cells`): empty, ``NA``, ``N/A``, ``null``, ``none``, ``nan`` and ``-`` mean "not given";
+Cells (:mod:`.cells`): empty, ``NA``, ``N/A``, ``null``, ``none``, ``nan`` and ``-`` mean "not given";
 a decimal comma is read in a file not separated by commas. Units are matched ignoring case (``kpa`` is kPa;
 ``C`` and ``°C`` are degC). ``hypercapnia_risk`` is true/false, yes/no, y/n or 1/0. FiO2 and SpO2 may be
 written ``28%``. A site not given is read as :data:`SITE_NOT_GIVEN`; an optional cell that cannot be read is
@@ -51,8 +51,12 @@ from types import SimpleNamespace
 
 import numpy as np
 
-from . import interpret, units
-from .arrays import each
+from .. import units
+from ..arrays import each
+from ..calculations import blood_gas
+from ..calculations.blood_gas import reading
+from ..errors import InputErrors
+from ..fields import Inputs
 from .cells import (
     ABSENT,
     BAD,
@@ -68,10 +72,8 @@ from .cells import (
     typed_value,
 )
 from .cells import censored as censored_cell
-from .errors import InputErrors
-from .fields import Inputs
 
-FIELDS = {f.key: f for f in interpret.FIELDS}
+FIELDS = {f.key: f for f in blood_gas.FIELDS}
 #: rows interpreted at a time (the progress bar moves per chunk)
 CHUNK = 10_000
 _ABSENT, _OK, _BAD = ABSENT, NUMBER, BAD
@@ -607,7 +609,7 @@ SITE_NOTE = f"site not given: read as {SITE_NOT_GIVEN} (no oxygenation outputs, 
 
 
 def choice_word(key: str, text: str) -> str:
-    """The word a choice cell gives (a sample site through :func:`tidewell.cells.site_word`)."""
+    """The word a choice cell gives (a sample site through :func:`tidewell.frontends.cells.site_word`)."""
     return site_word(text) if key == "sample" else text.strip().casefold()
 
 
@@ -671,7 +673,7 @@ def _read_arrays(table: Table, rows: np.ndarray):
     ok = np.ones(n, dtype=bool)
     v = SimpleNamespace()
     unit_of = {}
-    for f in interpret.FIELDS:
+    for f in blood_gas.FIELDS:
         column = table.columns.get(f.key)
         o = f.options
         if column is None:
@@ -744,21 +746,21 @@ def _read_arrays(table: Table, rows: np.ndarray):
     # cross-field checks (interpret's own functions, on arrays)
     urea_given, bun = v.urea_given, v.bun
     both = ~np.isnan(urea_given) & ~np.isnan(bun)
-    ok &= ~(both & interpret.urea_bun_disagree(urea_given, bun))
+    ok &= ~(both & reading.urea_bun_disagree(urea_given, bun))
     v.urea = np.where(np.isnan(urea_given), bun, urea_given)
-    ok &= interpret.implied_hco3_survivable(interpret.implied_hco3(v.ph, v.pco2))
+    ok &= reading.implied_hco3_survivable(reading.implied_hco3(v.ph, v.pco2))
     has_pb, has_alt = ~np.isnan(v.pb), ~np.isnan(v.altitude)
     isa = each(
-        lambda altitude_m: interpret.pb_value(None, altitude_m),
+        lambda altitude_m: reading.pb_value(None, altitude_m),
         ok & ~has_pb & has_alt,
         altitude_m=v.altitude,
     )
     v.pb_value = np.where(has_pb, v.pb, np.where(has_alt, isa, 760.0))
-    pio2 = interpret.inspired_po2(v.fio2, v.pb_value)
+    pio2 = reading.inspired_po2(v.fio2, v.pb_value)
     oxygen = ~np.isnan(v.po2) & (v.site != "venous") & v.fio2_given
-    ok &= ~(oxygen & interpret.po2_above_inspired(v.po2, pio2))
-    ok &= ~(oxygen & interpret.no_alveolar_oxygen(pio2, v.pco2, v.rq))
-    flags = interpret.mix_up_flags(
+    ok &= ~(oxygen & reading.po2_above_inspired(v.po2, pio2))
+    ok &= ~(oxygen & reading.no_alveolar_oxygen(pio2, v.pco2, v.rq))
+    flags = reading.mix_up_flags(
         ph=v.ph,
         hco3=v.hco3,
         pco2=v.pco2,
@@ -773,7 +775,7 @@ def _read_arrays(table: Table, rows: np.ndarray):
     )
     v.mix_up = np.logical_or.reduce(list(flags.values()))
     v.unusual = np.logical_or.reduce(
-        list(interpret.unusual_flags(glucose=v.glucose, urea=v.urea, lactate=v.lactate).values())
+        list(reading.unusual_flags(glucose=v.glucose, urea=v.urea, lactate=v.lactate).values())
     )
     v.pb_and_altitude = has_pb & has_alt
     return v, ok
@@ -894,7 +896,7 @@ def interpret_rows(table: Table, rows: np.ndarray, pressure_unit: str = "mmHg") 
             continue
         raw = row_inputs(table, int(rows[j]))
         try:
-            s = interpret._Sample(Inputs(raw), pressure_unit=pressure_unit)
+            s = reading._Sample(Inputs(raw), pressure_unit=pressure_unit)
         except InputErrors as exc:
             errors[j] = [_csv_message(e.as_entry()["message"]) for e in exc.errors]
             error_kinds[j] = list(dict.fromkeys(_error_kind(e) for e in exc.errors))
@@ -912,7 +914,7 @@ def interpret_rows(table: Table, rows: np.ndarray, pressure_unit: str = "mmHg") 
     present = {name: np.zeros(n, dtype=bool) for name in OUTPUT_NAMES}
     if len(idx):
         with np.errstate(all="ignore"):
-            d = interpret.decide(x)
+            d = blood_gas.decide(x)
         _outputs(d, x, idx, values, present, pressure_unit)
     sites = np.where(site_given, np.asarray(v.site, dtype=object), NOT_GIVEN)
     notes, note_kinds = _notes(table, rows, site_given)
@@ -972,7 +974,7 @@ def _notes(table: Table, rows: np.ndarray, site_given: np.ndarray) -> tuple[list
         for j in np.flatnonzero(unread).tolist():
             text = column.cells[int(rows[j])].strip()
             if key == "sample":
-                close = difflib.get_close_matches(text.casefold(), interpret.SITES, n=1, cutoff=0.6)
+                close = difflib.get_close_matches(text.casefold(), blood_gas.SITES, n=1, cutoff=0.6)
                 hint = f" (did you mean '{close[0]}'?)" if close else ""
                 notes[j].append(f"sample '{text}' not read{hint}")
                 kinds[j].append("sample site not read")
@@ -1015,12 +1017,12 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("primary_disorder", d.primary, arr(d.primary) != "")
     # the disorders in the order the report names them (by stage), one text per combination
     key = np.zeros(m, dtype=np.int64)
-    for i, code in enumerate(interpret.DISORDER_CODES):
+    for i, code in enumerate(blood_gas.DISORDER_CODES):
         key += np.where(arr(d.has[code], bool), arr(d.stage[code]) + 1, 0) * 5**i
     combos, which = np.unique(key, return_inverse=True)
     texts = []
     for combo in combos.tolist():
-        stages = {code: (combo // 5**i) % 5 for i, code in enumerate(interpret.DISORDER_CODES)}
+        stages = {code: (combo // 5**i) % 5 for i, code in enumerate(blood_gas.DISORDER_CODES)}
         texts.append(" ".join(sorted((c for c in stages if stages[c]), key=lambda c: stages[c])))
     put("disorders", np.array(texts, dtype=object)[which.reshape(-1)])
     respiratory = arr(d.chronicity) != ""
@@ -1029,7 +1031,7 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("hco3", d.hco3_out)
     put("hco3_computed", d.hco3_computed)
     put("standard_base_excess", d.sbe)
-    metabolic = (arr(d.primary) == interpret.MET_ACID) | (arr(d.primary) == interpret.MET_ALK)
+    metabolic = (arr(d.primary) == blood_gas.MET_ACID) | (arr(d.primary) == blood_gas.MET_ALK)
     put("expected_pco2_low", pressure(d.met_expected.low), metabolic)
     put("expected_pco2_high", pressure(d.met_expected.high), metabolic)
     put("anion_gap", d.anion_gap, d.has_gap)
@@ -1053,11 +1055,11 @@ def _outputs(d, x, idx: np.ndarray, values: dict, present: dict, pressure_unit: 
     put("pco2_target_basis", d.pco2_target_basis, d.target_given)
     put("pco2_consciousness_threshold", pressure(d.consciousness_threshold))
     # findings in the response's order: by severity, then in the order the report emits them
-    codes = interpret.FINDING_ORDER
+    codes = blood_gas.FINDING_ORDER
     slots = []  # (code, is urgent, mask) in the response's order
     for severity in ("urgent", "notable", "info"):
         for code in codes:
-            level = d.severity.get(code, interpret.SEVERITY.get(code))
+            level = d.severity.get(code, blood_gas.SEVERITY.get(code))
             at = arr(d.finding[code], bool) & (arr(level) == severity)
             if at.any():
                 slots.append((code, severity == "urgent", at))
@@ -1456,7 +1458,7 @@ class Tally:
 
 
 def _site_order(item) -> int:
-    order = (*interpret.SITES, NOT_GIVEN)
+    order = (*blood_gas.SITES, NOT_GIVEN)
     return order.index(item[0]) if item[0] in order else len(order)
 
 
@@ -1536,7 +1538,7 @@ FINDING_WORDS = {
 }
 #: the other codes of the summary in words
 WORDS = {
-    **{code: name for code, name in interpret.NAMES.items()},
+    **{code: name for code, name in blood_gas.NAMES.items()},
     "none": "none",
     "acute": "acute",
     "chronic": "chronic",
@@ -1670,7 +1672,7 @@ def run(
     ``pressure_unit``: None follows the input (the unit of the PCO2 column, else of most of its cells in the
     first chunk; mmHg when there is none). ``progress``: None shows the bar only when stderr is a terminal;
     True always; False never. ``episodes``: a path; each episode (an episode and a time column) is read as a
-    course and written there, one row each (:mod:`tidewell.episodes`), and its summary follows the batch's.
+    course and written there, one row each (:mod:`frontends.episodes`), and its summary follows the batch's.
 
     Raises
     ------
@@ -1695,7 +1697,7 @@ def run(
             from . import episodes as episode_file
 
             try:
-                collector = episode_file.Collector(layout.header, SITE_NOT_GIVEN)
+                collector = episode_file.Collector(layout.header, SITE_NOT_GIVEN, row_inputs)
             except episode_file.MissingColumns as exc:
                 raise TableError(str(exc)) from None
             stack.callback(collector.close)

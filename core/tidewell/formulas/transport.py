@@ -10,7 +10,7 @@
 ``oxygen_supply_plan``           all of the above for one set of cylinders (a NamedTuple)
 ===============================  ================================================================
 
-Decisions (REFERENCE.md 11; none of these has a single authoritative source: common practice):
+Decisions (cylinder_ideal_gas, transport_reserve; none has a single authoritative source: common practice):
 
 - **Ideal gas.** Free gas at about 1 atm = water capacity x gauge pressure / 1.01325 bar. Oxygen is not
   ideal: at 15 degC its compressibility factor Z is about 0.93 at 137-200 bar (0.94 at 230 bar), so a
@@ -35,7 +35,7 @@ from __future__ import annotations
 import math
 from typing import NamedTuple
 
-from .errors import InputError, require_number
+from ..errors import InputError, require_number
 
 #: 1 standard atmosphere in bar (exact)
 ATM_BAR = 1.01325

@@ -2,14 +2,11 @@
 
 ==================  ==========================================================================================
 ``read_course``     CSV text -> (the ``inputs`` of a course request, the file's line of each sample, warnings)
-``course_sample``   one row of a batch table -> one sample of a course request (the one place a row becomes
-                    a sample: ``tidewell course`` and ``tidewell batch --episodes`` both use it)
-``event_words``     an events cell -> its event words (``niv started | oxygen-increased`` -> two words)
 ``render_course``   a course response as text: summary, findings, the gases, the changes, the verdicts
 ``run``             what ``tidewell course FILE.csv`` does (cli.py registers it)
 ==================  ==========================================================================================
 
-One row per gas. The blood-gas columns are the batch's (tidewell.batch reads them: ``ph``, ``pco2[kPa]``, a
+One row per gas. The blood-gas columns are the batch's (frontends.batch reads them: ``ph``, ``pco2[kPa]``, a
 units row or units in the cells, every blood_gas input); two columns are the course's own:
 
 - ``time``: minutes (``0``, ``45``) or a date-time (``2026-12-04T03:10``, ``2026-12-04 03:10``);
@@ -28,56 +25,12 @@ import re
 import sys
 import textwrap
 
-from .bridge import handle_obj
-from .cli import _add_output_flags, render, typed_value
+from ..bridge import handle_obj
+from .cells import course_sample, typed_value
+from .text import add_output_flags, render
 
 TIME_COLUMN, EVENTS_COLUMN = "time", "events"
-_SEPARATORS = re.compile(r"[|;]")
 _SAMPLE = re.compile(r"^inputs\.samples\[(\d+)\]")
-
-
-def event_words(cell: str | None) -> list[str]:
-    """The event words of an events cell (unknown words are kept: the bridge names them).
-
-    >>> event_words("niv started | Oxygen-Decreased"), event_words(""), event_words("intubated;")
-    (['niv_started', 'oxygen_decreased'], [], ['intubated'])
-    """
-    if not cell:
-        return []
-    words = []
-    for part in _SEPARATORS.split(cell):
-        word = "_".join(part.strip().casefold().replace("-", " ").split())
-        if word:
-            words.append(word)
-    return words
-
-
-def _time_value(cell: str):
-    """A time cell as the request carries it: a number of minutes, else the text (None when empty)."""
-    text = cell.strip()
-    if not text:
-        return None
-    try:
-        return float(text) if "." in text or "e" in text.casefold() else int(text)
-    except ValueError:
-        return text
-
-
-def course_sample(table, i: int, time_cell: str, events_cell: str, site_default: str) -> tuple[dict, bool]:
-    """(row ``i`` of a batch table as one sample of a course request, whether the row gave its site): its
-    blood_gas inputs read by the batch's reader, its time and its event words; a row without a site is read
-    as ``site_default``."""
-    from . import batch
-
-    inputs = batch.row_inputs(table, i, site_default="")
-    site_given = bool(inputs.get("sample"))
-    if not site_given:
-        inputs["sample"] = site_default
-    sample = {"time": _time_value(time_cell), "inputs": inputs}
-    words = event_words(events_cell)
-    if words:
-        sample["events"] = words
-    return sample, site_given
 
 
 def read_course(text: str) -> tuple[dict, list[int], list[str]]:
@@ -102,7 +55,8 @@ def read_course(text: str) -> tuple[dict, list[int], list[str]]:
     for i in range(len(table)):
         # one patient's bedside series: a gas without a site is read as the blood_gas default (arterial),
         # and the output says so
-        sample, site_given = course_sample(table, i, times[i], events[i], "arterial")
+        row = batch.row_inputs(table, i, site_default="")
+        sample, site_given = course_sample(row, times[i], events[i], "arterial")
         if not site_given:
             no_site.append(str(table.line[i]))
         samples.append(sample)
@@ -226,7 +180,7 @@ def run(argv: list[str]) -> int:
     )
     patient.add_argument("--baseline-pco2", metavar="VALUE", help="the usual PaCO2 when known, e.g. 7.2kPa")
     patient.add_argument("--age", metavar="YEARS", type=float, help="age in years")
-    _add_output_flags(parser)  # --json, --kpa, --mmhg as every command has them
+    add_output_flags(parser)  # --json, --kpa, --mmhg as every command has them
     args = parser.parse_args(argv)
     try:
         from . import batch

@@ -14,7 +14,7 @@
 ==================  ==========================================================================================
 
 One implementation of the rules: each sample is read by the ``blood_gas`` calculation itself
-(:func:`tidewell.interpret.blood_gas`, the function the bridge calls for one gas), and the course only reads
+(:func:`.blood_gas.blood_gas`, the function the bridge calls for one gas), and the course only reads
 that reading's outputs (``ph_status``, ``disorders``, ``hco3``, ``pco2_target``, ``spo2_target``). What the
 course adds is the comparison over time; docs/course.md says how each word is decided, in full:
 
@@ -44,10 +44,10 @@ import datetime as dt
 import re
 from functools import cache
 
-from . import units
-from .errors import NOTHING, InputError, InputErrors, is_real
-from .fields import Inputs
-from .report import PRESSURE_DECIMALS, Report
+from .. import units
+from ..errors import NOTHING, InputError, InputErrors, is_real
+from ..fields import Inputs
+from ..report import PRESSURE_DECIMALS, Report
 
 #: event words, each meaning the change was made at (just after) the gas that carries it
 EVENTS = (
@@ -276,7 +276,7 @@ class _Gas:
 @cache
 def blood_gas_keys() -> frozenset[str]:
     """The inputs the blood_gas calculation reads (found by asking it, so a new input is passed on)."""
-    from .interpret import blood_gas
+    from .blood_gas import blood_gas
 
     probe = Inputs({}, prefix="probe")
     try:
@@ -288,7 +288,7 @@ def blood_gas_keys() -> frozenset[str]:
 
 def _read_one_gas(raw: dict, prefix: str) -> tuple[dict | None, list[dict], list[InputError]]:
     """(outputs, findings, errors) of the blood_gas reading of one sample, pressures in mmHg."""
-    from .interpret import blood_gas
+    from .blood_gas import blood_gas
 
     report = Report("blood_gas", pressure_unit="mmHg")
     try:
