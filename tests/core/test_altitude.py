@@ -648,3 +648,19 @@ def test_a_target_met_exactly_at_the_ceiling_holds_there():
         target_pao2_mmhg=at_top + 0.01, a_a_ratio=1.0, fio2_fraction=1.0, paco2_mmhg=40.0
     )
     assert missed.status == "solved" and missed.altitude_m < 11_000.0 and missed.iterations > 0
+
+
+def test_a_target_met_exactly_at_the_lowest_altitude_is_solved_there():
+    # as above at the bottom of the model (-500 m, icao7488): a target equal to the predicted PaO2 there is
+    # still reached ("solved" at -500 m within the tolerance); 0.01 mmHg more is "not_reachable"
+    pb_low = alt.pressure_at_altitude_isa(altitude_m=-500.0)
+    at_low = alveolar_po2_simple(fio2_fraction=0.21, paco2_mmhg=40.0, pb_mmhg=pb_low, rq=0.8)
+    assert 20.0 <= at_low <= 200.0
+    met = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=at_low, a_a_ratio=1.0, fio2_fraction=0.21, paco2_mmhg=40.0
+    )
+    assert met.status == "solved" and met.altitude_m == pytest.approx(-500.0, abs=1e-4)
+    missed = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=at_low + 0.01, a_a_ratio=1.0, fio2_fraction=0.21, paco2_mmhg=40.0
+    )
+    assert (missed.status, missed.altitude_m, missed.iterations) == ("not_reachable", None, 0)

@@ -14,6 +14,7 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from casebook import close, load_cases
+from conftest import assert_accepted_range
 from tidewell import ventilation as vn
 from tidewell.errors import InputError
 
@@ -342,3 +343,94 @@ def test_pco2_from_etco2_refuses_an_etco2_below_1(field):
     with pytest.raises(InputError) as info:
         vn.pco2_from_etco2(**kwargs)
     assert info.value.field == field
+
+
+# -- the accepted ranges, each end on both sides -------------------------------------------------------------
+# The project's plausibility limits of each input (no published source), written here by hand from the
+# docstrings where they give them (VT 50-2000 mL, RR 4-60/min, height 120-230 cm, PCO2 5-250 mmHg, VCO2
+# 10-5000 mL/min, VE 0.2-120 L/min, core temperature 25-43 degC, I and E parts 0.1-10), else as the module has
+# had them since written (PBW 10-150 kg, weight 10-350 kg, EtCO2 1-250 mmHg ...): a change is then a decision.
+
+_MECH = {
+    "paco2_mmhg": 60.0,
+    "ve_l_min": 8.0,
+    "vd_vt": 0.3,
+    "vco2_ml_min": 200.0,
+    "vco2_reference_ml_min": 200.0,
+}
+_ET = {"paco2_mmhg": 60.0, "etco2_mmhg": 40.0, "etco2_now_mmhg": 40.0}
+_TARGET = {"vt_ml": 500.0, "rr_per_min": 16.0, "vd_ml": 150.0, "paco2_mmhg": 60.0, "target_paco2_mmhg": 45.0}
+
+
+def _without(base: dict, field: str) -> dict:
+    return {k: v for k, v in base.items() if k != field}
+
+
+@pytest.mark.parametrize(
+    ("func", "field", "low", "high", "base"),
+    [
+        (vn.minute_ventilation, "vt_ml", 50.0, 2000.0, {"rr_per_min": 12.0}),
+        (vn.minute_ventilation, "rr_per_min", 4.0, 60.0, {"vt_ml": 500.0}),
+        (vn.alveolar_ventilation, "vt_ml", 50.0, 2000.0, {"vd_ml": 0.0, "rr_per_min": 12.0}),
+        (vn.alveolar_ventilation, "rr_per_min", 4.0, 60.0, {"vt_ml": 500.0, "vd_ml": 150.0}),
+        (vn.predicted_body_weight_ardsnet, "height_cm", 120.0, 230.0, {"sex": "male"}),
+        (vn.anatomical_dead_space, "pbw_kg", 10.0, 150.0, {}),
+        (vn.paco2_from_alveolar_ventilation, "vco2_ml_min", 10.0, 5000.0, {"va_l_min": 5.0}),
+        (vn.paco2_from_alveolar_ventilation, "va_l_min", 0.001, 120.0, {"vco2_ml_min": 200.0}),
+        (vn.alveolar_ventilation_for_paco2, "vco2_ml_min", 10.0, 5000.0, {"paco2_mmhg": 40.0}),
+        (vn.alveolar_ventilation_for_paco2, "paco2_mmhg", 5.0, 250.0, {"vco2_ml_min": 200.0}),
+        (vn.vd_vt_enghoff, "paco2_mmhg", 5.0, 250.0, {"peco2_mmhg": 0.0}),
+        (vn.vd_vt_bohr, "paco2_alveolar_mmhg", 1.0, 250.0, {"peco2_mmhg": 0.0}),
+        (vn.alveolar_dead_space_fraction, "paco2_mmhg", 5.0, 250.0, {"etco2_mmhg": 0.0}),
+        (vn.vd_vt_from_vco2, "paco2_mmhg", 5.0, 250.0, {"vco2_ml_min": 10.0, "ve_l_min": 120.0}),
+        (vn.vd_vt_from_vco2, "vco2_ml_min", 10.0, 5000.0, {"paco2_mmhg": 250.0, "ve_l_min": 120.0}),
+        (vn.vd_vt_from_vco2, "ve_l_min", 0.2, 120.0, {"paco2_mmhg": 250.0, "vco2_ml_min": 10.0}),
+        (vn.vco2_from_expired_co2, "ve_l_min", 0.2, 120.0, {"peco2_mmhg": 30.0}),
+        (vn.vco2_from_expired_co2, "peco2_mmhg", 0.1, 250.0, {"ve_l_min": 8.0}),
+        (vn.vco2_resting_estimate, "weight_kg", 10.0, 350.0, {}),
+        (vn.vco2_with_fever, "vco2_ml_min", 10.0, 5000.0, {"temperature_c": 38.0}),
+        (vn.vco2_with_fever, "temperature_c", 25.0, 43.0, {"vco2_ml_min": 200.0}),
+        (vn.vco2_with_fever, "rate_per_degc", 0.0, 0.2, {"vco2_ml_min": 200.0, "temperature_c": 39.0}),
+        (vn.vt_per_kg, "vt_ml", 50.0, 2000.0, {"pbw_kg": 70.0}),
+        (vn.vt_per_kg, "pbw_kg", 10.0, 150.0, {"vt_ml": 500.0}),
+        (vn.lung_protective_vt, "pbw_kg", 10.0, 150.0, {}),
+        (vn.respiratory_timing, "rr_per_min", 0.1, 150.0, {}),
+        (vn.respiratory_timing, "i_part", 0.1, 10.0, {"rr_per_min": 12.0}),
+        (vn.respiratory_timing, "e_part", 0.1, 10.0, {"rr_per_min": 12.0}),
+        (vn.to_target, "paco2_mmhg", 5.0, 250.0, _without(_TARGET, "paco2_mmhg")),
+        (vn.to_target, "target_paco2_mmhg", 15.0, 120.0, _without(_TARGET, "target_paco2_mmhg")),
+        (vn.co2_mechanisms, "paco2_mmhg", 5.0, 250.0, _without(_MECH, "paco2_mmhg")),
+        (vn.co2_mechanisms, "ve_l_min", 0.2, 120.0, _without(_MECH, "ve_l_min")),
+        (vn.co2_mechanisms, "vco2_ml_min", 10.0, 5000.0, _without(_MECH, "vco2_ml_min")),
+        (vn.co2_mechanisms, "vco2_reference_ml_min", 10.0, 5000.0, _without(_MECH, "vco2_reference_ml_min")),
+        (vn.co2_mechanisms, "vd_vt_reference", 0.05, 0.6, _MECH),
+        (vn.co2_mechanisms, "paco2_reference_mmhg", 20.0, 60.0, _MECH),
+        (vn.pco2_from_etco2, "paco2_mmhg", 5.0, 250.0, _without(_ET, "paco2_mmhg")),
+        (vn.pco2_from_etco2, "etco2_mmhg", 1.0, 250.0, _without(_ET, "etco2_mmhg")),
+        (vn.pco2_from_etco2, "etco2_now_mmhg", 1.0, 250.0, _without(_ET, "etco2_now_mmhg")),
+    ],
+)
+def test_each_input_is_accepted_exactly_over_its_range(func, field, low, high, base):
+    assert_accepted_range(func, field, low, high, **base)
+
+
+@pytest.mark.parametrize(
+    ("text", "parts"),
+    [("0.1:10", (0.1, 10.0)), ("10:0.1", (10.0, 0.1)), ("1:2", (1.0, 2.0))]
+    + [(t, None) for t in ("0.09:2", "10.01:1", "1:0.09", "1:10.01", "1:2:3", "1")],
+)
+def test_an_ie_ratio_takes_two_parts_of_0_1_to_10(text, parts):
+    # the docstring: I:E written with two numbers from 0.1 to 10 (the limits of respiratory_timing's parts)
+    if parts is None:
+        with pytest.raises(InputError) as refused:
+            vn.parse_ie_ratio(text)
+        assert (refused.value.field, refused.value.code) == ("ie_ratio", "bad_request")
+    else:
+        assert vn.parse_ie_ratio(text) == parts
+
+
+def test_the_breath_is_split_1_to_2_by_default():
+    # expiratory_time (common practice): I:E 1:2 unless given; at 20/min a 3 s cycle, Ti 1 s, Te 2 s
+    timing = vn.respiratory_timing(rr_per_min=20.0)
+    assert timing.cycle_s == pytest.approx(3.0) and timing.ti_s == pytest.approx(1.0)
+    assert timing.te_s == pytest.approx(2.0)
