@@ -434,3 +434,31 @@ def test_the_breath_is_split_1_to_2_by_default():
     timing = vn.respiratory_timing(rr_per_min=20.0)
     assert timing.cycle_s == pytest.approx(3.0) and timing.ti_s == pytest.approx(1.0)
     assert timing.te_s == pytest.approx(2.0)
+
+
+def test_the_lung_protective_band_is_4_to_8_ml_per_kg():
+    # ardsnet2000: 6 mL/kg predicted body weight, within 4-8 mL/kg; at 70 kg 280, 420 and 560 mL
+    band = vn.lung_protective_vt(pbw_kg=70.0)
+    assert (band.low_ml, band.target_ml, band.high_ml) == pytest.approx((280.0, 420.0, 560.0), rel=1e-12)
+
+
+def test_the_resting_vco2_band_per_kg_is_2_5_to_3():
+    # jette1990_met (from memory): 1 MET 3.5 mL O2/kg/min x R 0.8 = 2.8 mL CO2/kg/min, within the usual band
+    # of 2.5-3 mL/kg/min (resting_vco2, from memory); at 70 kg 196 mL/min
+    assert vn.VCO2_ML_PER_KG_MIN_BAND == (2.5, 3.0)
+    assert vn.vco2_resting_estimate(weight_kg=70.0) == pytest.approx(3.5 * 0.8 * 70.0, rel=1e-12)
+
+
+@pytest.mark.parametrize(("factor", "refused"), [(1.0, True), (1.0 + 1e-9, False)])
+def test_a_vd_vt_of_exactly_0_is_refused(factor, refused):
+    # VD/VT = 1 - K x VCO2 / (PaCO2 x VE) (alveolar_ventilation, K_BTPS above): with VE = K x VCO2 / PaCO2 the
+    # whole VE is alveolar and VD/VT is 0, which no lung has (normal VD/VT about 0.2-0.35, common practice):
+    # refused; a VE one part in 1e9 higher leaves a dead space just above 0
+    ve = K_BTPS * 10.0 / 10.0 * factor
+    assert (1.0 - K_BTPS * 10.0 / (10.0 * ve) == 0.0) is refused
+    if refused:
+        with pytest.raises(InputError) as error:
+            vn.vd_vt_from_vco2(paco2_mmhg=10.0, vco2_ml_min=10.0, ve_l_min=ve)
+        assert (error.value.field, error.value.code) == ("vco2_ml_min", "inconsistent")
+    else:
+        assert 0.0 < vn.vd_vt_from_vco2(paco2_mmhg=10.0, vco2_ml_min=10.0, ve_l_min=ve) < 1e-8
