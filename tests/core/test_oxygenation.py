@@ -347,3 +347,23 @@ def test_each_calls_an_elementwise_function_once_on_the_selected_rows():
     assert math.isnan(each(limit, False, age_years=30.0)) and each(limit, True, age_years=30.0) == 11.5
     assert np.isnan(each(limit, np.zeros(3, dtype=bool), age_years=np.full(3, NAN))).all()
     assert calls == [(3,), ()]
+
+
+# -- the Kelman 1966 fit, written here from its published coefficients ------------------------------------
+
+
+def kelman(x: float) -> float:
+    """kelman1966 (coefficients from memory): S = (a1 x + a2 x^2 + a3 x^3 + x^4) / (a4 + a5 x + a6 x^2
+    + a7 x^3 + x^4) for a PO2 x of 10 mmHg or more, 0.003683 x + 0.000584 x^2 below."""
+    if x < 10.0:
+        return 0.003683 * x + 0.000584 * x * x
+    a1, a2, a3 = -8.5322289e3, 2.1214010e3, -6.7073989e1
+    a4, a5, a6, a7 = 9.3596087e5, -3.1346258e4, 2.3961674e3, -6.7104406e1
+    return (a1 * x + a2 * x**2 + a3 * x**3 + x**4) / (a4 + a5 * x + a6 * x**2 + a7 * x**3 + x**4)
+
+
+@pytest.mark.parametrize("po2", [0.0, 5.0, 9.99, 10.0, 20.0, 26.8, 40.0, 60.0, 100.0, 150.0])
+def test_kelman_fit_follows_its_published_coefficients(po2):
+    # the fit itself (not its agreement with other curves, checked above to 0.01): to 1e-12 relative, so a
+    # change of one coefficient by one unit in its last digits shows
+    assert ox.saturation_kelman1966(po2_mmhg=po2) == pytest.approx(kelman(po2), rel=1e-12, abs=1e-15)
