@@ -622,10 +622,11 @@ def test_the_cabin_limit_is_8000_ft():
     assert alt.CABIN_LIMIT_M == pytest.approx(8000 * 0.3048, abs=1e-9)
 
 
-@pytest.mark.parametrize("tolerance_m", [1e-4, 1e-6, 0.5, 10.0])
+@pytest.mark.parametrize("tolerance_m", [1e-4, 1e-6, 0.5, 10.0, 11_500.0 / 2**20])
 def test_the_bisection_halves_the_isa_span_until_the_tolerance(tolerance_m):
     # bisection (derived): from the span -500 to 11 000 m (icao7488 troposphere) each step halves the
-    # bracket, so it stops after ceil(log2(11 500 m / tolerance)) steps
+    # bracket, so it stops after ceil(log2(11 500 m / tolerance)) steps: once the bracket is no wider than
+    # the tolerance (11 500 / 2^20 m: exactly 20 halvings, in binary floating point too)
     r = alt.max_altitude_for_target_pao2(
         target_pao2_mmhg=50.0, a_a_ratio=0.7019, fio2_fraction=0.21, paco2_mmhg=40.0, tolerance_m=tolerance_m
     )
@@ -664,3 +665,17 @@ def test_a_target_met_exactly_at_the_lowest_altitude_is_solved_there():
         target_pao2_mmhg=at_low + 0.01, a_a_ratio=1.0, fio2_fraction=0.21, paco2_mmhg=40.0
     )
     assert (missed.status, missed.altitude_m, missed.iterations) == ("not_reachable", None, 0)
+
+
+def test_an_arterial_po2_equal_to_the_alveolar_is_accepted():
+    # gilbert1974: a/A = PaO2 / PAO2 is at most 1 (no negative gradient); a/A exactly 1 carries the alveolar
+    # PO2 of the destination over unchanged, a PaO2 0.01 mmHg above the PAO2 is refused
+    same = alt.pao2_at_altitude_gilbert1974(
+        pao2_origin_mmhg=100.0, pao2_alveolar_origin_mmhg=100.0, pao2_alveolar_destination_mmhg=60.0
+    )
+    assert same == 60.0
+    with pytest.raises(InputError) as refused:
+        alt.pao2_at_altitude_gilbert1974(
+            pao2_origin_mmhg=100.01, pao2_alveolar_origin_mmhg=100.0, pao2_alveolar_destination_mmhg=60.0
+        )
+    assert (refused.value.field, refused.value.code) == ("pao2_origin_mmhg", "inconsistent")

@@ -27,6 +27,9 @@ SOURCES = (
     "sample_site_caveats",
     "venous_gas",
     "austin2010",
+    "bts_ics2016_niv_monitoring",
+    "reference_change_value",
+    "analyser_imprecision",
 )
 
 
@@ -189,3 +192,53 @@ def test_the_rise_after_oxygen_is_shown_in_whole_percent(pco2_after, shown):
     samples = [gas(0, 7.34, 60.0, ["oxygen_increased"]), gas(45, 7.20, pco2_after)]
     hit = found(course(samples, hypercapnia_risk=True), "pco2_rising_after_oxygen")
     assert hit is not None and shown in hit["text"]
+
+
+# -- NIV: a fall of exactly the reference change, its display ------------------------------------------------
+# bts_ics2016_niv_monitoring: a pH that falls on NIV calls for the senior team now, before the first hour;
+# reference_change_value (from memory) on analyser_imprecision (common practice): a change of 0.03 or more
+# is a change (derived: 1.96 x sqrt(2) x 0.01 = 0.028, used as 0.03).
+
+
+@pytest.mark.parametrize(("ph_after", "severity"), [(7.27, "urgent"), (7.28, None)])
+def test_a_fall_of_exactly_003_on_niv_is_urgent_at_once(ph_after, severity):
+    samples = [gas(0, 7.30, 75.0, ["niv_started"]), gas(30, ph_after, 78.0)]
+    response = course(samples, hypercapnia_risk=True)
+    hit = found(response, "niv_not_improving")
+    assert (hit and hit["severity"]) == severity
+    if hit:
+        assert "the pH has fallen by 0.03. A falling pH on NIV calls for the senior team now" in hit["text"]
+    niv = response["outputs"]["niv_response"]
+    assert niv["ph_change"] == pytest.approx(ph_after - 7.30, abs=1e-9)
+    assert response["display"]["niv_response.ph_change"] == 2  # a pH is shown to 2 decimals (common practice)
+
+
+# -- the texts: a pH recovered above 7.35, an earlier aim that no longer fits --------------------------------
+
+
+def test_an_oxygen_induced_rise_then_a_ph_above_735_reads_recovered():
+    # austin2010: PCO2 up and pH 7.36 -> 7.27 after oxygen; a later pH of 7.38 is back in the normal range
+    # (acid_base_normal_ranges: 7.35-7.45), "recovered" rather than "risen"
+    samples = [
+        gas(0, 7.36, hh_pco2(7.36, 30.5), ["oxygen_increased"]),
+        gas(50, 7.27, hh_pco2(7.27, 31.5), ["oxygen_decreased"]),
+        gas(110, 7.38, hh_pco2(7.38, 31.5)),
+    ]
+    hit = found(course(samples, hypercapnia_risk=True), "pco2_rising_after_oxygen")
+    assert hit is not None and hit["severity"] == "notable"
+    assert "Since then the pH has recovered to 7.38" in hit["text"]
+
+
+def test_easing_towards_ph_735_names_the_earlier_aim_that_no_longer_fits():
+    # posthypercapnic_alkalosis: pH 7.47 at PCO2 44 after the retainer; the PCO2 giving pH 7.35 with today's
+    # HCO3 is 44 x 10^(7.47 - 7.35) = 58 mmHg (henderson1908, derived), below the earlier aim: the text eases
+    # towards 58 and says the earlier aim no longer fits
+    aim = aim_of({**RETAINER, "hypercapnia_risk": True})
+    floor = 44.0 * 10 ** (7.47 - 7.35)
+    assert floor < aim
+    hit = found(
+        course([{"time": 0, "inputs": RETAINER}, gas(300, 7.47, 44.0)], hypercapnia_risk=True),
+        "pco2_falling_fast",
+    )
+    assert hit is not None and f"towards {floor:.0f} mmHg, the PCO2 that would give pH 7.35" in hit["text"]
+    assert f"(the earlier aim of {aim:.0f} mmHg no longer fits)" in hit["text"]
