@@ -534,6 +534,8 @@ _PBS = {"pb_origin_mmhg": 760.0, "pb_destination_mmhg": 565.0}
         (alt.sea_level_fio2_equivalent, "pb_mmhg", 150.0, 1100.0, {}),
         (alt.sea_level_fio2_equivalent, "fio2_fraction", 0.05, 1.0, {"pb_mmhg": 565.0}),
         (alt.sea_level_fio2_equivalent_dry, "pb_mmhg", 150.0, 1100.0, {}),
+        # a sea-level FiO2 of 0.05 up to the FiO2 breathed (air: 0.2095, ussa1976)
+        (alt.altitude_of_sea_level_fio2, "fio2_sea_level", 0.05, 0.2095, {}),
         (
             alt.pao2_at_altitude_gilbert1974,
             "pao2_origin_mmhg",
