@@ -462,3 +462,48 @@ def test_a_vd_vt_of_exactly_0_is_refused(factor, refused):
         assert (error.value.field, error.value.code) == ("vco2_ml_min", "inconsistent")
     else:
         assert 0.0 < vn.vd_vt_from_vco2(paco2_mmhg=10.0, vco2_ml_min=10.0, ve_l_min=ve) < 1e-8
+
+
+@pytest.mark.parametrize(
+    ("func", "paco2_field"), [(vn.vd_vt_enghoff, "paco2_mmhg"), (vn.vd_vt_bohr, "paco2_alveolar_mmhg")]
+)
+def test_mixed_expired_pco2_from_0_to_below_the_paco2(func, paco2_field):
+    # enghoff1938 / bohr1891: VD/VT = (P - PECO2) / P; a PECO2 of 0 gives 1, one at or above P no dead-space
+    # fraction (mixed expired gas is always below alveolar): refused as inconsistent, up to the PCO2 limit of
+    # 250 mmHg; beyond that range and below 0 as out of range
+    assert func(**{paco2_field: 40.0}, peco2_mmhg=0.0) == 1.0
+    assert func(**{paco2_field: 40.0}, peco2_mmhg=30.0) == pytest.approx((40.0 - 30.0) / 40.0, rel=1e-12)
+    for peco2, code in [(-1e-9, "out_of_range"), (41.0, "inconsistent"), (250.0, "inconsistent")]:
+        with pytest.raises(InputError) as refused:
+            func(**{paco2_field: 40.0}, peco2_mmhg=peco2)
+        assert (refused.value.field, refused.value.code) == ("peco2_mmhg", code), peco2
+    with pytest.raises(InputError) as refused:
+        func(**{paco2_field: 40.0}, peco2_mmhg=250.0 * (1 + 1e-9))
+    assert (refused.value.field, refused.value.code) == ("peco2_mmhg", "out_of_range")
+
+
+def test_the_end_tidal_pco2_is_accepted_from_0_to_250():
+    # etco2_gradient: (PaCO2 - PetCO2) / PaCO2, negative when PetCO2 exceeds PaCO2 (returned as is)
+    assert_accepted_range(vn.alveolar_dead_space_fraction, "etco2_mmhg", 0.0, 250.0, paco2_mmhg=40.0)
+    assert vn.alveolar_dead_space_fraction(paco2_mmhg=40.0, etco2_mmhg=50.0) == pytest.approx(-0.25)
+
+
+@pytest.mark.parametrize(("vd_vt", "accepted"), [(0.0, False), (1e-9, True), (1 - 1e-9, True), (1.0, False)])
+def test_the_mechanisms_take_a_vd_vt_strictly_between_0_and_1(vd_vt, accepted):
+    # alveolar_ventilation: PaCO2 = K x VCO2 / (VE x (1 - VD/VT)) needs some alveolar and some dead-space
+    # ventilation for its logarithmic split (co2_log_shares)
+    kwargs = {**_MECH, "vd_vt": vd_vt}
+    if accepted:
+        assert vn.co2_mechanisms(**kwargs).log_terms["dead_space"] == pytest.approx(
+            math.log((1 - 0.30) / (1 - vd_vt)), rel=1e-12
+        )
+    else:
+        with pytest.raises(InputError) as refused:
+            vn.co2_mechanisms(**kwargs)
+        assert (refused.value.field, refused.value.code) == ("vd_vt", "out_of_range")
+
+
+def test_the_published_bands_the_breathing_calculation_reads():
+    # fever_vco2: metabolic rate up 10-13 % per degC of fever; pco2_normal_range: hypercapnia above 45 mmHg
+    assert vn.FEVER_RATE_BAND == (0.10, 0.13)
+    assert vn.PACO2_NORMAL_HIGH_MMHG == 45.0
