@@ -242,3 +242,50 @@ def test_easing_towards_ph_735_names_the_earlier_aim_that_no_longer_fits():
     )
     assert hit is not None and f"towards {floor:.0f} mmHg, the PCO2 that would give pH 7.35" in hit["text"]
     assert f"(the earlier aim of {aim:.0f} mmHg no longer fits)" in hit["text"]
+
+
+def test_an_alkalaemic_overshoot_on_niv_is_no_failing_niv():
+    # bts_ics2016_niv_monitoring: "not improving" is about a pH that stays or falls back below 7.35; a pH
+    # that rose from 7.30 past the normal range to 7.50 (acid_base_normal_ranges: 7.35-7.45) is over-
+    # ventilation (pco2_falling_fast's business), not a failing NIV, though its last step moved away from
+    # the normal range
+    samples = [
+        gas(0, 7.30, hh_pco2(7.30, 33), ["niv_started"]),
+        gas(90, 7.40, hh_pco2(7.40, 33)),
+        gas(180, 7.50, hh_pco2(7.50, 33)),
+    ]
+    response = course(samples, hypercapnia_risk=True)
+    assert found(response, "niv_not_improving") is None
+    assert response["outputs"]["intervals"][-1]["direction"] == "worsening"  # 7.40 -> 7.50: 0 -> 0.05 away
+
+
+@pytest.mark.parametrize(
+    ("later_phs", "severity", "said"),
+    [
+        ((7.28, 7.36), "notable", "recovered to 7.36"),  # the latest gas decides, not the first after
+        ((7.36, 7.28), "urgent", None),
+    ],
+)
+def test_an_oxygen_induced_rise_is_judged_by_the_latest_gas_since(later_phs, severity, said):
+    # austin2010: after the rise (pH 7.36 -> 7.27) the latest comparable gas says whether the pH recovered
+    # (7.35 or more, acid_base_normal_ranges, or up by 0.03, reference_change_value)
+    samples = [
+        gas(0, 7.36, hh_pco2(7.36, 30.5), ["oxygen_increased"]),
+        gas(50, 7.27, hh_pco2(7.27, 31.5), ["oxygen_decreased"]),
+    ] + [gas(100 + 50 * k, ph, hh_pco2(ph, 31.5)) for k, ph in enumerate(later_phs)]
+    hit = found(course(samples, hypercapnia_risk=True), "pco2_rising_after_oxygen")
+    assert hit is not None and hit["severity"] == severity
+    assert (said is not None and said in hit["text"]) or (said is None and "Since then" not in hit["text"])
+
+
+def test_a_ph_back_at_exactly_735_after_an_oxygen_induced_rise_has_recovered():
+    # austin2010: pH 7.38 -> 7.33 with the PCO2 up after oxygen; the next gas at 7.35 has risen only 0.02
+    # (less than the reference change) but is back in the normal range (7.35-7.45): recovered, notable
+    samples = [
+        gas(0, 7.38, hh_pco2(7.38, 30.5), ["oxygen_increased"]),
+        gas(50, 7.33, hh_pco2(7.33, 31.5), ["oxygen_decreased"]),
+        gas(110, 7.35, hh_pco2(7.35, 31.5)),
+    ]
+    hit = found(course(samples, hypercapnia_risk=True), "pco2_rising_after_oxygen")
+    assert hit is not None and hit["severity"] == "notable"
+    assert "Since then the pH has recovered to 7.35" in hit["text"]
