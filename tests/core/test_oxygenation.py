@@ -391,6 +391,7 @@ _CONTENT = {"hb_g_dl": 15.0, "so2_fraction": 0.97, "po2_mmhg": 90.0}
         (ox.aa_gradient_upper_by_age, "age_years", 0.0, 120.0, {}),
         (ox.water_vapour_pressure_buck1981, "temperature_c", 0.0, 50.0, {}),
         (ox.a_over_a_ratio, "pao2_mmhg", 1.0, 800.0, {"pao2_alveolar_mmhg": 1100.0}),
+        (ox.a_over_a_ratio, "pao2_alveolar_mmhg", 0.1, 1100.0, {"pao2_mmhg": 1.0}),
         (ox.pf_ratio, "pao2_mmhg", 1.0, 800.0, {"fio2_fraction": 0.5}),
         (ox.pf_ratio, "fio2_fraction", 0.21, 1.0, {"pao2_mmhg": 80.0}),
         (

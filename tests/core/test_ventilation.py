@@ -507,3 +507,16 @@ def test_the_published_bands_the_breathing_calculation_reads():
     # fever_vco2: metabolic rate up 10-13 % per degC of fever; pco2_normal_range: hypercapnia above 45 mmHg
     assert vn.FEVER_RATE_BAND == (0.10, 0.13)
     assert vn.PACO2_NORMAL_HIGH_MMHG == 45.0
+
+
+def test_the_dead_space_is_accepted_from_0_to_below_the_tidal_volume():
+    # alveolar_ventilation: VA = (VT - VD) x RR; VD from 0 mL up to 2000 mL but below VT (VD >= VT leaves no
+    # alveolar ventilation: refused as inconsistent); below 0 or above 2000 mL out of range
+    assert vn.alveolar_ventilation(vt_ml=500.0, vd_ml=0.0, rr_per_min=12.0) == pytest.approx(6.0, rel=1e-12)
+    for vt, vd, code in [(500.0, -1e-9, "out_of_range"), (2000.0, 2000.0, "inconsistent")]:
+        with pytest.raises(InputError) as refused:
+            vn.alveolar_ventilation(vt_ml=vt, vd_ml=vd, rr_per_min=12.0)
+        assert (refused.value.field, refused.value.code) == ("vd_ml", code), vd
+    with pytest.raises(InputError) as refused:
+        vn.alveolar_ventilation(vt_ml=2000.0, vd_ml=2000.0 * (1 + 1e-9), rr_per_min=12.0)
+    assert (refused.value.field, refused.value.code) == ("vd_ml", "out_of_range")
