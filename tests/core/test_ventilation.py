@@ -520,3 +520,10 @@ def test_the_dead_space_is_accepted_from_0_to_below_the_tidal_volume():
     with pytest.raises(InputError) as refused:
         vn.alveolar_ventilation(vt_ml=2000.0, vd_ml=2000.0 * (1 + 1e-9), rr_per_min=12.0)
     assert (refused.value.field, refused.value.code) == ("vd_ml", "out_of_range")
+
+
+@pytest.mark.parametrize(("t", "vco2"), [(36.5, 200.0), (37.0, 200.0), (37.5, 210.0), (38.0, 220.0)])
+def test_fever_raises_the_vco2_from_37_degc(t, vco2):
+    # fever_vco2: metabolic rate up about 10 % per degC of fever, above a normal core temperature of 37 degC
+    # (common practice); none at or below 37
+    assert vn.vco2_with_fever(vco2_ml_min=200.0, temperature_c=t, rate_per_degc=0.10) == pytest.approx(vco2)
