@@ -77,6 +77,25 @@ def assert_finite_everywhere(value, path="response"):
             assert_finite_everywhere(item, f"{path}[{i}]")
 
 
+def assert_accepted_range(func, field: str, low, high, outside=None, **base) -> None:
+    """``func(**base, field=v)`` accepts ``low`` and ``high`` and refuses a value just outside each end.
+
+    The range is written in the test from the function's docstring ("Accepted low-high"): the project's
+    plausibility limits of a domain input. Just outside is 1e-9 (relative, at least absolute) beyond the end,
+    or the two values of ``outside`` (for whole numbers). The refusal is an ``InputError`` ``out_of_range``
+    naming ``field``.
+    """
+    from tidewell.errors import InputError
+
+    for value in (low, high):
+        func(**{**base, field: value})
+    beyond = outside or tuple(end + sign * max(abs(end) * 1e-9, 1e-9) for end, sign in ((low, -1), (high, 1)))
+    for value in beyond:
+        with pytest.raises(InputError) as refused:
+            func(**{**base, field: value})
+        assert (refused.value.field, refused.value.code) == (field, "out_of_range"), (field, value)
+
+
 # ---------------------------------------------------------------------------------------------------------
 # the schema, compiled once
 

@@ -26,7 +26,7 @@ declare -A TESTS=(
     [altitude]="tests/core/test_altitude.py"
     [transport]="tests/core/test_transport.py"
     [temperature]="tests/core/test_temperature.py"
-    [course]="tests/core/test_course.py tests/core/test_thresholds.py"
+    [course]="tests/core/test_course.py tests/core/test_course_boundaries.py tests/core/test_thresholds.py"
 )
 # MUTATION_SUBSET=1: module-level constants (a name on a multiple assignment takes the whole line;
 # CONSTANTS = every UPPER_CASE assignment, tables included), functions and methods (Class.method) by

@@ -12,6 +12,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from conftest import assert_accepted_range
 from tidewell.errors import InputError
 from tidewell.formulas import altitude as alt
 from tidewell.formulas.oxygenation import alveolar_po2_full, alveolar_po2_simple
@@ -508,3 +509,182 @@ def test_all_results_are_finite_over_the_model_range():
             alt.alveolar_po2_at_altitude(fio2_fraction=0.21, paco2_mmhg=40.0, altitude_m=metres),
         ]
         assert all(math.isfinite(x) for x in values)
+
+
+# -- the accepted ranges, each end on both sides -------------------------------------------------------------
+# The project's plausibility limits written in the docstrings (no published source): PB 150-1100 mmHg, FiO2
+# 0.05-1.0, PaO2 1-800 mmHg, PAO2 up to 1100 mmHg, volumes 0.1-20 000 mL, targets 20-200 mmHg.
+
+_PBS = {"pb_origin_mmhg": 760.0, "pb_destination_mmhg": 565.0}
+
+
+@pytest.mark.parametrize(
+    ("func", "field", "low", "high", "base"),
+    [
+        (alt.pressure_at_altitude_isa, "altitude_m", -500.0, 11_000.0, {}),
+        (alt.fio2_at_altitude_water_corrected, "fio2_fraction", 0.05, 1.0, _PBS),
+        (
+            alt.fio2_at_altitude_water_corrected,
+            "pb_origin_mmhg",
+            150.0,
+            1100.0,
+            {"fio2_fraction": 0.21, "pb_destination_mmhg": 565.0},
+        ),
+        (
+            alt.fio2_at_altitude_water_corrected,
+            "pb_destination_mmhg",
+            150.0,
+            1100.0,
+            {"fio2_fraction": 0.21, "pb_origin_mmhg": 760.0},
+        ),
+        (alt.fio2_at_altitude_pb_ratio, "fio2_fraction", 0.05, 1.0, _PBS),
+        (alt.sea_level_fio2_equivalent, "pb_mmhg", 150.0, 1100.0, {}),
+        (alt.sea_level_fio2_equivalent, "fio2_fraction", 0.05, 1.0, {"pb_mmhg": 565.0}),
+        (alt.sea_level_fio2_equivalent_dry, "pb_mmhg", 150.0, 1100.0, {}),
+        # a sea-level FiO2 of 0.05 up to the FiO2 breathed (air: 0.2095, ussa1976)
+        (alt.altitude_of_sea_level_fio2, "fio2_sea_level", 0.05, 0.2095, {}),
+        (
+            alt.pao2_at_altitude_gilbert1974,
+            "pao2_origin_mmhg",
+            1.0,
+            800.0,
+            {"pao2_alveolar_origin_mmhg": 1100.0, "pao2_alveolar_destination_mmhg": 60.0},
+        ),
+        (
+            alt.pao2_at_altitude_gilbert1974,
+            "pao2_alveolar_destination_mmhg",
+            -1100.0,
+            1100.0,
+            {"pao2_origin_mmhg": 70.0, "pao2_alveolar_origin_mmhg": 100.0},
+        ),
+        (alt.fio2_for_alveolar_po2, "pao2_alveolar_mmhg", 0.0, 1e5, {"pb_mmhg": 760.0, "paco2_mmhg": 40.0}),
+        (
+            alt.fio2_for_alveolar_po2,
+            "pb_mmhg",
+            150.0,
+            1100.0,
+            {"pao2_alveolar_mmhg": 60.0, "paco2_mmhg": 40.0},
+        ),
+        (
+            alt.max_altitude_for_target_pao2,
+            "target_pao2_mmhg",
+            20.0,
+            200.0,
+            {"a_a_ratio": 0.8, "fio2_fraction": 0.21, "paco2_mmhg": 40.0},
+        ),
+        (
+            alt.max_altitude_for_target_pao2,
+            "a_a_ratio",
+            0.01,
+            1.0,
+            {"target_pao2_mmhg": 50.0, "fio2_fraction": 0.21, "paco2_mmhg": 40.0},
+        ),
+        (
+            alt.max_altitude_for_target_pao2,
+            "fio2_fraction",
+            0.05,
+            1.0,
+            {"target_pao2_mmhg": 50.0, "a_a_ratio": 0.8, "paco2_mmhg": 40.0},
+        ),
+        (
+            alt.max_altitude_for_target_pao2,
+            "tolerance_m",
+            1e-6,
+            10.0,
+            {"target_pao2_mmhg": 50.0, "a_a_ratio": 0.8, "fio2_fraction": 0.21, "paco2_mmhg": 40.0},
+        ),
+        (alt.trapped_gas_volume_dry, "volume_ml", 0.1, 20_000.0, _PBS),
+        (alt.trapped_gas_volume_saturated_37c, "volume_ml", 0.1, 20_000.0, _PBS),
+        (
+            alt.trapped_gas_volume_saturated_37c,
+            "pb_destination_mmhg",
+            150.0,
+            1100.0,
+            {"volume_ml": 100.0, "pb_origin_mmhg": 760.0},
+        ),
+    ],
+)
+def test_each_input_is_accepted_exactly_over_its_documented_range(func, field, low, high, base):
+    assert_accepted_range(func, field, low, high, **base)
+
+
+def test_the_alveolar_po2_at_the_origin_must_be_above_0_and_at_most_1100():
+    # the docstring: PAO2 at the origin above 0 (a/A = PaO2 / PAO2) and up to 1100 mmHg; just above 0 it is
+    # accepted as a number, and then refused as below the arterial PO2 (a/A above 1 is impossible)
+    dest = {"pao2_alveolar_destination_mmhg": 60.0}
+    for alv0, field, code in [
+        (0.0, "pao2_alveolar_origin_mmhg", "out_of_range"),
+        (1e-9, "pao2_origin_mmhg", "inconsistent"),
+        (1100.0 * (1 + 1e-9), "pao2_alveolar_origin_mmhg", "out_of_range"),
+    ]:
+        with pytest.raises(InputError) as refused:
+            alt.pao2_at_altitude_gilbert1974(pao2_origin_mmhg=1.0, pao2_alveolar_origin_mmhg=alv0, **dest)
+        assert (refused.value.field, refused.value.code) == (field, code), alv0
+    # gilbert1974: PaO2_dest = PaO2 / PAO2 x PAO2_dest (derived)
+    assert alt.pao2_at_altitude_gilbert1974(
+        pao2_origin_mmhg=800.0, pao2_alveolar_origin_mmhg=1100.0, **dest
+    ) == pytest.approx(800.0 / 1100.0 * 60.0, rel=1e-12)
+
+
+def test_the_cabin_limit_is_8000_ft():
+    # asma2008 (a pressurised cabin at 8,000 ft at most); nist811: 1 ft = 0.3048 m exactly
+    assert alt.CABIN_LIMIT_M == pytest.approx(8000 * 0.3048, abs=1e-9)
+
+
+@pytest.mark.parametrize("tolerance_m", [1e-4, 1e-6, 0.5, 10.0, 11_500.0 / 2**20])
+def test_the_bisection_halves_the_isa_span_until_the_tolerance(tolerance_m):
+    # bisection (derived): from the span -500 to 11 000 m (icao7488 troposphere) each step halves the
+    # bracket, so it stops after ceil(log2(11 500 m / tolerance)) steps: once the bracket is no wider than
+    # the tolerance (11 500 / 2^20 m: exactly 20 halvings, in binary floating point too)
+    r = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=50.0, a_a_ratio=0.7019, fio2_fraction=0.21, paco2_mmhg=40.0, tolerance_m=tolerance_m
+    )
+    assert r.status == "solved"
+    assert r.iterations == math.ceil(math.log2(11_500.0 / tolerance_m))
+
+
+def test_a_target_met_exactly_at_the_ceiling_holds_there():
+    # gilbert1974 a/A 1.0 with FiO2 1.0: the target set to the predicted PaO2 at 11 000 m itself (the ISA
+    # pressure there, alveolar_gas_1946 simple form through oxygenation) is still met at the ceiling
+    # ("holds_at_ceiling": PaO2 >= target), with no bisection step; 0.01 mmHg more is not
+    pb_top = alt.pressure_at_altitude_isa(altitude_m=11_000.0)
+    at_top = alveolar_po2_simple(fio2_fraction=1.0, paco2_mmhg=40.0, pb_mmhg=pb_top, rq=0.8)
+    assert 20.0 <= at_top <= 200.0
+    held = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=at_top, a_a_ratio=1.0, fio2_fraction=1.0, paco2_mmhg=40.0
+    )
+    assert (held.status, held.altitude_m, held.iterations) == ("holds_at_ceiling", 11_000.0, 0)
+    missed = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=at_top + 0.01, a_a_ratio=1.0, fio2_fraction=1.0, paco2_mmhg=40.0
+    )
+    assert missed.status == "solved" and missed.altitude_m < 11_000.0 and missed.iterations > 0
+
+
+def test_a_target_met_exactly_at_the_lowest_altitude_is_solved_there():
+    # as above at the bottom of the model (-500 m, icao7488): a target equal to the predicted PaO2 there is
+    # still reached ("solved" at -500 m within the tolerance); 0.01 mmHg more is "not_reachable"
+    pb_low = alt.pressure_at_altitude_isa(altitude_m=-500.0)
+    at_low = alveolar_po2_simple(fio2_fraction=0.21, paco2_mmhg=40.0, pb_mmhg=pb_low, rq=0.8)
+    assert 20.0 <= at_low <= 200.0
+    met = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=at_low, a_a_ratio=1.0, fio2_fraction=0.21, paco2_mmhg=40.0
+    )
+    assert met.status == "solved" and met.altitude_m == pytest.approx(-500.0, abs=1e-4)
+    missed = alt.max_altitude_for_target_pao2(
+        target_pao2_mmhg=at_low + 0.01, a_a_ratio=1.0, fio2_fraction=0.21, paco2_mmhg=40.0
+    )
+    assert (missed.status, missed.altitude_m, missed.iterations) == ("not_reachable", None, 0)
+
+
+def test_an_arterial_po2_equal_to_the_alveolar_is_accepted():
+    # gilbert1974: a/A = PaO2 / PAO2 is at most 1 (no negative gradient); a/A exactly 1 carries the alveolar
+    # PO2 of the destination over unchanged, a PaO2 0.01 mmHg above the PAO2 is refused
+    same = alt.pao2_at_altitude_gilbert1974(
+        pao2_origin_mmhg=100.0, pao2_alveolar_origin_mmhg=100.0, pao2_alveolar_destination_mmhg=60.0
+    )
+    assert same == 60.0
+    with pytest.raises(InputError) as refused:
+        alt.pao2_at_altitude_gilbert1974(
+            pao2_origin_mmhg=100.01, pao2_alveolar_origin_mmhg=100.0, pao2_alveolar_destination_mmhg=60.0
+        )
+    assert (refused.value.field, refused.value.code) == ("pao2_origin_mmhg", "inconsistent")

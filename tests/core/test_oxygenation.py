@@ -16,6 +16,7 @@ from hypothesis import strategies as st
 
 import compare
 from casebook import close, load_cases
+from conftest import assert_accepted_range
 from tidewell.errors import InputError
 from tidewell.formulas import oxygenation as ox
 from tidewell.formulas.altitude import pressure_at_altitude_isa
@@ -347,3 +348,136 @@ def test_each_calls_an_elementwise_function_once_on_the_selected_rows():
     assert math.isnan(each(limit, False, age_years=30.0)) and each(limit, True, age_years=30.0) == 11.5
     assert np.isnan(each(limit, np.zeros(3, dtype=bool), age_years=np.full(3, NAN))).all()
     assert calls == [(3,), ()]
+
+
+# -- the Kelman 1966 fit, written here from its published coefficients ------------------------------------
+
+
+def kelman(x: float) -> float:
+    """kelman1966 (coefficients from memory): S = (a1 x + a2 x^2 + a3 x^3 + x^4) / (a4 + a5 x + a6 x^2
+    + a7 x^3 + x^4) for a PO2 x of 10 mmHg or more, 0.003683 x + 0.000584 x^2 below."""
+    if x < 10.0:
+        return 0.003683 * x + 0.000584 * x * x
+    a1, a2, a3 = -8.5322289e3, 2.1214010e3, -6.7073989e1
+    a4, a5, a6, a7 = 9.3596087e5, -3.1346258e4, 2.3961674e3, -6.7104406e1
+    return (a1 * x + a2 * x**2 + a3 * x**3 + x**4) / (a4 + a5 * x + a6 * x**2 + a7 * x**3 + x**4)
+
+
+@pytest.mark.parametrize("po2", [0.0, 5.0, 9.99, 10.0, 20.0, 26.8, 40.0, 60.0, 100.0, 150.0])
+def test_kelman_fit_follows_its_published_coefficients(po2):
+    # the fit itself (not its agreement with other curves, checked above to 0.01): to 1e-12 relative, so a
+    # change of one coefficient by one unit in its last digits shows
+    assert ox.saturation_kelman1966(po2_mmhg=po2) == pytest.approx(kelman(po2), rel=1e-12, abs=1e-15)
+
+
+# -- the accepted ranges, each end on both sides -------------------------------------------------------------
+# The project's plausibility limits of each input (no published source), written here by hand from the
+# docstrings (FiO2 0.05-1 or 0.21-1, PB 150-1100 mmHg, PaCO2 1-300 mmHg, R 0.5-1.5, PO2 0-800 mmHg on the
+# curves, 15-43 degC, Hb 1-25 g/dL ...): a change of one is then a decision, not an accident.
+
+_CONTENT = {"hb_g_dl": 15.0, "so2_fraction": 0.97, "po2_mmhg": 90.0}
+
+
+@pytest.mark.parametrize(
+    ("func", "field", "low", "high", "base"),
+    [
+        (ox.inspired_po2, "fio2_fraction", 0.05, 1.0, {}),
+        (ox.inspired_po2, "pb_mmhg", 150.0, 1100.0, {"fio2_fraction": 0.21}),
+        (ox.inspired_po2, "ph2o_mmhg", 0.0, 100.0, {"fio2_fraction": 0.21}),
+        (ox.alveolar_po2_simple, "paco2_mmhg", 1.0, 300.0, {"fio2_fraction": 0.21}),
+        (ox.alveolar_po2_simple, "rq", 0.5, 1.5, {"fio2_fraction": 0.21, "paco2_mmhg": 40.0}),
+        (ox.alveolar_po2_full, "paco2_mmhg", 1.0, 300.0, {"fio2_fraction": 0.21}),
+        (ox.alveolar_po2_full, "rq", 0.5, 1.5, {"fio2_fraction": 0.21, "paco2_mmhg": 40.0}),
+        (ox.aa_gradient_upper_by_age, "age_years", 0.0, 120.0, {}),
+        (ox.water_vapour_pressure_buck1981, "temperature_c", 0.0, 50.0, {}),
+        (ox.a_over_a_ratio, "pao2_mmhg", 1.0, 800.0, {"pao2_alveolar_mmhg": 1100.0}),
+        (ox.a_over_a_ratio, "pao2_alveolar_mmhg", 0.1, 1100.0, {"pao2_mmhg": 1.0}),
+        (ox.pf_ratio, "pao2_mmhg", 1.0, 800.0, {"fio2_fraction": 0.5}),
+        (ox.pf_ratio, "fio2_fraction", 0.21, 1.0, {"pao2_mmhg": 80.0}),
+        (
+            ox.pf_ratio_altitude_corrected_berlin,
+            "pb_mmhg",
+            150.0,
+            1100.0,
+            {"pao2_mmhg": 80.0, "fio2_fraction": 0.5},
+        ),
+        (ox.berlin_pf_band, "pf_mmhg", 0.0, 5000.0, {}),
+        (ox.sf_ratio, "spo2_percent", 1.0, 100.0, {"fio2_fraction": 0.5}),
+        (ox.sf_ratio, "fio2_fraction", 0.21, 1.0, {"spo2_percent": 95.0}),
+        (ox.pf_from_sf_rice2007, "sf", 64.0, 500.0, {}),
+        (
+            ox.oxygenation_index,
+            "fio2_fraction",
+            0.21,
+            1.0,
+            {"mean_airway_pressure_cmh2o": 15.0, "pao2_mmhg": 80.0},
+        ),
+        (
+            ox.oxygenation_index,
+            "mean_airway_pressure_cmh2o",
+            1.0,
+            60.0,
+            {"fio2_fraction": 0.5, "pao2_mmhg": 80.0},
+        ),
+        (
+            ox.oxygenation_index,
+            "pao2_mmhg",
+            1.0,
+            800.0,
+            {"fio2_fraction": 0.5, "mean_airway_pressure_cmh2o": 15.0},
+        ),
+        (ox.expected_pao2_by_age, "age_years", 0.0, 120.0, {}),
+        (ox.expected_pao2_sorbini1968, "age_years", 0.0, 120.0, {}),
+        (ox.saturation_severinghaus1979, "po2_mmhg", 0.0, 800.0, {}),
+        (ox.virtual_po2_kelman, "po2_mmhg", 0.0, 800.0, {}),
+        (ox.virtual_po2_kelman, "temperature_c", 15.0, 43.0, {"po2_mmhg": 60.0}),
+        (ox.virtual_po2_kelman, "ph", 6.0, 8.6, {"po2_mmhg": 60.0}),
+        (ox.virtual_po2_kelman, "pco2_mmhg", 1.0, 400.0, {"po2_mmhg": 60.0}),
+        (ox.virtual_po2_base_excess, "po2_mmhg", 0.0, 800.0, {}),
+        (ox.virtual_po2_base_excess, "temperature_c", 15.0, 43.0, {"po2_mmhg": 60.0}),
+        (ox.virtual_po2_base_excess, "ph", 6.0, 8.6, {"po2_mmhg": 60.0}),
+        (ox.virtual_po2_base_excess, "base_excess_mmol_l", -40.0, 40.0, {"po2_mmhg": 60.0}),
+        (ox.saturation_hill, "po2_mmhg", 0.0, 800.0, {}),
+        (ox.saturation_hill, "p50_mmhg", 5.0, 80.0, {"po2_mmhg": 40.0}),
+        (ox.saturation_hill, "n", 1.0, 4.0, {"po2_mmhg": 40.0}),
+        (ox.saturation_kelman1966, "po2_mmhg", 0.0, 800.0, {}),
+        (ox.oxygen_content, "hb_g_dl", 1.0, 25.0, {"so2_fraction": 0.97}),
+        (ox.oxygen_content, "so2_fraction", 0.0, 1.0, {"hb_g_dl": 15.0}),
+        (ox.oxygen_content, "hufner_ml_per_g", 1.30, 1.40, _CONTENT),
+        (ox.oxygen_content, "dissolved_ml_dl_mmhg", 0.0030, 0.0032, _CONTENT),
+        (ox.oxygen_content, "po2_mmhg", 0.0, 800.0, {"hb_g_dl": 15.0, "so2_fraction": 0.97}),
+        (ox.oxygen_delivery, "cao2_ml_dl", 0.0, 40.0, {"cardiac_output_l_min": 5.0}),
+        (ox.oxygen_delivery, "cardiac_output_l_min", 0.5, 30.0, {"cao2_ml_dl": 20.0}),
+    ],
+)
+def test_each_input_is_accepted_exactly_over_its_range(func, field, low, high, base):
+    assert_accepted_range(func, field, low, high, **base)
+
+
+def test_the_defaults_are_sea_level_and_the_standard_curve():
+    # alveolar_gas_1946: PIO2 = FiO2 x (760 - 47) at sea level (PB 760 mmHg, water vapour 47 mmHg at 37 degC)
+    assert ox.inspired_po2(fio2_fraction=0.21) == pytest.approx(0.21 * (760.0 - 47.0), abs=0.01)
+    # hill1910: S = PO2^n / (PO2^n + P50^n), the standard curve's P50 26.8 mmHg and n 2.7 (common practice)
+    assert ox.saturation_hill(po2_mmhg=40.0) == pytest.approx(40.0**2.7 / (40.0**2.7 + 26.8**2.7), rel=1e-12)
+
+
+@pytest.mark.parametrize("s", [0.01, 0.3, 0.5, 0.75, 0.9, 0.97, 0.99])
+def test_severinghaus_eq2_follows_its_published_form(s):
+    # severinghaus1979 eq 2: ln PO2 = 0.385 ln(1 / (1/S - 1)) + 3.32 - 1 / (72 S) - 0.17 S^6
+    expected = math.exp(0.385 * math.log(1 / (1 / s - 1)) + 3.32 - 1 / (72 * s) - 0.17 * s**6)
+    assert ox.po2_from_saturation_severinghaus1979(so2_fraction=s) == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize(("t", "ph", "pco2", "be"), [(32.0, 7.30, 50.0, -5.0), (40.0, 7.50, 30.0, 8.0)])
+def test_virtual_po2_factors_follow_their_published_form(t, ph, pco2, be):
+    # kelman1966 / severinghaus1979 (from memory): the PO2 at standard conditions is PO2 x 10^(0.024 (37 - T)
+    # + 0.40 (pH - 7.40) + 0.06 log10(40 / PCO2)); with the base excess 10^(0.024 (37 - T) + 0.48 (pH - 7.40)
+    # - 0.0013 BE)
+    kelman = 10 ** (0.024 * (37 - t) + 0.40 * (ph - 7.40) + 0.06 * math.log10(40 / pco2))
+    by_be = 10 ** (0.024 * (37 - t) + 0.48 * (ph - 7.40) - 0.0013 * be)
+    v = ox.virtual_po2_kelman(po2_mmhg=60.0, temperature_c=t, ph=ph, pco2_mmhg=pco2)
+    assert v.factor == pytest.approx(kelman, rel=1e-12) and v.po2_mmhg == pytest.approx(
+        60.0 * kelman, rel=1e-12
+    )
+    w = ox.virtual_po2_base_excess(po2_mmhg=60.0, temperature_c=t, ph=ph, base_excess_mmol_l=be)
+    assert w.factor == pytest.approx(by_be, rel=1e-12)

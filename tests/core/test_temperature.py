@@ -12,6 +12,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from casebook import close, load_cases
+from conftest import assert_accepted_range
 from tidewell.errors import InputError
 from tidewell.formulas import temperature as tc
 
@@ -140,3 +141,71 @@ def test_temperature_outside_range_is_refused(t):
     ):
         with pytest.raises(InputError, match="temperature_c"):
             fn(temperature_c=t, **kw)
+
+
+# -- the accepted ranges, each end on both sides -------------------------------------------------------------
+# The project's plausibility limits written in the docstrings (no published source): pH 6.5-8.0, PCO2 1-300
+# mmHg, PO2 1-800 mmHg, 15-43 degC.
+
+
+@pytest.mark.parametrize(
+    ("func", "field", "low", "high", "base"),
+    [
+        (tc.ph_at_temperature_rosenthal, "ph", 6.5, 8.0, {"temperature_c": 32.0}),
+        (tc.ph_at_temperature_rosenthal, "temperature_c", 15.0, 43.0, {"ph": 7.4}),
+        (tc.ph_at_37_rosenthal, "ph", 6.5, 8.0, {"temperature_c": 32.0}),
+        (tc.pco2_at_temperature, "pco2_mmhg", 1.0, 300.0, {"temperature_c": 32.0}),
+        (tc.pco2_at_temperature, "temperature_c", 15.0, 43.0, {"pco2_mmhg": 40.0}),
+        (tc.pco2_at_37, "pco2_mmhg", 1.0, 300.0, {"temperature_c": 32.0}),
+        (tc.po2_at_temperature_severinghaus, "po2_mmhg", 1.0, 800.0, {"temperature_c": 32.0}),
+        (tc.po2_at_temperature_severinghaus, "temperature_c", 15.0, 43.0, {"po2_mmhg": 90.0}),
+        (tc.severinghaus_po2_coefficient, "po2_mmhg", 1.0, 800.0, {}),
+        (tc.po2_at_37_severinghaus, "po2_mmhg", 1.0, 800.0, {"temperature_c": 32.0}),
+        (tc.po2_at_37_severinghaus, "temperature_c", 15.0, 43.0, {"po2_mmhg": 90.0}),
+    ],
+)
+def test_each_input_is_accepted_exactly_over_its_documented_range(func, field, low, high, base):
+    assert_accepted_range(func, field, low, high, **base)
+
+
+# -- the integrated PO2 form: midpoint steps of step_c, written here from eq 3 -----------------------------
+
+
+def k_eq3(po2: float) -> float:
+    """severinghaus1979 eq 3 as read in docs (0.243 x (PO2/100)^3.88): d ln PO2 / dT [1/degC]."""
+    return 0.058 / (0.243 * (po2 / 100.0) ** 3.88 + 1.0) + 0.013
+
+
+def midpoint(po2: float, t_from: float, t_to: float, steps: int) -> float:
+    """The midpoint rule for d ln PO2 / dT = k(PO2), in ``steps`` equal steps (derived)."""
+    dt = (t_to - t_from) / steps
+    for _ in range(steps):
+        half = po2 * math.exp(0.5 * dt * k_eq3(po2))
+        po2 *= math.exp(dt * k_eq3(half))
+    return po2
+
+
+@pytest.mark.parametrize(
+    ("t", "step_c", "steps"),
+    [
+        (32.0, 1.0, 5),
+        (32.0, 5.0, 1),
+        (32.0, 10.0, 1),
+        (41.0, 1.0, 4),
+        (36.95, 0.1, 1),
+        (42.0, 2.0, 3),
+        (37.0, 0.1, 1),
+    ],
+)
+def test_the_integrated_form_takes_whole_steps_of_step_c(t, step_c, steps):
+    # the docstring: eq 3 integrated in steps of step_c degC (at least one step); |T - 37| / step_c rounded up
+    assert steps == max(1, math.ceil(abs(t - 37.0) / step_c))
+    forward = tc.po2_at_temperature_severinghaus(
+        po2_mmhg=90.0, temperature_c=t, integrate=True, step_c=step_c
+    )
+    assert forward == pytest.approx(midpoint(90.0, 37.0, t, steps), rel=1e-12)
+    back = tc.po2_at_37_severinghaus(po2_mmhg=70.0, temperature_c=t, integrate=True, step_c=step_c)
+    assert back == pytest.approx(midpoint(70.0, t, 37.0, steps), rel=1e-12)
+    # one step more gives a result 10 times further off than the tolerance: a wrong step count shows
+    if steps < 5 and t != 37.0:  # at 37 degC there is nothing to integrate: the PO2 itself
+        assert abs(midpoint(90.0, 37.0, t, steps) / midpoint(90.0, 37.0, t, steps + 1) - 1) > 1e-11

@@ -13,6 +13,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from conftest import assert_accepted_range
 from tidewell.errors import InputError
 from tidewell.formulas import transport
 from tidewell.units import PSI_PA
@@ -204,3 +205,93 @@ def test_plan_rejects_fractional_cylinder_count():
         transport.oxygen_supply_plan(
             water_capacity_l=2.0, pressure_bar=200.0, flow_l_min=2.0, duration_min=30.0, cylinders=1.5
         )
+
+
+# -- the accepted ranges and the boundaries of the plan (each end on both sides) ---------------------------
+# The accepted ranges are the project's plausibility limits written in each function's docstring (no published
+# source): a cylinder of 0.1-100 L water capacity at 1-350 bar, flows of 0.1-200 L/min, 1 min to 72 h.
+
+
+@pytest.mark.parametrize(
+    ("func", "field", "low", "high", "base"),
+    [
+        (transport.free_gas_litres, "water_capacity_l", 0.1, 100.0, {"pressure_bar": 200.0}),
+        (transport.free_gas_litres, "pressure_bar", 1.0, 350.0, {"water_capacity_l": 10.0}),
+        (transport.usable_litres, "free_gas_l", 0.0, 1e7, {}),
+        (transport.usable_litres, "reserve_fraction", 0.0, 0.9, {"free_gas_l": 100.0}),
+        (transport.required_litres, "flow_l_min", 0.1, 200.0, {"duration_min": 60.0}),
+        (transport.required_litres, "duration_min", 1.0, 4320.0, {"flow_l_min": 2.0}),
+        (transport.required_litres, "safety_factor", 1.0, 3.0, {"flow_l_min": 2.0, "duration_min": 60.0}),
+        (transport.minutes_available, "litres", 0.0, 1e7, {"flow_l_min": 2.0}),
+        (transport.minutes_available, "flow_l_min", 0.1, 200.0, {"litres": 100.0}),
+        (transport.cylinders_needed, "required_l", 0.0, 1e7, {"usable_per_cylinder_l": 400.0}),
+        (transport.cylinders_needed, "usable_per_cylinder_l", 1e-9, 1e6, {"required_l": 400.0}),
+        (transport.ventilator_oxygen_flow, "minute_ventilation_l_min", 0.5, 60.0, {"fio2_fraction": 0.5}),
+        (transport.ventilator_oxygen_flow, "fio2_fraction", 0.21, 1.0, {"minute_ventilation_l_min": 8.0}),
+        (
+            transport.ventilator_oxygen_flow,
+            "device_allowance_l_min",
+            0.0,
+            60.0,
+            {"minute_ventilation_l_min": 8.0, "fio2_fraction": 0.5},
+        ),
+    ],
+)
+def test_each_domain_input_is_accepted_exactly_over_its_documented_range(func, field, low, high, base):
+    assert_accepted_range(func, field, low, high, **base)
+
+
+def test_the_residual_pressure_is_accepted_from_0_up_to_below_the_gauge_pressure():
+    # docstring: residual accepted 0 to below the gauge pressure; at the gauge pressure there is no usable
+    # gas (cylinder_ideal_gas: V = WC x (P - P_residual) / 1.01325 would be 0), so it is refused
+    assert transport.free_gas_litres(water_capacity_l=1.01325, pressure_bar=200.0, residual_bar=0.0) == 200.0
+    assert transport.free_gas_litres(water_capacity_l=1.01325, pressure_bar=350.0, residual_bar=349.0) > 0
+    with pytest.raises(InputError) as refused:
+        transport.free_gas_litres(water_capacity_l=10.0, pressure_bar=200.0, residual_bar=-1e-9)
+    assert (refused.value.field, refused.value.code) == ("residual_bar", "out_of_range")
+    with pytest.raises(InputError) as refused:
+        transport.free_gas_litres(water_capacity_l=10.0, pressure_bar=200.0, residual_bar=200.0)
+    assert (refused.value.field, refused.value.code) == ("residual_bar", "inconsistent")
+
+
+@pytest.mark.parametrize(("n", "accepted"), [(0, False), (1, True), (100, True), (101, False)])
+def test_the_plan_takes_1_to_100_cylinders(n, accepted):
+    # docstring: 1-100 identical cylinders (a plausibility limit of the project)
+    plan = dict(water_capacity_l=2.0, pressure_bar=200.0, flow_l_min=2.0, duration_min=30.0)
+    if accepted:
+        assert transport.oxygen_supply_plan(**plan, cylinders=n).available_litres == pytest.approx(
+            n * 2.0 * 200.0 / 1.01325,
+            rel=1e-12,  # cylinder_ideal_gas: n x WC x P / 1.01325 (derived)
+        )
+    else:
+        with pytest.raises(InputError) as refused:
+            transport.oxygen_supply_plan(**plan, cylinders=n)
+        assert (refused.value.field, refused.value.code) == ("cylinders", "out_of_range")
+
+
+def test_no_requirement_still_needs_one_cylinder():
+    # the docstring: ceil(need / each), at least 1 (common practice: a journey takes at least one cylinder)
+    assert transport.cylinders_needed(required_l=0.0, usable_per_cylinder_l=400.0) == 1
+    assert transport.cylinders_needed(required_l=400.0, usable_per_cylinder_l=400.0) == 1
+    assert transport.cylinders_needed(required_l=400.1, usable_per_cylinder_l=400.0) == 2
+
+
+@pytest.mark.parametrize(("minutes", "sufficient"), [(100.0, True), (101.0, False)])
+def test_a_plan_is_sufficient_when_the_usable_oxygen_equals_the_requirement(minutes, sufficient):
+    # cylinder_ideal_gas: 1.01325 L x 200 bar / 1.01325 = 200 L of free gas (exact in binary floating point:
+    # checked below); transport_reserve: 2 L/min for 100 min with no safety factor needs 200 L, so the plan
+    # is just sufficient ("sufficient when usable >= required"); 101 min needs 202 L and is not
+    assert 1.01325 * 200.0 / 1.01325 == 200.0
+    plan = transport.oxygen_supply_plan(
+        water_capacity_l=1.01325, pressure_bar=200.0, flow_l_min=2.0, duration_min=minutes, safety_factor=1.0
+    )
+    assert plan.usable_litres == 200.0 and plan.required_litres == 2.0 * minutes
+    assert plan.sufficient is sufficient
+
+
+def test_the_planned_oxygen_has_no_safety_factor_and_the_required_has():
+    # transport_reserve: planned = flow x duration (4 L/min x 90 min = 360 L); required = planned x 1.5
+    plan = transport.oxygen_supply_plan(
+        water_capacity_l=2.0, pressure_bar=200.0, flow_l_min=4.0, duration_min=90.0, safety_factor=1.5
+    )
+    assert plan.planned_litres == 360.0 and plan.required_litres == 540.0

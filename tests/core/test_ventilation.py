@@ -14,6 +14,7 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from casebook import close, load_cases
+from conftest import assert_accepted_range
 from tidewell.errors import InputError
 from tidewell.formulas import ventilation as vn
 
@@ -343,3 +344,187 @@ def test_pco2_from_etco2_refuses_an_etco2_below_1(field):
     with pytest.raises(InputError) as info:
         vn.pco2_from_etco2(**kwargs)
     assert info.value.field == field
+
+
+# -- the accepted ranges, each end on both sides -------------------------------------------------------------
+# The project's plausibility limits of each input (no published source), written here by hand from the
+# docstrings where they give them (VT 50-2000 mL, RR 4-60/min, height 120-230 cm, PCO2 5-250 mmHg, VCO2
+# 10-5000 mL/min, VE 0.2-120 L/min, core temperature 25-43 degC, I and E parts 0.1-10), else as the module has
+# had them since written (PBW 10-150 kg, weight 10-350 kg, EtCO2 1-250 mmHg ...): a change is then a decision.
+
+_MECH = {
+    "paco2_mmhg": 60.0,
+    "ve_l_min": 8.0,
+    "vd_vt": 0.3,
+    "vco2_ml_min": 200.0,
+    "vco2_reference_ml_min": 200.0,
+}
+_ET = {"paco2_mmhg": 60.0, "etco2_mmhg": 40.0, "etco2_now_mmhg": 40.0}
+_TARGET = {"vt_ml": 500.0, "rr_per_min": 16.0, "vd_ml": 150.0, "paco2_mmhg": 60.0, "target_paco2_mmhg": 45.0}
+
+
+def _without(base: dict, field: str) -> dict:
+    return {k: v for k, v in base.items() if k != field}
+
+
+@pytest.mark.parametrize(
+    ("func", "field", "low", "high", "base"),
+    [
+        (vn.minute_ventilation, "vt_ml", 50.0, 2000.0, {"rr_per_min": 12.0}),
+        (vn.minute_ventilation, "rr_per_min", 4.0, 60.0, {"vt_ml": 500.0}),
+        (vn.alveolar_ventilation, "vt_ml", 50.0, 2000.0, {"vd_ml": 0.0, "rr_per_min": 12.0}),
+        (vn.alveolar_ventilation, "rr_per_min", 4.0, 60.0, {"vt_ml": 500.0, "vd_ml": 150.0}),
+        (vn.predicted_body_weight_ardsnet, "height_cm", 120.0, 230.0, {"sex": "male"}),
+        (vn.anatomical_dead_space, "pbw_kg", 10.0, 150.0, {}),
+        (vn.paco2_from_alveolar_ventilation, "vco2_ml_min", 10.0, 5000.0, {"va_l_min": 5.0}),
+        (vn.paco2_from_alveolar_ventilation, "va_l_min", 0.001, 120.0, {"vco2_ml_min": 200.0}),
+        (vn.alveolar_ventilation_for_paco2, "vco2_ml_min", 10.0, 5000.0, {"paco2_mmhg": 40.0}),
+        (vn.alveolar_ventilation_for_paco2, "paco2_mmhg", 5.0, 250.0, {"vco2_ml_min": 200.0}),
+        (vn.vd_vt_enghoff, "paco2_mmhg", 5.0, 250.0, {"peco2_mmhg": 0.0}),
+        (vn.vd_vt_bohr, "paco2_alveolar_mmhg", 1.0, 250.0, {"peco2_mmhg": 0.0}),
+        (vn.alveolar_dead_space_fraction, "paco2_mmhg", 5.0, 250.0, {"etco2_mmhg": 0.0}),
+        (vn.vd_vt_from_vco2, "paco2_mmhg", 5.0, 250.0, {"vco2_ml_min": 10.0, "ve_l_min": 120.0}),
+        (vn.vd_vt_from_vco2, "vco2_ml_min", 10.0, 5000.0, {"paco2_mmhg": 250.0, "ve_l_min": 120.0}),
+        (vn.vd_vt_from_vco2, "ve_l_min", 0.2, 120.0, {"paco2_mmhg": 250.0, "vco2_ml_min": 10.0}),
+        (vn.vco2_from_expired_co2, "ve_l_min", 0.2, 120.0, {"peco2_mmhg": 30.0}),
+        (vn.vco2_from_expired_co2, "peco2_mmhg", 0.1, 250.0, {"ve_l_min": 8.0}),
+        (vn.vco2_resting_estimate, "weight_kg", 10.0, 350.0, {}),
+        (vn.vco2_with_fever, "vco2_ml_min", 10.0, 5000.0, {"temperature_c": 38.0}),
+        (vn.vco2_with_fever, "temperature_c", 25.0, 43.0, {"vco2_ml_min": 200.0}),
+        (vn.vco2_with_fever, "rate_per_degc", 0.0, 0.2, {"vco2_ml_min": 200.0, "temperature_c": 39.0}),
+        (vn.vt_per_kg, "vt_ml", 50.0, 2000.0, {"pbw_kg": 70.0}),
+        (vn.vt_per_kg, "pbw_kg", 10.0, 150.0, {"vt_ml": 500.0}),
+        (vn.lung_protective_vt, "pbw_kg", 10.0, 150.0, {}),
+        (vn.respiratory_timing, "rr_per_min", 0.1, 150.0, {}),
+        (vn.respiratory_timing, "i_part", 0.1, 10.0, {"rr_per_min": 12.0}),
+        (vn.respiratory_timing, "e_part", 0.1, 10.0, {"rr_per_min": 12.0}),
+        (vn.to_target, "paco2_mmhg", 5.0, 250.0, _without(_TARGET, "paco2_mmhg")),
+        (vn.to_target, "target_paco2_mmhg", 15.0, 120.0, _without(_TARGET, "target_paco2_mmhg")),
+        (vn.co2_mechanisms, "paco2_mmhg", 5.0, 250.0, _without(_MECH, "paco2_mmhg")),
+        (vn.co2_mechanisms, "ve_l_min", 0.2, 120.0, _without(_MECH, "ve_l_min")),
+        (vn.co2_mechanisms, "vco2_ml_min", 10.0, 5000.0, _without(_MECH, "vco2_ml_min")),
+        (vn.co2_mechanisms, "vco2_reference_ml_min", 10.0, 5000.0, _without(_MECH, "vco2_reference_ml_min")),
+        (vn.co2_mechanisms, "vd_vt_reference", 0.05, 0.6, _MECH),
+        (vn.co2_mechanisms, "paco2_reference_mmhg", 20.0, 60.0, _MECH),
+        (vn.pco2_from_etco2, "paco2_mmhg", 5.0, 250.0, _without(_ET, "paco2_mmhg")),
+        (vn.pco2_from_etco2, "etco2_mmhg", 1.0, 250.0, _without(_ET, "etco2_mmhg")),
+        (vn.pco2_from_etco2, "etco2_now_mmhg", 1.0, 250.0, _without(_ET, "etco2_now_mmhg")),
+    ],
+)
+def test_each_input_is_accepted_exactly_over_its_range(func, field, low, high, base):
+    assert_accepted_range(func, field, low, high, **base)
+
+
+@pytest.mark.parametrize(
+    ("text", "parts"),
+    [("0.1:10", (0.1, 10.0)), ("10:0.1", (10.0, 0.1)), ("1:2", (1.0, 2.0))]
+    + [(t, None) for t in ("0.09:2", "10.01:1", "1:0.09", "1:10.01", "1:2:3", "1")],
+)
+def test_an_ie_ratio_takes_two_parts_of_0_1_to_10(text, parts):
+    # the docstring: I:E written with two numbers from 0.1 to 10 (the limits of respiratory_timing's parts)
+    if parts is None:
+        with pytest.raises(InputError) as refused:
+            vn.parse_ie_ratio(text)
+        assert (refused.value.field, refused.value.code) == ("ie_ratio", "bad_request")
+    else:
+        assert vn.parse_ie_ratio(text) == parts
+
+
+def test_the_breath_is_split_1_to_2_by_default():
+    # expiratory_time (common practice): I:E 1:2 unless given; at 20/min a 3 s cycle, Ti 1 s, Te 2 s
+    timing = vn.respiratory_timing(rr_per_min=20.0)
+    assert timing.cycle_s == pytest.approx(3.0) and timing.ti_s == pytest.approx(1.0)
+    assert timing.te_s == pytest.approx(2.0)
+
+
+def test_the_lung_protective_band_is_4_to_8_ml_per_kg():
+    # ardsnet2000: 6 mL/kg predicted body weight, within 4-8 mL/kg; at 70 kg 280, 420 and 560 mL
+    band = vn.lung_protective_vt(pbw_kg=70.0)
+    assert (band.low_ml, band.target_ml, band.high_ml) == pytest.approx((280.0, 420.0, 560.0), rel=1e-12)
+
+
+def test_the_resting_vco2_band_per_kg_is_2_5_to_3():
+    # jette1990_met (from memory): 1 MET 3.5 mL O2/kg/min x R 0.8 = 2.8 mL CO2/kg/min, within the usual band
+    # of 2.5-3 mL/kg/min (resting_vco2, from memory); at 70 kg 196 mL/min
+    assert vn.VCO2_ML_PER_KG_MIN_BAND == (2.5, 3.0)
+    assert vn.vco2_resting_estimate(weight_kg=70.0) == pytest.approx(3.5 * 0.8 * 70.0, rel=1e-12)
+
+
+@pytest.mark.parametrize(("factor", "refused"), [(1.0, True), (1.0 + 1e-9, False)])
+def test_a_vd_vt_of_exactly_0_is_refused(factor, refused):
+    # VD/VT = 1 - K x VCO2 / (PaCO2 x VE) (alveolar_ventilation, K_BTPS above): with VE = K x VCO2 / PaCO2 the
+    # whole VE is alveolar and VD/VT is 0, which no lung has (normal VD/VT about 0.2-0.35, common practice):
+    # refused; a VE one part in 1e9 higher leaves a dead space just above 0
+    ve = K_BTPS * 10.0 / 10.0 * factor
+    assert (1.0 - K_BTPS * 10.0 / (10.0 * ve) == 0.0) is refused
+    if refused:
+        with pytest.raises(InputError) as error:
+            vn.vd_vt_from_vco2(paco2_mmhg=10.0, vco2_ml_min=10.0, ve_l_min=ve)
+        assert (error.value.field, error.value.code) == ("vco2_ml_min", "inconsistent")
+    else:
+        assert 0.0 < vn.vd_vt_from_vco2(paco2_mmhg=10.0, vco2_ml_min=10.0, ve_l_min=ve) < 1e-8
+
+
+@pytest.mark.parametrize(
+    ("func", "paco2_field"), [(vn.vd_vt_enghoff, "paco2_mmhg"), (vn.vd_vt_bohr, "paco2_alveolar_mmhg")]
+)
+def test_mixed_expired_pco2_from_0_to_below_the_paco2(func, paco2_field):
+    # enghoff1938 / bohr1891: VD/VT = (P - PECO2) / P; a PECO2 of 0 gives 1, one at or above P no dead-space
+    # fraction (mixed expired gas is always below alveolar): refused as inconsistent, up to the PCO2 limit of
+    # 250 mmHg; beyond that range and below 0 as out of range
+    assert func(**{paco2_field: 40.0}, peco2_mmhg=0.0) == 1.0
+    assert func(**{paco2_field: 40.0}, peco2_mmhg=30.0) == pytest.approx((40.0 - 30.0) / 40.0, rel=1e-12)
+    for peco2, code in [(-1e-9, "out_of_range"), (41.0, "inconsistent"), (250.0, "inconsistent")]:
+        with pytest.raises(InputError) as refused:
+            func(**{paco2_field: 40.0}, peco2_mmhg=peco2)
+        assert (refused.value.field, refused.value.code) == ("peco2_mmhg", code), peco2
+    with pytest.raises(InputError) as refused:
+        func(**{paco2_field: 40.0}, peco2_mmhg=250.0 * (1 + 1e-9))
+    assert (refused.value.field, refused.value.code) == ("peco2_mmhg", "out_of_range")
+
+
+def test_the_end_tidal_pco2_is_accepted_from_0_to_250():
+    # etco2_gradient: (PaCO2 - PetCO2) / PaCO2, negative when PetCO2 exceeds PaCO2 (returned as is)
+    assert_accepted_range(vn.alveolar_dead_space_fraction, "etco2_mmhg", 0.0, 250.0, paco2_mmhg=40.0)
+    assert vn.alveolar_dead_space_fraction(paco2_mmhg=40.0, etco2_mmhg=50.0) == pytest.approx(-0.25)
+
+
+@pytest.mark.parametrize(("vd_vt", "accepted"), [(0.0, False), (1e-9, True), (1 - 1e-9, True), (1.0, False)])
+def test_the_mechanisms_take_a_vd_vt_strictly_between_0_and_1(vd_vt, accepted):
+    # alveolar_ventilation: PaCO2 = K x VCO2 / (VE x (1 - VD/VT)) needs some alveolar and some dead-space
+    # ventilation for its logarithmic split (co2_log_shares)
+    kwargs = {**_MECH, "vd_vt": vd_vt}
+    if accepted:
+        assert vn.co2_mechanisms(**kwargs).log_terms["dead_space"] == pytest.approx(
+            math.log((1 - 0.30) / (1 - vd_vt)), rel=1e-12
+        )
+    else:
+        with pytest.raises(InputError) as refused:
+            vn.co2_mechanisms(**kwargs)
+        assert (refused.value.field, refused.value.code) == ("vd_vt", "out_of_range")
+
+
+def test_the_published_bands_the_breathing_calculation_reads():
+    # fever_vco2: metabolic rate up 10-13 % per degC of fever; pco2_normal_range: hypercapnia above 45 mmHg
+    assert vn.FEVER_RATE_BAND == (0.10, 0.13)
+    assert vn.PACO2_NORMAL_HIGH_MMHG == 45.0
+
+
+def test_the_dead_space_is_accepted_from_0_to_below_the_tidal_volume():
+    # alveolar_ventilation: VA = (VT - VD) x RR; VD from 0 mL up to 2000 mL but below VT (VD >= VT leaves no
+    # alveolar ventilation: refused as inconsistent); below 0 or above 2000 mL out of range
+    assert vn.alveolar_ventilation(vt_ml=500.0, vd_ml=0.0, rr_per_min=12.0) == pytest.approx(6.0, rel=1e-12)
+    for vt, vd, code in [(500.0, -1e-9, "out_of_range"), (2000.0, 2000.0, "inconsistent")]:
+        with pytest.raises(InputError) as refused:
+            vn.alveolar_ventilation(vt_ml=vt, vd_ml=vd, rr_per_min=12.0)
+        assert (refused.value.field, refused.value.code) == ("vd_ml", code), vd
+    with pytest.raises(InputError) as refused:
+        vn.alveolar_ventilation(vt_ml=2000.0, vd_ml=2000.0 * (1 + 1e-9), rr_per_min=12.0)
+    assert (refused.value.field, refused.value.code) == ("vd_ml", "out_of_range")
+
+
+@pytest.mark.parametrize(("t", "vco2"), [(36.5, 200.0), (37.0, 200.0), (37.5, 210.0), (38.0, 220.0)])
+def test_fever_raises_the_vco2_from_37_degc(t, vco2):
+    # fever_vco2: metabolic rate up about 10 % per degC of fever, above a normal core temperature of 37 degC
+    # (common practice); none at or below 37
+    assert vn.vco2_with_fever(vco2_ml_min=200.0, temperature_c=t, rate_per_degc=0.10) == pytest.approx(vco2)

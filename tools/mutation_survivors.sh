@@ -1,0 +1,49 @@
+#!/usr/bin/env bash
+# Re-run only the surviving mutants of an earlier tools/mutation.sh run against the committed tree. Slow
+# modules need hours for a full run; tests are only ever added between the two runs, so a mutant killed
+# before stays killed and only the survivors need running again (docs/testing.md says which scores were
+# measured this way).
+#
+# Usage:
+#   bash tools/mutation_survivors.sh <module> <earlier MUTATION_DIR>
+#
+# Copies <earlier>/<module>.sqlite to $MUTATION_DIR (default /tmp/tidewell-mutation-survivors), marks its
+# survivors pending, and lets cosmic-ray run them with the module's test selection from tools/mutation.sh
+# on a copy of the committed tree (git archive HEAD), under nice -n 19. Prints the survivors left and the
+# score (killed / mutants run; cr-rate also counts the mutants its operator filter skipped).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+m=${1:?module} earlier=${2:?earlier MUTATION_DIR}
+py=${PYTHON:-python3}
+out=${MUTATION_DIR:-/tmp/tidewell-mutation-survivors}
+[ "$(realpath -m "$out")" != "$(realpath -m "$earlier")" ] || { echo "MUTATION_DIR must differ from $earlier" >&2; exit 2; }
+source <(sed -n '/^declare -A TESTS=(/,/^)/p' tools/mutation.sh)
+tests=${TESTS[$m]:?unknown module $m}
+mkdir -p "$out"
+rm -rf "$out/tree-$m" && mkdir -p "$out/tree-$m"
+git archive HEAD | tar -x -C "$out/tree-$m"
+cp "$earlier/$m.sqlite" "$out/$m.sqlite"
+sed "s|^test-command = .*|test-command = \"env PYTHONPATH=core $py -m pytest -x -q -p no:cacheprovider --hypothesis-seed=0 $tests\"|" \
+    "$earlier/$m.toml" >"$out/$m.toml"
+"$py" - "$out/$m.sqlite" <<'EOF'
+import sqlite3, sys
+db = sqlite3.connect(sys.argv[1])
+n = db.execute("DELETE FROM work_results WHERE test_outcome = 'SURVIVED'").rowcount
+db.commit()
+print(f"survivors to run again: {n}")
+EOF
+cd "$out/tree-$m"
+nice -n 19 cosmic-ray exec "$out/$m.toml" "$out/$m.sqlite"
+"$py" - "$out/$m.sqlite" <<'EOF' | tee "$out/$m.survivors"
+import sqlite3, sys
+db = sqlite3.connect(sys.argv[1])
+rows = db.execute(
+    "SELECT s.start_pos_row, s.operator_name, r.diff FROM mutation_specs s JOIN work_results r"
+    " ON s.job_id = r.job_id WHERE r.test_outcome = 'SURVIVED' ORDER BY s.start_pos_row"
+).fetchall()
+for row, op, diff in rows:
+    change = [x.strip() for x in diff.splitlines() if x[:1] in "+-" and not x.startswith(("+++", "---"))]
+    print(f"line {row} {op.split('/')[-1]}: " + " -> ".join(change))
+killed = db.execute("SELECT count(*) FROM work_results WHERE test_outcome = 'KILLED'").fetchone()[0]
+print(f"killed {killed} of {killed + len(rows)} ({100 * killed / (killed + len(rows)):.1f} %)")
+EOF
