@@ -21,7 +21,7 @@ def values(browser, calc: str) -> dict:
     return browser.js(
         "const out = {};"
         "for (const box of document.querySelectorAll('#p-' + arguments[0] + ' [data-input]')) {"
-        "  const i = box.querySelector('input, select');"
+        "  const i = box.querySelector('input, select:not(.unit)');"
         "  if (i.type === 'checkbox') { if (i.checked) out[box.dataset.input] = true; }"
         "  else if (i.value) out[box.dataset.input] = i.value; }"
         "return out;",
@@ -199,6 +199,12 @@ def test_a_did_you_mean_under_a_field_is_applied_with_one_tap(browser, server):
     text, shown = field_note(browser, "blood_gas", "fio2")
     assert shown and "FiO2 0.28 % is not a percentage (21 to 100 %)" in text, text
     assert "inputs." not in text and "JSON" not in text and "{" not in text
+    # the value is marked, not its unit list (which shares the field and comes first in it)
+    marked = browser.js(
+        "return [...document.querySelectorAll('#p-blood_gas [data-input=fio2] [aria-invalid=true]')]"
+        ".map((e) => e.id)"
+    )
+    assert marked == ["p-blood_gas-fio2"], marked
     offer = browser.driver.find_element(By.CSS_SELECTOR, "#p-blood_gas [data-input=fio2] .offer button")
     assert offer.text == "Use 28 %"
     tap(browser, By.CSS_SELECTOR, "#p-blood_gas [data-input=fio2] .offer button")

@@ -375,7 +375,7 @@ export class Panel {
       delete p.dataset.held;
       p.hidden = false;
       const box = p.closest("[data-input]");
-      box.querySelector("input, select").setAttribute("aria-invalid", "true");
+      box.querySelector("input, select:not(.unit)").setAttribute("aria-invalid", "true");
       box.querySelector(".offer").hidden = !box.querySelector(".offer").childElementCount;
     }
     const none = this.report.querySelector(".report-none");
@@ -604,7 +604,7 @@ export class Panel {
             p.dataset.held = "1";
             offer.hidden = true;
           } else {
-            box.querySelector("input, select").setAttribute("aria-invalid", "true");
+            box.querySelector("input, select:not(.unit)").setAttribute("aria-invalid", "true");
             offer.hidden = !offer.childElementCount;
           }
           const details = box.closest("details");
