@@ -395,6 +395,15 @@ export class Panel {
     });
     this.near.replaceChildren(el("strong", {}, "Reading: "), headline, " ", go);
     this.near.hidden = false;
+    // in sight beside the field being typed: scrolled up just enough to clear a bottom bar, never so far
+    // that the field itself leaves the screen
+    const active = document.activeElement;
+    if (!active || !this.form.contains(active)) return;
+    const bar = document.querySelector(".screens-nav")?.getBoundingClientRect();
+    const limit = bar && bar.top > innerHeight / 2 ? Math.min(bar.top, innerHeight) : innerHeight;
+    const over = this.near.getBoundingClientRect().bottom - limit + 8;
+    const room = active.getBoundingClientRect().top - 8;
+    if (over > 0 && room > 0) window.scrollBy({ top: Math.min(over, room) });
   }
 
   renderIdle() {
