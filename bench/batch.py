@@ -57,7 +57,8 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "core"))
 
-from tidewell import __version__, batch, bridge  # noqa: E402
+from tidewell import __version__, bridge  # noqa: E402
+from tidewell.frontends import batch  # noqa: E402
 
 COLUMNS = [
     "id",

@@ -5,7 +5,7 @@ Each test sits where a one-character change of tidewell/course.py (a comparison 
 the answer, with the expected value written from the source (a references.py key beside it) and both sides
 of the threshold. Gases are built with the Henderson-Hasselbalch equation (henderson1908: S 0.0307, pK 6.1),
 so each triple agrees; the PaCO2 aim a threshold rests on is the one the blood_gas calculation gives for that
-gas (the rule set belongs to it), never a value read from tidewell.course.
+gas (the rule set belongs to it), never a value read from tidewell.calculations.course.
 
 Provenance beside each check: *published*, *derived* (computed from the cited equation), *common practice*,
 *from memory*. Sources are keys of tidewell.references.
