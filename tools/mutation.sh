@@ -19,7 +19,7 @@ out=${MUTATION_DIR:-/tmp/tidewell-mutation}
 "$py" -m pip install -q "cosmic-ray==8.7.0" # the pin of pyproject.toml's `mutation` extra
 
 declare -A TESTS=(
-    [acidbase]="tests/core/test_acidbase.py tests/core/test_thresholds.py"
+    [acidbase]="tests/core/test_acidbase.py tests/core/test_acidbase_ranges.py tests/core/test_thresholds.py"
     [blood_gas]="tests/core/test_thresholds.py tests/core/test_retainer_rules.py"
     [oxygenation]="tests/core/test_oxygenation.py tests/core/test_thresholds.py"
     [ventilation]="tests/core/test_ventilation.py"
