@@ -1173,12 +1173,12 @@ def delta_ratio(*, anion_gap_mmol_l: float, hco3_mmol_l: float) -> float:
     anion_gap_mmol_l : float
         [mmol/L] Accepted -150 to 200 (a derived value; extreme values mean the inputs need checking).
     hco3_mmol_l : float
-        [mmol/L] Accepted 0.5 to below 24 (undefined at 24 and above).
+        [mmol/L] Accepted 0.5 to 23.5 (undefined at 24; a fall of under 0.5 makes it meaningless).
 
     Raises
     ------
     InputError
-        When HCO3 is 23.5 or more: the ratio is undefined or meaningless (division by a near-zero fall).
+        When HCO3 is above 23.5: the ratio is undefined or meaningless (division by a near-zero fall).
 
     References
     ----------
