@@ -5,6 +5,9 @@
 #   bash tools/mutation.sh                         every module below, every constant and comparison
 #   bash tools/mutation.sh blood_gas course        some modules
 #   MUTATION_SUBSET=1 bash tools/mutation.sh ...   only the names listed in SUBSET below (docs/testing.md)
+#   MUTATION_PATHS="a.py b.py" bash tools/mutation.sh blood_gas
+#                                                  only those files of one module, with its tests (to run
+#                                                  a big module as parallel parts, each its own MUTATION_DIR)
 #
 # The mutants are the audit's kind: one number changed (cosmic-ray's NumberReplacer, +1 / -1) or one
 # comparison replaced (ReplaceComparisonOperator_*), one at a time. Each module runs its own fast test
@@ -20,7 +23,8 @@ out=${MUTATION_DIR:-/tmp/tidewell-mutation}
 
 declare -A TESTS=(
     [acidbase]="tests/core/test_acidbase.py tests/core/test_acidbase_ranges.py tests/core/test_thresholds.py"
-    [blood_gas]="tests/core/test_thresholds.py tests/core/test_retainer_rules.py"
+    [blood_gas]="tests/core/test_thresholds.py tests/core/test_retainer_rules.py tests/core/test_finding_codes.py
+        tests/core/test_messages.py tests/core/test_pressure_wording.py tests/core/test_blood_gas.py"
     [oxygenation]="tests/core/test_oxygenation.py tests/core/test_thresholds.py"
     [ventilation]="tests/core/test_ventilation.py"
     [altitude]="tests/core/test_altitude.py"
@@ -64,11 +68,14 @@ for m in "${modules[@]}"; do
     tests=${TESTS[$m]:?unknown module $m}
     path=${PATHS[$m]}
     [ -z "${MUTATION_SUBSET:-}" ] || path=${SUBSET_PATHS[$m]:-$path}
+    [ -z "${MUTATION_PATHS:-}" ] || path=$MUTATION_PATHS
+    tests=$(echo $tests) # one line
+    module_path=$(printf '"%s", ' $path)
     cfg="$out/$m.toml"
     db="$out/$m.sqlite"
     {
         echo "[cosmic-ray]"
-        echo "module-path = \"$path\""
+        echo "module-path = [${module_path%, }]"
         echo "timeout = 300.0"
         echo "excluded-modules = []"
         echo "test-command = \"env PYTHONPATH=core $py -m pytest -x -q -p no:cacheprovider --hypothesis-seed=0 $tests\""
