@@ -116,6 +116,7 @@ PARTS = {
     "snapshot_tried": "looking for the snapshot",
     "snapshot_read": "snapshot read (from start)",
     "snapshot_checked": "snapshot sha256 checked (from start)",
+    "snapshot_awaited": "snapshot needed by loadPyodide (from start)",
     "runtime": "loadPyodide (snapshot: restore)",
     "install": "install tidewell",
     "import": "import tidewell",
