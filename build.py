@@ -830,12 +830,15 @@ def build(
     precache = {"./" + e["path"]: e["sha256"] for e in listing if e["path"] not in later}
     precache["./build-manifest.json"] = sha256_bytes(files["build-manifest.json"])
     precache = dict(sorted(precache.items()))
+    sizes = {"./" + e["path"]: e["size"] for e in listing if "./" + e["path"] in precache}
+    sizes["./build-manifest.json"] = len(files["build-manifest.json"])
     sw = template.decode()
-    for placeholder in ("__BUILD_ID__", "__PRECACHE__", "__DEFERRED__"):
+    for placeholder in ("__BUILD_ID__", "__PRECACHE__", "__DEFERRED__", "__SIZES__"):
         if placeholder not in sw:
             raise BuildError(f"webshell/sw.js lacks the placeholder {placeholder}")
     sw = sw.replace("__BUILD_ID__", build_id).replace("__PRECACHE__", json.dumps(precache, indent=2))
     sw = sw.replace("__DEFERRED__", json.dumps(dict(sorted(deferred.items())), indent=2))
+    sw = sw.replace("__SIZES__", json.dumps(dict(sorted(sizes.items())), indent=2))
     files["sw.js"] = sw.encode()
     sums = "".join(f"{sha256_bytes(d)}  {p}\n" for p, d in sorted(files.items()))
     files["SHA256SUMS"] = sums.encode()

@@ -1,5 +1,6 @@
-// Tidewell's service worker. build.py fills in BUILD_ID and PRECACHE (every file of the build with its
-// sha256, from build-manifest.json); this file in webshell/ is the template and is not served as is.
+// Tidewell's service worker. build.py fills in BUILD_ID, PRECACHE and DEFERRED (files of the build with
+// their sha256, as build-manifest.json lists them) and SIZES (their bytes); this file in webshell/ is the
+// template and is not served as is.
 //
 // - install: store every file of the build, awaited, so a failed download fails the install and the
 //   previous version keeps running. Files whose bytes did not change since an older build already on
@@ -8,7 +9,7 @@
 //   a 304 instead of a second copy). Every stored file is then checked against its sha256; a mismatch
 //   (a stale copy from some cache on the way) is fetched again past every cache, then refused.
 // - progress: while it stores, the worker tells every window of the site how far it is, in bytes of the
-//   build manifest's sizes ("tidewell:stored:<bytes stored>:<bytes in all>"), after each file; the page
+//   build's sizes (SIZES) ("tidewell:stored:<bytes stored>:<bytes in all>"), after each file; the page
 //   shows "x MB of y MB stored". Files copied from an older build count as stored at once.
 // - later: the files of DEFERRED (the engine's memory snapshot, and the wheel only the benchmark's other
 //   install routes use) are not part of the install: a first visit never waits for them. The page posts
@@ -24,6 +25,8 @@ const BUILD_ID = "__BUILD_ID__";
 const CACHE = `tidewell-${BUILD_ID}`;
 const PRECACHE = __PRECACHE__;
 const DEFERRED = __DEFERRED__;
+// url -> bytes of every file of PRECACHE (build.py writes it from the same listing): the progress count
+const SIZES = __SIZES__;
 const EXPECTED = { ...PRECACHE, ...DEFERRED };
 
 // the build's cache, opened once per service-worker start rather than once per request
@@ -72,16 +75,6 @@ async function announce(stored, total) {
   }
 }
 
-// url -> bytes, from the build manifest (which lists every file but itself: its own length is measured)
-async function precacheSizes() {
-  const response = await fetch(new Request("./build-manifest.json", { cache: "no-cache" }));
-  const body = await response.clone().arrayBuffer();
-  const manifest = JSON.parse(new TextDecoder().decode(body));
-  const sizes = new Map(manifest.files.map((f) => [`./${f.path}`, f.size]));
-  sizes.set("./build-manifest.json", body.byteLength);
-  return sizes;
-}
-
 const PARALLEL = 4; // downloads at a time (cache.addAll's parallelism, with a count after each file)
 
 async function precache() {
@@ -89,8 +82,7 @@ async function precache() {
   try {
     const reused = await reuseOlderBuilds(cache);
     const wanted = Object.keys(PRECACHE).filter((url) => !reused.has(url));
-    const sizes = await precacheSizes().catch(() => new Map());
-    const size = (url) => sizes.get(url) || 0;
+    const size = (url) => SIZES[url] || 0;
     const total = Object.keys(PRECACHE).reduce((sum, url) => sum + size(url), 0);
     let stored = [...reused].reduce((sum, url) => sum + (url in PRECACHE ? size(url) : 0), 0);
     await announce(stored, total);

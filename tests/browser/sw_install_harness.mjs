@@ -16,7 +16,8 @@ const sha256 = (text) => createHash("sha256").update(text).digest("hex");
 const source = readFileSync(template, "utf8")
   .replace('"__BUILD_ID__"', '"b1"')
   .replace("__PRECACHE__", JSON.stringify({ "./core.whl": sha256(RIGHT) }))
-  .replace("__DEFERRED__", "{}"); // files stored after install (none here), where the template has them
+  .replace("__DEFERRED__", "{}") // files stored after install (none here), where the template has them
+  .replace("__SIZES__", JSON.stringify({ "./core.whl": RIGHT.length })); // as build.py writes them
 
 class FakeRequest {
   constructor(url, init = {}) {
@@ -44,12 +45,9 @@ class FakeCache {
 }
 const stores = new Map();
 const fetches = [];
-// the build manifest lists the file with the size of the build's bytes (build.py writes it so)
-const MANIFEST = JSON.stringify({ files: [{ path: "core.whl", size: RIGHT.length, sha256: sha256(RIGHT) }] });
 const messages = [];
 async function fetchFake(request) {
   fetches.push([request.url, request.cache]);
-  if (request.url === "./build-manifest.json") return new Response(MANIFEST);
   const right = scenario === "stale-then-right" && request.cache === "reload";
   return new Response(right ? RIGHT : WRONG);
 }
@@ -70,7 +68,6 @@ const context = {
   Uint8Array,
   Object,
   Error,
-  TextDecoder,
   fetch: fetchFake,
   self: {
     addEventListener: (type, fn) => (listeners[type] = fn),

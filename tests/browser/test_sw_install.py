@@ -3,7 +3,7 @@
 A browser cannot be made to serve a wrong file to the service worker's own install without a proxy, so
 the install handler of webshell/sw.js runs under node (sw_install_harness.mjs) with an in-memory Cache
 Storage and a fake network: no browser is started. The template's placeholders are filled as build.py
-fills them (a build id and the precache map of url -> sha256).
+fills them (a build id, the precache map of url -> sha256 and the sizes of url -> bytes).
 """
 
 from __future__ import annotations
@@ -37,10 +37,9 @@ def test_a_file_that_never_matches_its_hash_is_refused_and_nothing_is_kept():
     assert result["outcome"] == "refused", result
     assert "is not the file of build" in result["message"]
     assert result["cacheKept"] is False  # nothing half-stored: the previous version keeps running
-    # the manifest read for the sizes; the file fetched once revalidated, then once more past every cache
-    # before refusing
+    # the file fetched once revalidated, then once more past every cache before refusing (the sizes for
+    # the progress count are in sw.js: nothing else is fetched)
     assert result["fetches"] == [
-        ["./build-manifest.json", "no-cache"],
         ["./core.whl", "no-cache"],
         ["./core.whl", "reload"],
     ]
@@ -52,6 +51,6 @@ def test_a_stale_copy_is_fetched_again_past_every_cache(scenario):
     assert result["outcome"] == "installed", result
     assert result["body"] == "the build's bytes" and result["cacheKept"] is True
     assert result["fetches"][-1] == ["./core.whl", "reload"]
-    # the page was told how far it got, in the manifest's bytes: none of 17 stored, then all 17
+    # the page was told how far it got, in the build's bytes: none of 17 stored, then all 17
     size = len("the build's bytes")
     assert result["messages"] == [f"tidewell:stored:0:{size}", f"tidewell:stored:{size}:{size}"]
