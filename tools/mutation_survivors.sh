@@ -11,26 +11,35 @@
 # survivors pending, and lets cosmic-ray run them with the module's test selection from tools/mutation.sh
 # on a copy of the committed tree (git archive HEAD), under nice -n 19. Prints the survivors left and the
 # score (killed / mutants run; cr-rate also counts the mutants its operator filter skipped).
+# An earlier run stopped part way: the mutants it never ran are left out of the copy (counted "not run").
+# MUTATION_RECHECK=<file>: a JSON list of job ids to run again as well (e.g. mutants killed by a larger
+# test selection, or by cosmic-ray's timeout while the run was paused).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 m=${1:?module} earlier=${2:?earlier MUTATION_DIR}
 py=${PYTHON:-python3}
 out=${MUTATION_DIR:-/tmp/tidewell-mutation-survivors}
 [ "$(realpath -m "$out")" != "$(realpath -m "$earlier")" ] || { echo "MUTATION_DIR must differ from $earlier" >&2; exit 2; }
-source <(sed -n '/^declare -A TESTS=(/,/^)/p' tools/mutation.sh)
+source <(sed -n '/^declare -A TESTS=(/,/^)/p; /^declare -A NO_CHECK=/p' tools/mutation.sh)
 tests=${TESTS[$m]:?unknown module $m}
+tests=$(echo $tests) # one line
 mkdir -p "$out"
 rm -rf "$out/tree-$m" && mkdir -p "$out/tree-$m"
 git archive HEAD | tar -x -C "$out/tree-$m"
 cp "$earlier/$m.sqlite" "$out/$m.sqlite"
-sed "s|^test-command = .*|test-command = \"env PYTHONPATH=core $py -m pytest -x -q -p no:cacheprovider --hypothesis-seed=0 $tests\"|" \
+sed "s|^test-command = .*|test-command = \"env PYTHONPATH=core TIDEWELL_NO_RESPONSE_CHECK=${NO_CHECK[$m]:-0} $py -m pytest -x -q -p no:cacheprovider --hypothesis-seed=0 $tests\"|" \
     "$earlier/$m.toml" >"$out/$m.toml"
-"$py" - "$out/$m.sqlite" <<'EOF'
-import sqlite3, sys
+"$py" - "$out/$m.sqlite" "${MUTATION_RECHECK:-}" <<'EOF'
+import json, sqlite3, sys
 db = sqlite3.connect(sys.argv[1])
+never = "SELECT job_id FROM work_items WHERE job_id NOT IN (SELECT job_id FROM work_results)"
+dropped = db.execute(f"DELETE FROM mutation_specs WHERE job_id IN ({never})").rowcount
+db.execute(f"DELETE FROM work_items WHERE job_id IN ({never})")
 n = db.execute("DELETE FROM work_results WHERE test_outcome = 'SURVIVED'").rowcount
+again = json.load(open(sys.argv[2])) if sys.argv[2] else []
+k = sum(db.execute("DELETE FROM work_results WHERE job_id = ?", (j,)).rowcount for j in again)
 db.commit()
-print(f"survivors to run again: {n}")
+print(f"survivors to run again: {n}; named to run again: {k}; never run before, left out: {dropped}")
 EOF
 cd "$out/tree-$m"
 nice -n 19 cosmic-ray exec "$out/$m.toml" "$out/$m.sqlite"
