@@ -24,6 +24,7 @@ from tidewell.bridge import handle_obj
 from tidewell.calculations import blood_gas
 from tidewell.calculations.blood_gas import reading
 from tidewell.fields import Inputs
+from tidewell.frontends import batch
 
 KPA = 1000.0 / 133.322387415  # mmHg per kPa (references.py bipm2019)
 
@@ -74,10 +75,10 @@ def fires_on_both_paths(inputs: dict, code: str) -> tuple[bool, bool]:
     return bool(scalar.finding[code]), bool(np.asarray(together.finding[code]).reshape(-1)[0])
 
 
-# -- display decimals (docs/bridge.md, display: a clinical choice made in the core) ----------------------------
+# -- display decimals (docs/bridge.md, display: a clinical choice made in the core) ------------------------
 #
-# common practice: a pH and a fraction (fraction acute, delta ratio) to 2 decimals, a concentration in mmol/L or
-# mEq/L to 1, the P/F ratio in mmHg whole (docs/cli.md: "no decimals in mmHg").
+# common practice: a pH and a fraction (fraction acute, delta ratio) to 2 decimals, a concentration in
+# mmol/L or mEq/L to 1, the P/F ratio in mmHg whole (docs/cli.md: "no decimals in mmHg").
 
 
 def test_display_decimals_of_a_respiratory_acidosis_with_a_known_baseline():
@@ -89,7 +90,9 @@ def test_display_decimals_of_a_respiratory_acidosis_with_a_known_baseline():
 
 def test_display_decimals_of_a_concurrent_respiratory_acidosis_with_a_known_baseline():
     # metabolic acidosis, HCO3 12: Winters 1.5 x 12 + 8 = 26 +/- 2 (albert1967); PaCO2 50 is above it
-    r = bg({"ph": ph_of(12, 50), "pco2": q(50, "mmHg"), "hco3": q(12, "mmol/L"), "baseline_pco2": q(45, "mmHg")})
+    r = bg(
+        {"ph": ph_of(12, 50), "pco2": q(50, "mmHg"), "hco3": q(12, "mmol/L"), "baseline_pco2": q(45, "mmHg")}
+    )
     assert r["outputs"]["disorders"][1]["code"] == "respiratory_acidosis"
     assert r["display"]["fraction_acute_baseline"] == 2
 
@@ -134,7 +137,7 @@ def test_display_decimals_of_the_stewart_partition_and_the_temperature_view():
     assert display["ph_at_temperature"] == 2
 
 
-# -- accepted ranges (the project's plausibility limits, docs/glossary/acidbase.md; not published values) -------
+# -- accepted ranges (the project's plausibility limits, docs/glossary/acidbase.md; not published values) ---
 
 BASE = {"ph": 7.40, "pco2": q(40, "mmHg"), "hco3": q(24, "mmol/L")}
 
@@ -199,3 +202,372 @@ def test_accepted_range_of_each_blood_gas_input(field, unit, low, high, base):
     from conftest import assert_accepted_range
 
     assert_accepted_range(reader(unit, **base), field, low, high)
+
+
+# -- decisions on both paths, wording of the report -------------------------------------------------------
+
+
+def paths(inputs: dict):
+    """(disorders, findings) of blood_gas.decide's scalar answer and of its answer on numpy arrays of one
+    sample (element 0 of each array), through the package's own scalar views."""
+    scalar, together = both_paths(inputs)
+
+    def first(value):
+        if isinstance(value, dict):
+            return {k: first(v) for k, v in value.items()}
+        if isinstance(value, tuple):
+            return (
+                type(value)(*(first(v) for v in value))
+                if hasattr(value, "_fields")
+                else tuple(map(first, value))
+            )
+        return np.asarray(value).reshape(-1)[0].item() if isinstance(value, np.ndarray) else value
+
+    row = blood_gas.Decision(**{k: first(v) for k, v in vars(together).items()})
+    return [
+        ([(d["code"], d["role"]) for d in blood_gas.disorders(d)], set(blood_gas.findings(d)))
+        for d in (scalar, row)
+    ]
+
+
+def test_tentative_alkalaemia_named_from_the_larger_contribution():
+    # pH 7.46 with PCO2 36 and HCO3 inside 22-26: both lean alkalotic (PCO2 below 40, HCO3 above 24); the
+    # larger contribution |log10(PCO2/40)| against |log10(24/HCO3)| names the primary (acid_base_normal_ranges,
+    # common practice)
+    h = hco3_of(7.46, 36)
+    assert 24 < h < 26
+    assert abs(math.log10(36 / 40)) > abs(math.log10(24 / h))
+    for disorders, found in paths({"ph": 7.46, "pco2": q(36, "mmHg"), "hco3": q(h, "mmol/L")}):
+        assert disorders[0] == ("respiratory_alkalosis", "primary")
+        assert "borderline_values" in found
+
+
+def test_acute_respiratory_acidosis_is_not_judged_against_a_metabolic_compensation():
+    # AB-03: pH 7.25, PaCO2 60, HCO3 26: acute respiratory acidosis (narins1980); the PaCO2 compensation
+    # bands of a metabolic primary do not apply
+    for disorders, found in paths({"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L")}):
+        assert disorders == [("respiratory_acidosis", "primary")]
+        assert not found & {"concurrent_respiratory_acidosis", "compensation_as_expected"}
+
+
+def test_metabolic_acidosis_within_winters_band_on_both_paths():
+    # AB-01: pH 7.28, PaCO2 26, HCO3 12: Winters 1.5 x 12 + 8 = 26 +/- 2 (albert1967), so compensated; 26 is
+    # below the metabolic alkalosis band (40 + 0.7 x (12 - 24) - 5 = 26.6), which must not be used
+    for disorders, found in paths({"ph": 7.28, "pco2": q(26, "mmHg"), "hco3": q(12, "mmol/L")}):
+        assert disorders == [("metabolic_acidosis", "primary")]
+        assert "compensation_as_expected" in found
+        assert "concurrent_respiratory_alkalosis" not in found
+
+
+@pytest.mark.parametrize(("pco2", "drift"), [(70.0, False), (70.1, True)])
+def test_ph_rule_drift_above_a_rise_of_30_mmhg(pco2, drift):
+    # the linear pH rules drift above a rise of about 30 mmHg (berend2014): the finding from PaCO2 > 70
+    h = 24 + 1.0 * (pco2 - 40) / 10  # acute (narins1980)
+    r = bg({"ph": ph_of(h, pco2), "pco2": q(pco2, "mmHg"), "hco3": q(h, "mmol/L")})
+    assert ("ph_rule_drift" in codes(r)) is drift
+    # the HCO3 rules read acute, the pH rules otherwise: the text says the pH rules drift only above 30 mmHg
+    assert ("drift" in finding_text(r, "chronicity_rules_disagree")) is drift
+
+
+@pytest.mark.parametrize(("aa", "category"), [(8.4, "normal"), (8.6, "needs_age")])
+def test_a_a_gradient_without_age_is_normal_up_to_the_young_adult_limit(aa, category):
+    # without an age the A-a gradient reads normal up to the limit at 18 years, 18/4 + 4 = 8.5 mmHg
+    # (aa_gradient_age, common practice); PAO2 = 0.21 x (760 - 47) - 60 / 0.8 (alveolar gas equation)
+    pao2_a = 0.21 * (760 - 47) - 60 / 0.8
+    r = bg(
+        {"ph": ph_of(26, 60), "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L"), "po2": q(pao2_a - aa, "mmHg")}
+    )
+    assert r["outputs"]["a_a_category"] == category
+
+
+def test_an_alveolar_po2_of_exactly_zero_is_shown():
+    # PAO2 = FiO2 x (PB - 47) - PaCO2 / R (alveolar gas equation) = 0.25 x 400 - 100 / 1 = 0: shown; only a
+    # negative alveolar PO2 is left out (docs/glossary/acidbase.md)
+    r = bg(
+        {
+            "ph": ph_of(30, 100),
+            "pco2": q(100, "mmHg"),
+            "hco3": q(30, "mmol/L"),
+            "po2": q(20, "mmHg"),
+            "fio2": 0.25,
+            "pb": q(447, "mmHg"),
+            "rq": 1.0,
+        }
+    )
+    assert r["outputs"]["pao2_alveolar"]["value"] == pytest.approx(0.0, abs=1e-9)
+
+
+def test_oxygen_probably_given_names_an_alveolar_po2_of_zero_not_a_negative_one():
+    # no FiO2 recorded, PaCO2 130: on air PAO2 = 0.21 x 713 - 130 / 0.8 = -12.8 mmHg (alveolar gas
+    # equation); a partial pressure is not negative, so the text names 0
+    r = bg(
+        {"ph": 7.10, "pco2": q(130, "mmHg"), "hco3": q(hco3_of(7.10, 130), "mmol/L"), "po2": q(70, "mmHg")}
+    )
+    assert "(0 mmHg)" in finding_text(r, "oxygen_probably_given")
+
+
+# -- more -------------------------------------------------------------------------------------------------
+
+
+def test_compensation_as_expected_never_read_on_a_respiratory_primary():
+    # PaCO2 34.9 with HCO3 22.5: a chronic respiratory alkalosis at a normal pH; the metabolic alkalosis band
+    # 40 + 0.7 x (HCO3 - 24) +/- 5 (berend2014) holds this PaCO2 but belongs to a metabolic primary only
+    h = 22.5
+    for disorders, found in paths({"ph": ph_of(h, 34.9), "pco2": q(34.9, "mmHg"), "hco3": q(h, "mmol/L")}):
+        assert disorders[0] == ("respiratory_alkalosis", "primary")
+        assert "compensation_as_expected" not in found
+
+
+def test_metabolic_alkalosis_is_the_primary_before_a_concurrent_respiratory_acidosis():
+    # HCO3 36 with PaCO2 55: above 40 + 0.7 x 12 + 5 = 53.4 mmHg (berend2014): a metabolic alkalosis with a
+    # concurrent respiratory acidosis; at pH 7.43 (above 7.40) the alkalotic process is primary (common
+    # practice)
+    assert ph_of(36, 55) > 7.40
+    inputs = {"ph": ph_of(36, 55), "pco2": q(55, "mmHg"), "hco3": q(36, "mmol/L")}
+    for disorders, _ in paths(inputs):
+        assert disorders == [("metabolic_alkalosis", "primary"), ("respiratory_acidosis", "concurrent")]
+    # the batch audit names them in the same order, the primary first
+    table = f"ph,pco2[mmHg],hco3[mmol/L]\n{ph_of(36, 55)},55,36\n{ph_of(36, 47)},47,36\n"
+    audit = batch.interpret_table(batch.read_table(table))
+    assert audit.value("disorders", 0) == "metabolic_alkalosis respiratory_acidosis"
+    assert audit.value("disorders", 1) == "metabolic_alkalosis"
+
+
+def test_base_excess_differs_on_either_side():
+    # pH 7.40, PaCO2 40, HCO3 24: the SBE is about 0 (CLSI, nccls1994); a reported base excess far below or
+    # far above is named, one within 1 mmol/L is not
+    base = {"ph": 7.40, "pco2": q(40, "mmHg"), "hco3": q(24, "mmol/L")}
+    for be, differs in ((-10.0, True), (10.0, True), (-1.0, False), (1.0, False)):
+        for _, found in paths({**base, "base_excess": q(be, "mmol/L")}):
+            assert ("base_excess_differs" in found) is differs, be
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "ph_status", "pco2_status"),
+    [
+        (7.50, 30.0, "alkalaemia", "hypocapnia"),
+        (7.30, 50.0, "acidaemia", "hypercapnia"),
+        (7.40, 40.0, "normal", "normal"),
+    ],
+)
+def test_ph_and_pco2_status_on_both_paths(ph, pco2, ph_status, pco2_status):
+    # pH 7.35-7.45, PCO2 35-45 mmHg (acid_base_normal_ranges)
+    scalar, together = both_paths({"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(hco3_of(ph, pco2), "mmol/L")})
+    for d in (scalar, together):
+        assert np.asarray(d.ph_status).reshape(-1)[0] == ph_status
+        assert np.asarray(d.pco2_status).reshape(-1)[0] == pco2_status
+
+
+def test_a_venous_sample_is_not_a_capillary_one():
+    inputs = {"ph": 7.35, "pco2": q(50, "mmHg"), "hco3": q(hco3_of(7.35, 50), "mmol/L"), "po2": q(40, "mmHg")}
+    for _, found in paths({**inputs, "sample": "venous"}):
+        assert "venous_sample" in found
+        assert not found & {"capillary_po2", "capillary_sample"}
+    for _, found in paths({**inputs, "sample": "capillary"}):
+        assert {"capillary_po2", "capillary_sample"} <= found
+
+
+def test_mixed_high_and_normal_gap_acidosis_beside_a_respiratory_acidosis():
+    # PaCO2 80, HCO3 14, Na 140, Cl 110: AG 16; the HCO3 before the gap, 14 + (16 - 12) = 18 (wrenn1990), is
+    # still below the acute expectation 24 + (80 - 40)/10 = 28 less 2 (narins1980): a normal-gap part as well
+    inputs = {
+        "ph": ph_of(14, 80),
+        "pco2": q(80, "mmHg"),
+        "hco3": q(14, "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(110, "mmol/L"),
+    }
+    assert bg(inputs)["outputs"]["metabolic_acidosis_type"] == "high_and_normal_anion_gap"
+
+
+def test_the_copenhagen_paco2_rule_belongs_to_a_metabolic_primary():
+    # metabolic acidosis: PaCO2 = 40 + SBE; metabolic alkalosis: 40 + 0.6 x SBE, +/- 5 (schlichtig1998)
+    acid = finding_text(
+        bg({"ph": 7.25, "pco2": q(26, "mmHg"), "hco3": q(hco3_of(7.25, 26), "mmol/L")}), "approaches_agree"
+    )
+    assert "40 + SBE" in acid and "0.6 x SBE" not in acid
+    alk = bg({"ph": 7.50, "pco2": q(47, "mmHg"), "hco3": q(36, "mmol/L")})
+    sbe = alk["outputs"]["standard_base_excess"]["value"]
+    assert abs(47 - (40 + 0.6 * sbe)) <= 5.0
+    assert "PaCO2 fits 40 + 0.6 x SBE" in finding_text(alk, "approaches_agree")
+    # a respiratory primary gets no such PaCO2 rule (AB-03, acute respiratory acidosis)
+    resp = finding_text(bg({"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L")}), "approaches_agree")
+    assert "fit" not in resp
+
+
+STEWART = {"na": q(140, "mmol/L"), "albumin": q(4.2, "g/dL"), "lactate": q(1, "mmol/L")}
+
+
+def test_the_three_readings_agree_on_a_hyperchloraemic_acidosis():
+    # Na - Cl - 35 = -7 mEq/L (story2016): an acidifying effect of 5 or more, with the HCO3 and SBE readings
+    r = bg(
+        {
+            "ph": 7.25,
+            "pco2": q(26, "mmHg"),
+            "hco3": q(hco3_of(7.25, 26), "mmol/L"),
+            "cl": q(112, "mmol/L"),
+            **STEWART,
+        }
+    )
+    assert "approaches_agree" in codes(r)
+
+
+def test_a_stewart_reading_that_differs_is_explained():
+    # HCO3 reading: a metabolic acidosis; Stewart (story2016): no effect of 5 mEq/L or more
+    r = bg(
+        {
+            "ph": 7.33,
+            "pco2": q(37, "mmHg"),
+            "hco3": q(hco3_of(7.33, 37), "mmol/L"),
+            "cl": q(106, "mmol/L"),
+            **STEWART,
+        }
+    )
+    assert "Stewart splits the net change" in finding_text(r, "approaches_disagree")
+
+
+@pytest.mark.parametrize(("cl", "alkalinising"), [(98.0, True), (101.0, False)])
+def test_a_na_cl_effect_of_5_or_more_is_alkalinising(cl, alkalinising):
+    # Na - Cl - 35 (story2016): +7 and +4 mEq/L against the 5 mEq/L size of a process
+    r = bg(
+        {
+            "ph": 7.25,
+            "pco2": q(26, "mmHg"),
+            "hco3": q(hco3_of(7.25, 26), "mmol/L"),
+            "cl": q(cl, "mmol/L"),
+            **STEWART,
+        }
+    )
+    text = finding_text(r, "approaches_agree" if "approaches_agree" in codes(r) else "approaches_disagree")
+    assert ("hypochloraemic (Na-Cl) alkalinising effect" in text) is alkalinising
+
+
+def test_the_osmolality_formula_says_when_urea_came_from_bun():
+    base = {**BASE, "na": q(140, "mmol/L"), "glucose": q(5, "mmol/L")}
+    for key, said in (("bun", True), ("urea", False)):
+        r = bg({**base, key: q(5, "mmol/L")})
+        step = next(s for s in r["steps"] if s.get("output") == "osmolality_calculated")
+        assert ("(urea from BUN)" in step["formula"]) is said
+        assert r["display"]["osmolality_calculated"] == 0  # mOsm/kg whole (common practice)
+    r = bg({**base, "urea": q(5, "mmol/L"), "measured_osmolality": q(300, "mOsm/kg")})
+    assert r["display"]["osmolar_gap"] == 0
+
+
+def test_the_stewart_partition_says_when_lactate_was_not_given():
+    base = {**BASE, "na": q(140, "mmol/L"), "cl": q(104, "mmol/L"), "albumin": q(4.2, "g/dL")}
+    labels = [s["label"] for s in bg(base)["steps"]]
+    assert any("lactate not given: counted as 0" in label for label in labels)
+    labels = [s["label"] for s in bg({**base, "lactate": q(1, "mmol/L")})["steps"]]
+    assert not any("lactate not given" in label for label in labels)
+
+
+def test_stewart_defaults_are_the_documented_typical_values():
+    # absent ionised calcium, magnesium and phosphate are taken as 1.2, 0.9 and 1.0 mmol/L
+    # (docs/glossary/acidbase.md)
+    base = {
+        **BASE,
+        "na": q(140, "mmol/L"),
+        "cl": q(104, "mmol/L"),
+        "k": q(4, "mmol/L"),
+        "albumin": q(4.2, "g/dL"),
+    }
+    given = {"ca_ionised": q(1.2, "mmol/L"), "mg": q(0.9, "mmol/L"), "phosphate": q(1.0, "mmol/L")}
+    assumed = bg(base)["outputs"]
+    for key, value in given.items():
+        told = bg({**base, key: value})["outputs"]
+        for name in ("sid_apparent", "strong_ion_gap"):
+            assert told[name]["value"] == pytest.approx(assumed[name]["value"], abs=1e-9), (key, name)
+
+
+def test_display_decimals_of_the_gap_with_potassium_and_the_kassirer_h():
+    r = bg({**BASE, "na": q(140, "mmol/L"), "cl": q(104, "mmol/L"), "k": q(4, "mmol/L")})
+    assert r["display"]["anion_gap_with_k"] == 1
+    assert r["display"]["h_nmol_l_kassirer"] == 1  # nmol/L to 1 decimal (common practice)
+
+
+def test_the_reading_in_words():
+    normal = bg(BASE)["outputs"]["interpretation"]
+    assert normal.startswith("No acid-base disorder")
+    # two disorders: the primary first (metabolic acidosis, Winters 1.5 x 12 + 8 +/- 2 exceeded: albert1967)
+    double = bg({"ph": ph_of(12, 50), "pco2": q(50, "mmHg"), "hco3": q(12, "mmol/L")})["outputs"][
+        "interpretation"
+    ]
+    assert double.startswith("Metabolic acidosis with a concurrent")
+    assert double.count("respiratory acidosis") == 1
+    # AB-07: three disorders, each named once
+    triple = bg(
+        {
+            "ph": 7.53,
+            "pco2": q(24, "mmHg"),
+            "hco3": q(20, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(88, "mmol/L"),
+        }
+    )
+    text = triple["outputs"]["interpretation"]
+    assert text.startswith("Triple disorder: respiratory alkalosis with ")
+    assert text.count("respiratory alkalosis") == 1
+
+
+def test_compensated_as_expected_only_for_a_chronic_respiratory_acidosis_or_at_a_normal_ph():
+    # chronic respiratory alkalosis: 24 - 4 x (40 - PaCO2)/10 (narins1980; berend2014)
+    alkalaemic = bg({"ph": ph_of(18, 25), "pco2": q(25, "mmHg"), "hco3": q(18, "mmol/L")})["outputs"]
+    assert alkalaemic["ph_status"] == "alkalaemia"
+    assert "compensated as expected" not in alkalaemic["interpretation"]
+    normal = bg({"ph": ph_of(20, 30), "pco2": q(30, "mmHg"), "hco3": q(20, "mmol/L")})["outputs"]
+    assert normal["interpretation"].endswith(", compensated as expected.")
+    # an acute respiratory acidosis (AB-03) is not called compensated
+    assert (
+        "compensat"
+        not in bg({"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L")})["outputs"]["interpretation"]
+    )
+
+
+def test_chronic_respiratory_alkalosis_at_a_normal_ph_is_not_a_single_disorder_at_normal_ph():
+    inputs = {"ph": ph_of(20, 30), "pco2": q(30, "mmHg"), "hco3": q(20, "mmol/L")}
+    for disorders, found in paths(inputs):
+        assert disorders == [("respiratory_alkalosis", "primary")]
+        assert "normal_ph_single_disorder" not in found
+
+
+def test_the_summary_names_the_fraction_acute_of_the_primary_respiratory_disorder():
+    # PaCO2 70 on a usual 55: fraction acute (70 - 55) / (70 - 40) = 0.5 (fraction_acute_bands), beside a
+    # lactate of 5 that names a concurrent metabolic acidosis
+    r = bg(
+        {
+            "ph": 7.25,
+            "pco2": q(70, "mmHg"),
+            "hco3": q(hco3_of(7.25, 70), "mmol/L"),
+            "baseline_pco2": q(55, "mmHg"),
+            "lactate": q(5, "mmol/L"),
+        }
+    )
+    assert [d["code"] for d in r["outputs"]["disorders"]] == ["respiratory_acidosis", "metabolic_acidosis"]
+    assert any("about 50 % of the change looks acute" in s for s in r["summary"])
+
+
+def test_the_summary_says_when_the_anion_gap_is_albumin_corrected():
+    base = {
+        "ph": 7.25,
+        "pco2": q(26, "mmHg"),
+        "hco3": q(hco3_of(7.25, 26), "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(100, "mmol/L"),
+    }
+    plain = next(s for s in bg(base)["summary"] if s.startswith("Anion gap"))
+    corrected = next(
+        s for s in bg({**base, "albumin": q(3.0, "g/dL")})["summary"] if s.startswith("Anion gap")
+    )
+    assert "albumin-corrected" not in plain
+    assert "(albumin-corrected)" in corrected
+
+
+def test_urgent_findings_are_in_the_summary_and_the_niv_caution_only_when_met():
+    r = bg({"ph": 7.10, "pco2": q(30, "mmHg"), "hco3": q(hco3_of(7.10, 30), "mmol/L")})
+    severe = finding_text(r, "severe_acidaemia")
+    assert any(severe in s for s in r["summary"])
+    assert r["outputs"]["niv_criteria"] != "met"
+    assert not any("NIV thresholds" in c for c in r["cautions"])
+    met = bg({"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L")})
+    assert met["outputs"]["niv_criteria"] == "met"
+    assert any("NIV thresholds" in c for c in met["cautions"])
