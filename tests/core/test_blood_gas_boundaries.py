@@ -232,8 +232,8 @@ def paths(inputs: dict):
 
 def test_tentative_alkalaemia_named_from_the_larger_contribution():
     # pH 7.46 with PCO2 36 and HCO3 inside 22-26: both lean alkalotic (PCO2 below 40, HCO3 above 24); the
-    # larger contribution |log10(PCO2/40)| against |log10(24/HCO3)| names the primary (acid_base_normal_ranges,
-    # common practice)
+    # larger contribution |log10(PCO2/40)| against |log10(24/HCO3)| names the primary
+    # (acid_base_normal_ranges, common practice)
     h = hco3_of(7.46, 36)
     assert 24 < h < 26
     assert abs(math.log10(36 / 40)) > abs(math.log10(24 / h))
