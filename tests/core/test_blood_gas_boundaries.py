@@ -13,6 +13,7 @@ array one behind the batch audit and the uncertainty calculation (numpy arrays o
 
 from __future__ import annotations
 
+import json
 import math
 from types import SimpleNamespace
 
@@ -20,7 +21,7 @@ import numpy as np
 import pytest
 
 from casebook import q
-from tidewell.bridge import handle_obj
+from tidewell.bridge import handle, handle_obj
 from tidewell.calculations import blood_gas
 from tidewell.calculations.blood_gas import reading
 from tidewell.fields import Inputs
@@ -571,3 +572,160 @@ def test_urgent_findings_are_in_the_summary_and_the_niv_caution_only_when_met():
     met = bg({"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L")})
     assert met["outputs"]["niv_criteria"] == "met"
     assert any("NIV thresholds" in c for c in met["cautions"])
+
+
+def test_a_barometric_pressure_above_800_mmhg_sent_as_json_is_named_as_a_unit_slip():
+    # the request as the shell sends it: JSON text (its unit words are not the module's own string objects)
+    for pb, named in ((800.0, False), (800.5, True), (1000.0, True)):
+        request = {"calc": "blood_gas", "inputs": {**BASE, "pb": q(pb, "mmHg")}}
+        response = json.loads(handle(json.dumps(request)))
+        assert response["ok"]
+        assert ("possible_unit_mix_up" in codes(response)) is named, pb
+
+
+@pytest.mark.parametrize(("key", "limit"), [("glucose", 100.0), ("urea", 80.0), ("lactate", 30.0)])
+def test_unusual_concentrations_above_their_limit_are_named(key, limit):
+    # the project's own limits for a value to check (docs/glossary/acidbase.md): at the limit not named
+    at = bg({**BASE, key: q(limit, "mmol/L")})
+    above = bg({**BASE, key: q(limit + 0.5, "mmol/L")})
+    assert "value_unusual" not in codes(at)
+    assert "value_unusual" in codes(above)
+
+
+def test_no_alveolar_oxygen_refused_for_an_arterial_sample_only():
+    # at FiO2 0.21, PaCO2 130: PAO2 = 0.21 x (760 - 47) - 130 / 0.8 < 0 (alveolar gas equation): an arterial
+    # PO2 is then impossible on that FiO2; a venous PCO2 is not alveolar, so a venous sample is not refused
+    inputs = {
+        "ph": 7.10,
+        "pco2": q(130, "mmHg"),
+        "hco3": q(hco3_of(7.10, 130), "mmol/L"),
+        "po2": q(40, "mmHg"),
+        "fio2": 0.21,
+    }
+    assert 0.21 * (760 - 47) - 130 / 0.8 < 0
+    assert ("inputs.fio2", "inconsistent") in refused(inputs)
+    bg({**inputs, "sample": "venous"})
+
+
+def test_a_ph_sent_without_its_decimal_point_offers_the_ph():
+    # 7400 for 7.40 (a factor 1000) and 80 for 8.0 (a factor 10, 8.0 the upper end of the accepted range)
+    for sent, meant in ((7400, 7.4), (80, 8.0)):
+        response = handle_obj({"calc": "blood_gas", "inputs": {**BASE, "ph": sent}})
+        error = next(e for e in response["errors"] if e["field"] == "inputs.ph")
+        assert error["code"] == "implausible"
+        assert error["suggest"]["value"] == pytest.approx(meant)
+
+
+def test_gas_exchange_impaired_on_both_paths():
+    # PaCO2 60 (above 6.0 kPa), age 30: the A-a gradient limit 30/4 + 4 = 11.5 mmHg (common practice); an A-a
+    # of 30 is raised: hypercapnia with lung disease as well
+    pao2_a = 0.21 * (760 - 47) - 60 / 0.8
+    inputs = {
+        "ph": 7.25,
+        "pco2": q(60, "mmHg"),
+        "hco3": q(26, "mmol/L"),
+        "po2": q(pao2_a - 30, "mmHg"),
+        "age": 30,
+    }
+    for _, found in paths(inputs):
+        assert "gas_exchange_impaired" in found
+        assert "pure_hypoventilation" not in found
+
+
+@pytest.mark.parametrize(("pco2", "below"), [(45.0, False), (44.9, True)])
+def test_pco2_below_baseline_more_than_5_mmhg(pco2, below):
+    # a known usual PaCO2 of 50: a PaCO2 more than 5 mmHg below it, not acidaemic, reads as over-correction
+    # (posthypercapnic_alkalosis, common practice)
+    h = 26.0
+    ph = ph_of(h, pco2)
+    assert ph >= 7.35
+    inputs = {"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(h, "mmol/L"), "baseline_pco2": q(50, "mmHg")}
+    for _, found in paths(inputs):
+        assert ("pco2_below_baseline" in found) is below
+
+
+def test_post_hypercapnic_alkalosis_named_only_when_alkalaemic():
+    # usual PaCO2 60, now 50 with HCO3 30: pH 7.39, not alkalaemic: over-correction only possible; now 45 with
+    # HCO3 34: pH 7.49 (above 7.45) with HCO3 above 26: fits a post-hypercapnic metabolic alkalosis
+    # (posthypercapnic_alkalosis)
+    base = {"baseline_pco2": q(60, "mmHg")}
+    normal = bg({**base, "ph": ph_of(30, 50), "pco2": q(50, "mmHg"), "hco3": q(30, "mmol/L")})
+    assert "over-correction of chronic hypercapnia is possible" in finding_text(normal, "pco2_below_baseline")
+    high = bg({**base, "ph": ph_of(34, 45), "pco2": q(45, "mmHg"), "hco3": q(34, "mmol/L")})
+    assert "fits a post-hypercapnic metabolic alkalosis" in finding_text(high, "pco2_below_baseline")
+
+
+@pytest.mark.parametrize(("low", "at_risk"), [(94.0, False), (93.0, True)])
+def test_a_prescribed_range_below_94_percent_marks_the_patient_at_risk(low, at_risk):
+    # 94-98 % is the usual target, a lower prescribed range is the at-risk one (bts2017): an SpO2 above the
+    # range matters (notable) only for a patient at risk
+    inputs = {**BASE, "spo2_target_prescribed": {"low": low, "high": 97.0}, "spo2": 99}
+    r = bg(inputs)
+    severity = next(f["severity"] for f in r["findings"] if f["code"] == "spo2_above_target")
+    assert severity == ("notable" if at_risk else "info")
+
+
+def test_the_paco2_for_ph_7_35_is_shown_when_acidaemic():
+    # P(7.35) = PaCO2 x 10^(pH - 7.35) (henderson1908, pco2_aim)
+    acid = bg(
+        {"ph": 7.30, "pco2": q(60, "mmHg"), "hco3": q(hco3_of(7.30, 60), "mmol/L"), "hypercapnia_risk": True}
+    )
+    assert acid["outputs"]["pco2_for_ph_7_35"]["value"] == pytest.approx(60 * 10 ** (7.30 - 7.35), rel=1e-6)
+    assert "ventilation must bring the PaCO2 down" in finding_text(acid, "pco2_target")
+    normal = bg(
+        {"ph": 7.38, "pco2": q(60, "mmHg"), "hco3": q(hco3_of(7.38, 60), "mmol/L"), "hypercapnia_risk": True}
+    )
+    assert "pco2_for_ph_7_35" not in normal["outputs"]
+    assert "ventilation must bring the PaCO2 down" not in finding_text(normal, "pco2_target")
+
+
+def test_the_aim_text_names_a_known_usual_paco2_only_when_given():
+    inputs = {
+        "ph": 7.38,
+        "pco2": q(60, "mmHg"),
+        "hco3": q(hco3_of(7.38, 60), "mmol/L"),
+        "hypercapnia_risk": True,
+    }
+    known = bg({**inputs, "baseline_pco2": q(58, "mmHg")})
+    assert "the patient's known usual PaCO2: the pH is 7.38" in finding_text(known, "pco2_target")
+    assert "the patient's known usual PaCO2: the pH" not in finding_text(bg(inputs), "pco2_target")
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "t"),
+    [(7.40, 40.0, 36.0), (7.30, 40.0, 37.5), (7.38, 46.0, 37.5), (7.25, 60.0, 38.0), (7.40, 44.0, 37.8)],
+)
+def test_the_ph_stat_view_reads_the_corrected_values_against_the_reference_ranges(ph, pco2, t):
+    # pH 7.35-7.45 and PCO2 35-45 mmHg (acid_base_normal_ranges): both inside "near normal", one "partly
+    # outside", neither "outside"
+    r = bg(
+        {
+            "ph": ph,
+            "pco2": q(pco2, "mmHg"),
+            "hco3": q(hco3_of(ph, pco2), "mmol/L"),
+            "temperature": q(t, "degC"),
+        }
+    )
+    ph_t = r["outputs"]["ph_at_temperature"]
+    pco2_t = r["outputs"]["pco2_at_temperature"]["value"]
+    inside = (7.35 <= ph_t <= 7.45, 35.0 <= pco2_t <= 45.0)
+    words = {(True, True): "near normal", (False, False): "which are outside"}.get(inside, "partly outside")
+    assert words in finding_text(r, "temperature_ph_stat_view")
+
+
+def test_equal_contributions_name_the_respiratory_process():
+    # PaCO2 48, HCO3 20: |log10(48/40)| = |log10(24/20)| (both log10 1.2): a tie names the respiratory process
+    # (Tidewell convention; common practice leaves ties open; stated in the blood_gas package docs)
+    inputs = {"ph": ph_of(20, 48), "pco2": q(48, "mmHg"), "hco3": q(20, "mmol/L")}
+    for disorders, _ in paths(inputs):
+        assert disorders[0] == ("respiratory_acidosis", "primary")
+
+
+def test_tentative_acidaemia_named_from_the_larger_contribution():
+    # pH 7.34 with PCO2 41 and HCO3 22.1, both inside their ranges: the HCO3 below 24 contributes more,
+    # |log10(24/22.1)| > |log10(41/40)| (acid_base_normal_ranges, common practice)
+    assert abs(math.log10(24 / 22.1)) > abs(math.log10(41 / 40))
+    assert ph_of(22.1, 41) < 7.35
+    for disorders, found in paths({"ph": ph_of(22.1, 41), "pco2": q(41, "mmHg"), "hco3": q(22.1, "mmol/L")}):
+        assert disorders[0] == ("metabolic_acidosis", "primary")
+        assert "borderline_values" in found
