@@ -729,3 +729,111 @@ def test_tentative_acidaemia_named_from_the_larger_contribution():
     for disorders, found in paths({"ph": ph_of(22.1, 41), "pco2": q(41, "mmHg"), "hco3": q(22.1, "mmol/L")}):
         assert disorders[0] == ("metabolic_acidosis", "primary")
         assert "borderline_values" in found
+
+
+def test_tentative_alkalaemia_named_metabolic_when_the_hco3_contributes_more():
+    # pH 7.45+ with PCO2 37.5 and HCO3 25.9, both inside their ranges: |log10(25.9/24)| > |log10(40/37.5)|
+    # (acid_base_normal_ranges, common practice)
+    assert abs(math.log10(25.9 / 24)) > abs(math.log10(40 / 37.5))
+    assert ph_of(25.9, 37.5) > 7.45
+    for disorders, found in paths(
+        {"ph": ph_of(25.9, 37.5), "pco2": q(37.5, "mmHg"), "hco3": q(25.9, "mmol/L")}
+    ):
+        assert disorders[0] == ("metabolic_alkalosis", "primary")
+        assert "borderline_values" in found
+
+
+def test_ph_7_35_with_every_value_in_range_names_no_disorder():
+    # pH 7.35 is inside 7.35-7.45 (acid_base_normal_ranges): PCO2 44 and HCO3 24.03 inside theirs
+    h = hco3_of(7.35, 44)
+    assert 24 < h < 26
+    for disorders, found in paths({"ph": 7.35, "pco2": q(44, "mmHg"), "hco3": q(h, "mmol/L")}):
+        assert disorders == []
+        assert "borderline_values" not in found
+
+
+@pytest.mark.parametrize(("hco3", "named"), [(24.0, False), (23.9, True)])
+def test_concurrent_metabolic_acidosis_more_than_2_below_the_acute_expectation(hco3, named):
+    # PaCO2 60: acute HCO3 24 + 1 x 20/10 = 26 (narins1980); a metabolic acidosis is named below 26 - 2
+    # (the margin: max(2, 0.2 x (31 - 26)) = 2 mmol/L, Tidewell convention beside fraction_acute_bands)
+    inputs = {"ph": ph_of(hco3, 60), "pco2": q(60, "mmHg"), "hco3": q(hco3, "mmol/L")}
+    for disorders, _ in paths(inputs):
+        assert (("metabolic_acidosis", "concurrent") in disorders) is named
+
+
+def test_paco2_below_the_known_baseline_reads_fraction_acute_0():
+    # f = (PaCO2 - baseline) / (PaCO2 - 40), limited to 0-1 (fraction_acute_bands): PaCO2 60 on a usual 65
+    r = bg(
+        {"ph": ph_of(31, 60), "pco2": q(60, "mmHg"), "hco3": q(31, "mmol/L"), "baseline_pco2": q(65, "mmHg")}
+    )
+    assert r["outputs"]["fraction_acute_baseline"] == 0.0
+
+
+def test_baseline_and_hco3_that_agree_raise_no_finding():
+    # PaCO2 60, HCO3 31 = 24 + 3.5 x 2 (chronic, narins1980), usual PaCO2 60: both read chronic
+    r = bg(
+        {"ph": ph_of(31, 60), "pco2": q(60, "mmHg"), "hco3": q(31, "mmol/L"), "baseline_pco2": q(60, "mmHg")}
+    )
+    assert r["outputs"]["disorders"][0]["chronicity"] == "chronic"
+    assert "baseline_and_hco3_disagree" not in codes(r)
+    # with a usual PaCO2 of 40 the baseline reads acute, the HCO3 chronic: named
+    r = bg(
+        {"ph": ph_of(31, 60), "pco2": q(60, "mmHg"), "hco3": q(31, "mmol/L"), "baseline_pco2": q(40, "mmHg")}
+    )
+    assert "baseline_and_hco3_disagree" in codes(r)
+
+
+def test_a_metabolic_acidosis_with_a_normal_gap_leaves_the_chronicity_indeterminate():
+    # PaCO2 70, pH 7.25, lactate 5 (4 or more beside acidaemic hypercapnia: a concurrent metabolic acidosis)
+    # and an anion gap below 12 (oh1977): no gap to take back, so the chronicity is not judged
+    h = hco3_of(7.25, 70)
+    inputs = {
+        "ph": 7.25,
+        "pco2": q(70, "mmHg"),
+        "hco3": q(h, "mmol/L"),
+        "lactate": q(5, "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(100, "mmol/L"),
+    }
+    assert 140 - 100 - h < 12
+    r = bg(inputs)
+    assert "chronicity_indeterminate" in codes(r)
+    assert r["outputs"]["disorders"][0]["fraction_acute"] is None
+
+
+@pytest.mark.parametrize(("hco3", "fraction"), [(20.5, 0.5), (24.0, 0.0)])
+def test_fraction_acute_from_the_hco3_before_the_gap(hco3, fraction):
+    # PaCO2 60, AG 20 (a high-AG acidosis, Gabow 1980): HCO3 before the gap = HCO3 + (AG - 12) (wrenn1990);
+    # f = (31 - before) / (31 - 26) (acute 1, chronic 3.5 per 10 mmHg: narins1980), limited to 0-1
+    cl = 140 - hco3 - 20
+    before = hco3 + 8
+    expected = min(max((31 - before) / 5, 0.0), 1.0)
+    assert expected == pytest.approx(fraction)
+    r = bg(
+        {
+            "ph": ph_of(hco3, 60),
+            "pco2": q(60, "mmHg"),
+            "hco3": q(hco3, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(cl, "mmol/L"),
+        }
+    )
+    primary = r["outputs"]["disorders"][0]
+    assert primary["code"] == "respiratory_acidosis"
+    assert primary["fraction_acute"] == pytest.approx(fraction, abs=1e-9)
+
+
+def test_concurrent_respiratory_acidosis_fraction_from_the_baseline():
+    # metabolic acidosis HCO3 12, PaCO2 50 above Winters' 26 +/- 2 (albert1967); usual PaCO2 45:
+    # f = (50 - 45) / (50 - 40) = 0.5 (fraction_acute_bands)
+    r = bg(
+        {"ph": ph_of(12, 50), "pco2": q(50, "mmHg"), "hco3": q(12, "mmol/L"), "baseline_pco2": q(45, "mmHg")}
+    )
+    assert r["outputs"]["fraction_acute_baseline"] == pytest.approx(0.5)
+    assert r["outputs"]["disorders"][1]["fraction_acute"] == pytest.approx(0.5)
+    # PaCO2 38 (above Winters' 28, but not above 41): not read from the baseline, acute by convention
+    r = bg(
+        {"ph": ph_of(12, 38), "pco2": q(38, "mmHg"), "hco3": q(12, "mmol/L"), "baseline_pco2": q(35, "mmHg")}
+    )
+    assert r["outputs"]["disorders"][1]["code"] == "respiratory_acidosis"
+    assert "respiratory_chronicity_assumed" in codes(r)
