@@ -837,3 +837,268 @@ def test_concurrent_respiratory_acidosis_fraction_from_the_baseline():
     )
     assert r["outputs"]["disorders"][1]["code"] == "respiratory_acidosis"
     assert "respiratory_chronicity_assumed" in codes(r)
+
+
+def test_the_batch_refuses_a_ph_outside_6_5_to_8_0():
+    # the accepted pH range (docs/glossary/acidbase.md) on the batch audit's array reader
+    audit = batch.interpret_table(batch.read_table("ph,pco2[mmHg]\n6.4999,20\n6.5,20\n8.0,20\n8.0001,20\n"))
+    assert [bool(audit.errors[i]) for i in range(audit.n)] == [True, False, False, True]
+
+
+def test_the_batch_names_the_disorders_primary_first():
+    # metabolic acidosis HCO3 12 with PaCO2 50 above Winters' 26 +/- 2 (albert1967): a concurrent respiratory
+    # acidosis, named after the primary
+    table = f"ph,pco2[mmHg],hco3[mmol/L]\n{ph_of(12, 50)},50,12\n"
+    audit = batch.interpret_table(batch.read_table(table))
+    assert audit.value("disorders", 0) == "metabolic_acidosis respiratory_acidosis"
+
+
+def test_a_triple_disorder_names_the_concurrent_respiratory_one_before_the_gap_acidosis():
+    # HCO3 30, PaCO2 34: a metabolic alkalosis (|log10(30/24)| > |log10(40/34)|), PaCO2 below the expected
+    # 40 + 0.7 x 6 - 5 = 39.2 (berend2014): a concurrent respiratory alkalosis; AG 140 - 88 - 30 = 22, 20+
+    # names a high-AG acidosis (Gabow 1980, from memory), found last
+    inputs = {
+        "ph": ph_of(30, 34),
+        "pco2": q(34, "mmHg"),
+        "hco3": q(30, "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(88, "mmol/L"),
+    }
+    for disorders, _ in paths(inputs):
+        assert [c for c, _ in disorders] == [
+            "metabolic_alkalosis",
+            "respiratory_alkalosis",
+            "metabolic_acidosis",
+        ]
+
+
+def test_the_text_of_a_concurrent_metabolic_acidosis_names_its_reasons():
+    # pH 7.25, PaCO2 70: lactate 5 (4 or more) with an anion gap below 16 (common practice)
+    h = hco3_of(7.25, 70)
+    inputs = {
+        "ph": 7.25,
+        "pco2": q(70, "mmHg"),
+        "hco3": q(h, "mmol/L"),
+        "lactate": q(5, "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(100, "mmol/L"),
+    }
+    r = bg(inputs)
+    text = finding_text(r, "concurrent_metabolic_acidosis")
+    assert "lactate 5.0 mmol/L (4 or more)" in text
+    assert "anion gap" not in text
+    assert "hco3_before_gap" not in r["outputs"]  # no gap above 12 to take back (wrenn1990)
+
+
+def test_the_ph_rule_drift_text_names_40():
+    r = bg({"ph": ph_of(28, 80), "pco2": q(80, "mmHg"), "hco3": q(28, "mmol/L")})
+    assert "above 40 mmHg the linear pH rules drift" in finding_text(r, "ph_rule_drift")
+
+
+@pytest.mark.parametrize(
+    ("pco2", "status"), [(35.0, "normal"), (34.9, "hypocapnia"), (45.0, "normal"), (45.1, "hypercapnia")]
+)
+def test_pco2_status_at_the_ends_of_35_to_45(pco2, status):
+    # PCO2 35-45 mmHg inclusive (acid_base_normal_ranges)
+    scalar, together = both_paths({"ph": 7.40, "pco2": q(pco2, "mmHg")})
+    for d in (scalar, together):
+        assert np.asarray(d.pco2_status).reshape(-1)[0] == status
+
+
+def test_the_zander_base_excess_takes_so2_1_without_an_spo2():
+    # Zander's form with SO2 1.0 when no SpO2 is given (lang2002; docs/glossary/acidbase.md)
+    base = {"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L"), "hb": q(15, "g/dL")}
+    without = bg(base)
+    told = bg({**base, "spo2": 100})
+    assert without["outputs"]["sbe_variants"]["zander"]["value"] == pytest.approx(
+        told["outputs"]["sbe_variants"]["zander"]["value"]
+    )
+    label = next(s["label"] for s in without["steps"] if s["label"].startswith("BE, Zander form"))
+    assert "SO2 taken as 1.0 (no SpO2 given)" in label
+    label = next(s["label"] for s in told["steps"] if s["label"].startswith("BE, Zander form"))
+    assert "SO2 taken as 1.0" not in label
+
+
+def test_display_decimals_of_the_base_excess_and_h():
+    r = bg(
+        {
+            "ph": 7.25,
+            "pco2": q(60, "mmHg"),
+            "hco3": q(26, "mmol/L"),
+            "hb": q(15, "g/dL"),
+            "na": q(140, "mmol/L"),
+            "cl": q(100, "mmol/L"),
+            "albumin": q(3.0, "g/dL"),
+        }
+    )
+    display = r["display"]
+    # mmol/L and nmol/L to 1 decimal (common practice)
+    assert display["h_nmol_l_measured"] == 1
+    assert display["standard_base_excess"] == 1
+    assert display["sbe_variants"] == 1
+    assert display["expected_sbe"] == 1
+    assert display["anion_gap_corrected"] == 1
+    r = bg(
+        {
+            "ph": 7.25,
+            "pco2": q(26, "mmHg"),
+            "hco3": q(hco3_of(7.25, 26), "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(100, "mmol/L"),
+        }
+    )
+    assert r["display"]["na_cl_effect"] == 1  # mEq/L to 1 decimal
+
+
+@pytest.mark.parametrize(
+    ("measured", "raised"), [(295.0, False), (299.9, False), (300.0, True), (305.0, True)]
+)
+def test_osmolar_gap_raised_from_10(measured, raised):
+    # calculated 2 x 140 + 5 + 5 = 290 mOsm/kg; a gap of 10 or more is raised (ccjm_osmol)
+    r = bg(
+        {
+            **BASE,
+            "na": q(140, "mmol/L"),
+            "glucose": q(5, "mmol/L"),
+            "urea": q(5, "mmol/L"),
+            "measured_osmolality": q(measured, "mOsm/kg"),
+        }
+    )
+    assert ("osmolar_gap_raised" in codes(r)) is raised
+
+
+def test_an_anion_gap_of_20_alone_names_the_primary_on_both_paths():
+    # pH 7.40, PaCO2 40, HCO3 24, AG 140 - 91 - 24 = 25: 20 or more names a high-AG metabolic acidosis
+    # whatever the HCO3 (Gabow 1980, from memory); with no other disorder it is the primary
+    inputs = {**BASE, "na": q(140, "mmol/L"), "cl": q(91, "mmol/L")}
+    for disorders, _ in paths(inputs):
+        assert disorders[0] == ("metabolic_acidosis", "primary")
+
+
+def test_the_readings_agree_on_a_compensated_metabolic_acidosis_on_both_paths():
+    # AB-01 (pH 7.28, PaCO2 26, HCO3 12): Winters and 40 + SBE (schlichtig1998) both fit
+    for _, found in paths({"ph": 7.28, "pco2": q(26, "mmHg"), "hco3": q(12, "mmol/L")}):
+        assert "approaches_agree" in found
+    for _, found in paths(BASE):
+        assert "approaches_agree" in found
+
+
+def test_stewart_without_an_alkalinising_effect_disagrees_with_a_metabolic_alkalosis():
+    # SBE +12.8 split as Na-Cl +4.9, albumin +4.9 (0.25 x (42 - 22.4)), unmeasured +3.0 (story2016): no
+    # single effect of 5 mEq/L, so Stewart names no alkalosis where the HCO3 reading does
+    r = bg(
+        {
+            "ph": 7.50,
+            "pco2": q(47, "mmHg"),
+            "hco3": q(36, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(100.1, "mmol/L"),
+            "albumin": q(2.24, "g/dL"),
+            "lactate": q(0, "mmol/L"),
+        }
+    )
+    assert "approaches_disagree" in codes(r)
+
+
+def test_the_stewart_terms_without_lactate_count_it_as_0():
+    # SIDa = Na + K + 2 Ca + 2 Mg - Cl - lactate (kellum1995, figge1992), Ca 1.2 and Mg 0.9 assumed
+    # (docs/glossary/acidbase.md), lactate not given counted as 0
+    base = {
+        **BASE,
+        "na": q(140, "mmol/L"),
+        "cl": q(104, "mmol/L"),
+        "k": q(4, "mmol/L"),
+        "albumin": q(4.2, "g/dL"),
+    }
+    out = bg(base)["outputs"]
+    assert out["sid_apparent"]["value"] == pytest.approx(140 + 4 + 2 * 1.2 + 2 * 0.9 - 104)
+    assert out["base_excess_partition"]["lactate"]["value"] == 0.0
+
+
+def test_low_inspired_oxygen_only_with_a_normal_a_a_gradient():
+    # PaCO2 35, age 30 (A-a limit 30/4 + 4 = 11.5, common practice)
+    pao2_a = 0.21 * (760 - 47) - 35 / 0.8  # alveolar gas equation
+    base = {"ph": 7.42, "pco2": q(35, "mmHg"), "hco3": q(hco3_of(7.42, 35), "mmol/L"), "age": 30}
+    raised = bg({**base, "po2": q(50, "mmHg")})  # A-a 56: lung disease
+    assert pao2_a - 50 > 11.5
+    assert "low_inspired_oxygen" not in codes(raised)
+    # at 5000 m (ISA, icao7488) a normal A-a gradient with a PaO2 below 60: low inspired oxygen
+    high = bg({**base, "altitude": q(5000, "m"), "po2": q(28, "mmHg"), "fio2": 0.21})
+    assert high["outputs"]["a_a_category"] == "normal"
+    assert "low_inspired_oxygen" in codes(high)
+
+
+def test_a_a_needs_age_only_in_the_grey_zone_on_both_paths():
+    pao2_a = 0.21 * (760 - 47) - 60 / 0.8
+    base = {"ph": 7.25, "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L")}
+    for _, found in paths({**base, "po2": q(pao2_a - 8.6, "mmHg")}):
+        assert "a_a_needs_age" in found
+    for _, found in paths({**base, "po2": q(pao2_a - 30, "mmHg"), "age": 30}):
+        assert "a_a_needs_age" not in found
+
+
+def test_type_1_failure_text_names_the_pao2_below_60_or_the_pf_ratio():
+    # PaO2 below 8 kPa (60 mmHg), or on oxygen a P/F at or below 300 (berlin2012; bts2017)
+    base = {"ph": 7.42, "pco2": q(35, "mmHg"), "hco3": q(hco3_of(7.42, 35), "mmol/L")}
+    low = bg({**base, "po2": q(50, "mmHg"), "fio2": 0.21})
+    assert "is below 60 mmHg" in finding_text(low, "respiratory_failure_type_1")
+    at = bg({**base, "po2": q(60, "mmHg"), "fio2": 0.3})
+    assert "P/F ratio is at or below" in finding_text(at, "respiratory_failure_type_1")
+
+
+def test_a_range_without_both_ends_is_refused():
+    for rx in ({"high": 92}, {"low": 88}, {"low": 88, "high": 92, "x": 1}):
+        assert ("inputs.spo2_target_prescribed", "bad_request") in refused(
+            {**BASE, "spo2_target_prescribed": rx}
+        )
+
+
+@pytest.mark.parametrize(
+    ("urea", "bun", "accepted"),
+    [(19.0, 20.0, True), (18.9, 20.0, False), (0.5, 0.54, True), (0.5, 0.58, False)],
+)
+def test_urea_and_bun_may_differ_by_5_percent_of_the_larger_or_of_1(urea, bun, accepted):
+    # the project's rule (docs/glossary/acidbase.md): more than 5 % apart (of the larger, at least 1 mmol/L)
+    inputs = {**BASE, "urea": q(urea, "mmol/L"), "bun": q(bun, "mmol/L")}
+    if accepted:
+        bg(inputs)
+    else:
+        assert ("inputs.bun", "inconsistent") in refused(inputs)
+
+
+def test_a_ph_and_pco2_implying_an_hco3_below_1_are_refused():
+    # pH 6.5 with PCO2 8 mmHg: HCO3 = 0.0307 x 8 x 10^0.4 = 0.62 mmol/L (henderson1908): not survivable
+    assert hco3_of(6.5, 8) < 1
+    errors = refused({"ph": 6.5, "pco2": q(8, "mmHg")})
+    assert ("inputs.ph", "inconsistent") in errors
+
+
+def test_a_pco2_below_15_mmhg_is_a_unit_slip_unless_the_triple_fits():
+    # PCO2 10 mmHg: with HCO3 24 at pH 7.40 the triple does not fit (Henderson-Hasselbalch), so probably kPa;
+    # with the HCO3 the triple implies, the unit is right
+    assert "possible_unit_mix_up" in codes(bg({"ph": 7.40, "pco2": q(10, "mmHg"), "hco3": q(24, "mmol/L")}))
+    fits = {"ph": 7.40, "pco2": q(10, "mmHg"), "hco3": q(hco3_of(7.40, 10), "mmol/L")}
+    assert "possible_unit_mix_up" not in codes(bg(fits))
+
+
+def test_a_baseline_in_range_is_no_unit_slip():
+    for baseline in (q(50, "mmHg"), q(6.7, "kPa"), q(20, "mmHg"), q(150, "mmHg")):
+        assert "possible_unit_mix_up" not in codes(bg({**BASE, "baseline_pco2": baseline}))
+
+
+@pytest.mark.parametrize(
+    ("po2", "named"), [(q(25, "mmHg"), False), (q(24.9, "mmHg"), True), (q(3.0, "kPa"), False)]
+)
+def test_an_arterial_po2_below_25_mmhg_is_a_unit_slip(po2, named):
+    # the project's grey zone: below 25 mmHg sent in mmHg looks like kPa; a value sent in kPa is no slip
+    assert ("possible_unit_mix_up" in codes(bg({**BASE, "po2": po2}))) is named
+
+
+@pytest.mark.parametrize(("sent", "code"), [(316, "implausible"), (317, "out_of_range"), (40, "implausible")])
+def test_a_ph_that_is_an_h_concentration_gets_the_ph_offered(sent, code):
+    # [H+] 10-316 nmol/L is pH 8.0-6.5: pH = 9 - log10([H+] nmol/L) (kassirer1965)
+    response = handle_obj({"calc": "blood_gas", "inputs": {**BASE, "ph": sent}})
+    error = next(e for e in response["errors"] if e["field"] == "inputs.ph")
+    assert error["code"] == code
+    if sent == 40:
+        assert f"the pH is {9 - math.log10(40):.2f}" in error["message"] + error.get("hint", "")
