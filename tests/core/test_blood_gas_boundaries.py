@@ -1102,3 +1102,260 @@ def test_a_ph_that_is_an_h_concentration_gets_the_ph_offered(sent, code):
     assert error["code"] == code
     if sent == 40:
         assert f"the pH is {9 - math.log10(40):.2f}" in error["message"] + error.get("hint", "")
+
+
+def test_beside_a_respiratory_alkalosis_the_gap_names_no_alkalosis_without_a_delta_ratio_above_2():
+    # PaCO2 25, HCO3 18, AG 140 - 102 - 18 = 20 (a high-AG acidosis, Gabow 1980, from memory): delta ratio
+    # (20 - 12) / (24 - 18) = 1.33, within 1-2 (brandis): no metabolic alkalosis, although the HCO3 before the
+    # gap, 26, is above the acute expectation 24 - 2 x 1.5 = 21 (narins1980)
+    inputs = {
+        "ph": ph_of(18, 25),
+        "pco2": q(25, "mmHg"),
+        "hco3": q(18, "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(102, "mmol/L"),
+    }
+    for disorders, found in paths(inputs):
+        assert disorders[0] == ("respiratory_alkalosis", "primary")
+        assert ("metabolic_acidosis", "concurrent") in disorders
+        assert "metabolic_alkalosis" not in [c for c, _ in disorders]
+        assert "metabolic_alkalosis_from_gap" not in found
+
+
+def test_display_decimals_of_the_computed_hco3():
+    r = bg({"ph": 7.40, "pco2": q(40, "mmHg")})
+    assert r["display"]["hco3_computed"] == 1  # mmol/L to 1 decimal (common practice)
+
+
+def test_json_text_requests_read_as_dict_requests():
+    # the shell sends JSON text: its words (units, sample site) are new string objects, never the module's own
+    po2 = {"ph": 7.35, "pco2": q(50, "mmHg"), "hco3": q(hco3_of(7.35, 50), "mmol/L"), "po2": q(20, "mmHg")}
+    requests = [
+        {**po2, "sample": "venous"},
+        {**po2, "sample": "capillary"},
+        {**po2, "sample": "arterial", "fio2": 0.3, "pb": q(900, "mmHg")},
+        {**BASE, "lactate": q(10, "g/L")},
+        {**BASE, "pco2": q(1.4, "kPa"), "hco3": q(24, "mmol/L")},
+    ]
+    for inputs in requests:
+        request = {"calc": "blood_gas", "inputs": inputs}
+        as_text = json.loads(handle(json.dumps(request)))
+        as_dict = handle_obj(json.loads(json.dumps(request)))
+        assert as_text == json.loads(json.dumps(as_dict)), inputs
+    venous = json.loads(handle(json.dumps({"calc": "blood_gas", "inputs": {**po2, "sample": "venous"}})))
+    assert "possible_unit_mix_up" not in codes(venous)
+    assert "respiratory_failure_type_1" not in codes(venous)
+
+
+def test_an_implausible_concentration_offers_the_unit_that_fits():
+    # lactate 10 g/L = 111 mmol/L is outside 0-50; 10 mg/dL = 1.1 mmol/L fits (lactate 90.08 g/mol)
+    response = handle_obj({"calc": "blood_gas", "inputs": {**BASE, "lactate": q(10, "g/L")}})
+    error = next(e for e in response["errors"] if e["field"] == "inputs.lactate")
+    assert error["code"] == "implausible"
+    assert error["suggest"] == {"value": 10, "unit": "mg/dL"}
+    # a value that fits no unit gets no suggestion
+    response = handle_obj({"calc": "blood_gas", "inputs": {**BASE, "lactate": q(100000, "mmol/L")}})
+    error = next(e for e in response["errors"] if e["field"] == "inputs.lactate")
+    assert error["code"] == "out_of_range"
+
+
+def test_a_metabolic_acidosis_above_winters_band_on_both_paths():
+    # HCO3 12: Winters 26 +/- 2 (albert1967); PaCO2 32 is above it (the alkalosis band would hold it)
+    for disorders, _ in paths({"ph": ph_of(12, 32), "pco2": q(32, "mmHg"), "hco3": q(12, "mmol/L")}):
+        assert disorders == [("metabolic_acidosis", "primary"), ("respiratory_acidosis", "concurrent")]
+
+
+def test_no_ph_rule_drift_on_a_metabolic_primary():
+    # the pH rules are those of a respiratory acidosis (berend2014): a metabolic alkalosis with PaCO2 71 is
+    # not read by them
+    r = bg({"ph": ph_of(60, 71), "pco2": q(71, "mmHg"), "hco3": q(60, "mmol/L")})
+    assert r["outputs"]["disorders"][0]["code"] == "metabolic_alkalosis"
+    assert "ph_rule_drift" not in codes(r)
+
+
+@pytest.mark.parametrize(("hco3", "fraction"), [(25.0, 1.0), (32.0, 0.0), (28.5, 0.5)])
+def test_fraction_acute_by_the_hco3_rules_is_limited_to_0_1(hco3, fraction):
+    # PaCO2 60: acute 26, chronic 31 (narins1980); f = (31 - HCO3) / 5 limited to 0-1 (fraction_acute_bands)
+    r = bg({"ph": ph_of(hco3, 60), "pco2": q(60, "mmHg"), "hco3": q(hco3, "mmol/L")})
+    assert r["outputs"]["disorders"][0]["fraction_acute"] == pytest.approx(fraction)
+
+
+def test_the_batch_orders_gap_found_disorders_and_a_concurrent_metabolic_acidosis():
+    # AB-07: respiratory alkalosis, then the gap-found metabolic acidosis and alkalosis; PaCO2 20 with
+    # HCO3 13: a respiratory alkalosis (|log10(20/40)| > |log10(24/13)|) with a metabolic acidosis more than 2
+    # below the chronic 24 - 4 x 2 = 16 (narins1980)
+    table = (
+        "ph,pco2[mmHg],hco3[mmol/L],na[mmol/L],cl[mmol/L]\n7.53,24,20,140,88\n" + f"{ph_of(13, 20)},20,13,,\n"
+    )
+    audit = batch.interpret_table(batch.read_table(table))
+    assert audit.value("disorders", 0) == "respiratory_alkalosis metabolic_acidosis metabolic_alkalosis"
+    assert audit.value("disorders", 1) == "respiratory_alkalosis metabolic_acidosis"
+
+
+def test_the_alternative_winters_form_is_computed_in_its_step():
+    # 1.54 x HCO3 + 8.36 (kidney360_2022): 26.84 mmHg at HCO3 12
+    r = bg({"ph": 7.28, "pco2": q(26, "mmHg"), "hco3": q(12, "mmol/L")})
+    label = next(s["label"] for s in r["steps"] if s.get("output") == "expected_pco2")
+    assert f"gives {1.54 * 12 + 8.36:.0f} mmHg" in label
+
+
+def test_display_decimals_of_the_respiratory_expectations():
+    r = bg({"ph": ph_of(28.5, 60), "pco2": q(60, "mmHg"), "hco3": q(28.5, "mmol/L")})
+    display = r["display"]
+    assert display["expected_hco3"] == 1
+    assert display["expected_hco3_centre"] == 1
+    assert display["fraction_acute_hco3"] == 2
+    assert display["fraction_acute_ph"] == 2
+    assert (
+        display["expected_ph_hh"] == 3
+    )  # docs/bridge.md display: the HH pH to 3 decimals beside the rules' 2
+
+
+def test_the_concurrent_acidosis_text_names_an_albumin_corrected_gap_above_16_only():
+    base = {
+        "ph": 7.25,
+        "pco2": q(70, "mmHg"),
+        "hco3": q(30.5, "mmol/L"),
+        "lactate": q(5, "mmol/L"),
+        "na": q(140, "mmol/L"),
+    }
+    at16 = finding_text(bg({**base, "cl": q(93.5, "mmol/L")}), "concurrent_metabolic_acidosis")
+    assert "anion gap" not in at16  # 140 - 93.5 - 30.5 = 16: not above 16
+    above = finding_text(
+        bg({**base, "cl": q(90, "mmol/L"), "albumin": q(4.0, "g/dL")}), "concurrent_metabolic_acidosis"
+    )
+    assert "albumin-corrected anion gap" in above
+
+
+def test_an_alveolar_po2_just_below_zero_is_not_shown():
+    # on air PAO2 = 0.21 x 713 - 119.8 / 0.8 = -0.02 mmHg (alveolar gas equation): left out
+    assert 0.21 * 713 - 119.8 / 0.8 < 0
+    r = bg(
+        {
+            "ph": 7.10,
+            "pco2": q(119.8, "mmHg"),
+            "hco3": q(hco3_of(7.10, 119.8), "mmol/L"),
+            "po2": q(50, "mmHg"),
+        }
+    )
+    assert "pao2_alveolar" not in r["outputs"]
+
+
+def test_the_a_over_a_ratio_is_shown_for_a_positive_alveolar_po2():
+    # a/A = PaO2 / PAO2 (gilbert1974), PAO2 = 0.21 x 713 - 40 / 0.8
+    pao2_a = 0.21 * 713 - 40 / 0.8
+    r = bg({**BASE, "po2": q(80, "mmHg")})
+    assert r["outputs"]["a_over_A"] == pytest.approx(80 / pao2_a, rel=1e-9)
+    base = {
+        "ph": ph_of(30, 99.5),
+        "pco2": q(99.5, "mmHg"),
+        "hco3": q(30, "mmol/L"),
+        "po2": q(20, "mmHg"),
+        "fio2": 0.25,
+        "pb": q(447, "mmHg"),
+        "rq": 1.0,
+    }
+    assert bg(base)["outputs"]["a_over_A"] == pytest.approx(20 / 0.5)  # PAO2 = 0.25 x 400 - 99.5 = 0.5
+
+
+@pytest.mark.parametrize(("aa", "category"), [(28.9, "needs_age"), (29.1, "raised")])
+def test_a_a_gradient_without_age_is_raised_above_the_limit_at_100_years(aa, category):
+    # 100/4 + 4 = 29 mmHg (common practice): above it the gradient is raised at any age
+    pao2_a = 0.21 * (760 - 47) - 60 / 0.8
+    r = bg(
+        {"ph": ph_of(26, 60), "pco2": q(60, "mmHg"), "hco3": q(26, "mmol/L"), "po2": q(pao2_a - aa, "mmHg")}
+    )
+    assert r["outputs"]["a_a_category"] == category
+
+
+def test_the_pf_band_is_named_unless_mild():
+    # P/F at or below 100 severe, 200 moderate, 300 mild (berlin2012); PaO2 90 on FiO2 1.0: 90, severe
+    base = {"ph": 7.42, "pco2": q(35, "mmHg"), "hco3": q(hco3_of(7.42, 35), "mmol/L")}
+    severe = finding_text(bg({**base, "po2": q(90, "mmHg"), "fio2": 1.0}), "hypoxaemia_masked_by_oxygen")
+    assert ", severe" in severe
+    mild = finding_text(bg({**base, "po2": q(100, "mmHg"), "fio2": 0.4}), "hypoxaemia_masked_by_oxygen")
+    assert ", mild" not in mild
+
+
+def test_the_pressure_step_says_whether_pb_was_given():
+    given = bg({**BASE, "po2": q(80, "mmHg"), "pb": q(700, "mmHg")})
+    assert any(s["formula"] == "PB as given" for s in given["steps"])
+    assumed = bg({**BASE, "po2": q(80, "mmHg")})
+    assert any(s["formula"] == "PB = 760 mmHg" for s in assumed["steps"])
+
+
+def test_a_prescribed_range_needs_low_below_high():
+    assert ("inputs.spo2_target_prescribed", "out_of_range") in refused(
+        {**BASE, "spo2_target_prescribed": {"low": 92, "high": 92}}
+    )
+
+
+@pytest.mark.parametrize(("po2", "accepted"), [(361.5, True), (361.6, False)])
+def test_a_po2_more_than_5_above_the_inspired_po2_is_refused(po2, accepted):
+    # PIO2 = 0.5 x (760 - 47) = 356.5 mmHg (alveolar_gas_1946); more than 5 above it is impossible (our rule)
+    inputs = {**BASE, "po2": q(po2, "mmHg"), "fio2": 0.5}
+    if accepted:
+        bg(inputs)
+    else:
+        assert ("inputs.po2", "inconsistent") in refused(inputs)
+
+
+@pytest.mark.parametrize(("hco3", "given"), [(23.5, False), (23.4, True)])
+def test_the_delta_ratio_below_an_hco3_of_23_5(hco3, given):
+    # the delta ratio (brandis) is computed only where the HCO3 has fallen (below 23.5, Tidewell convention)
+    r = bg(
+        {
+            "ph": ph_of(hco3, 40),
+            "pco2": q(40, "mmHg"),
+            "hco3": q(hco3, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(100, "mmol/L"),
+        }
+    )
+    assert ("delta_ratio" in r["outputs"]) is given
+
+
+@pytest.mark.parametrize(("cl", "low"), [(113.0, False), (113.1, True)])
+def test_anion_gap_low_below_3(cl, low):
+    r = bg({**BASE, "na": q(140, "mmol/L"), "cl": q(cl, "mmol/L")})
+    assert ("anion_gap_low" in codes(r)) is low
+
+
+@pytest.mark.parametrize(("hco3", "read"), [(61.06, True), (62.06, False)])
+def test_the_copenhagen_reading_up_to_an_sbe_of_40(hco3, read):
+    # SBE = HCO3 - 24.8 + 16.2 x (pH - 7.40) (nccls1994): 39.5 and 40.5 at pH 7.60
+    pco2 = hco3 / (0.0307 * 10 ** (7.60 - 6.1))
+    r = bg({"ph": 7.60, "pco2": q(pco2, "mmHg"), "hco3": q(hco3, "mmol/L")})
+    assert bool(codes(r) & {"approaches_agree", "approaches_disagree"}) is read
+
+
+def test_no_copenhagen_paco2_rule_without_a_disorder():
+    assert "fit" not in finding_text(bg(BASE), "approaches_agree")
+
+
+def test_a_metabolic_alkalosis_paco2_outside_the_sbe_rule_disagrees_on_both_paths():
+    # HCO3 36, PaCO2 53: inside 40 + 0.7 x 12 +/- 5 (berend2014) but more than 5 from 40 + 0.6 x SBE
+    # (schlichtig1998)
+    for _, found in paths({"ph": ph_of(36, 53), "pco2": q(53, "mmHg"), "hco3": q(36, "mmol/L")}):
+        assert "approaches_disagree" in found
+
+
+def test_the_sbe_reading_uses_plus_minus_3():
+    # pH 7.37, PaCO2 40, HCO3 22.4 (no disorder): SBE -2.9 (nccls1994), within +/- 3 (schlichtig1998)
+    ph = 7.37
+    r = bg({"ph": ph, "pco2": q(40, "mmHg"), "hco3": q(hco3_of(ph, 40), "mmol/L")})
+    assert "approaches_agree" in codes(r)
+
+
+def test_findings_are_sorted_urgent_notable_info_on_both_paths():
+    rank = {"urgent": 0, "notable": 1, "info": 2}
+    inputs = {
+        "ph": 7.25,
+        "pco2": q(70, "mmHg"),
+        "hco3": q(hco3_of(7.25, 70), "mmol/L"),
+        "lactate": q(5, "mmol/L"),
+    }
+    for d in both_paths(inputs)[:1]:
+        found = blood_gas.findings(d)
+        severities = [rank[d.severity.get(c, blood_gas.SEVERITY.get(c))] for c in found]
+        assert severities == sorted(severities) and len(set(severities)) == 3
