@@ -1359,3 +1359,56 @@ def test_findings_are_sorted_urgent_notable_info_on_both_paths():
         found = blood_gas.findings(d)
         severities = [rank[d.severity.get(c, blood_gas.SEVERITY.get(c))] for c in found]
         assert severities == sorted(severities) and len(set(severities)) == 3
+
+
+def test_display_decimals_of_the_stewart_terms_and_the_hco3_before_the_gap():
+    r = bg(
+        {
+            **BASE,
+            "na": q(140, "mmol/L"),
+            "cl": q(104, "mmol/L"),
+            "k": q(4, "mmol/L"),
+            "albumin": q(4.2, "g/dL"),
+        }
+    )
+    assert r["display"]["sid_apparent"] == 1  # mEq/L to 1 decimal (common practice)
+    gap = {
+        "ph": ph_of(14, 80),
+        "pco2": q(80, "mmHg"),
+        "hco3": q(14, "mmol/L"),
+        "na": q(140, "mmol/L"),
+        "cl": q(110, "mmol/L"),
+    }
+    r = bg(gap)
+    assert r["outputs"]["hco3_before_anion_gap"]["value"] == pytest.approx(
+        14 + (140 - 110 - 14) - 12
+    )  # wrenn1990
+    assert r["display"]["hco3_before_anion_gap"] == 1
+
+
+def test_the_triple_disorder_text_names_the_gap_type_of_the_acidosis_only():
+    # AB-07 (tests/cases/reference_cases.json)
+    r = bg(
+        {
+            "ph": 7.53,
+            "pco2": q(24, "mmHg"),
+            "hco3": q(20, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(88, "mmol/L"),
+        }
+    )
+    text = r["outputs"]["interpretation"]
+    assert "with high anion gap metabolic acidosis and metabolic alkalosis" in text
+
+
+@pytest.mark.parametrize(
+    ("sent", "code", "suggest"),
+    [(60, "implausible", None), (10, "implausible", None), (9.5, "out_of_range", None)],
+)
+def test_a_ph_hint_only_for_a_value_that_becomes_a_ph_in_range(sent, code, suggest):
+    # 60 / 10 = 6.0 is outside 6.5-8.0 (no suggestion), but 60 nmol/L [H+] is pH 7.22; 10 nmol/L
+    # is pH 8.0; 9.5 is neither (pH = 9 - log10 [H+], kassirer1965)
+    response = handle_obj({"calc": "blood_gas", "inputs": {**BASE, "ph": sent}})
+    error = next(e for e in response["errors"] if e["field"] == "inputs.ph")
+    assert error["code"] == code
+    assert error.get("suggest") == suggest
