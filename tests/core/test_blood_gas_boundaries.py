@@ -1412,3 +1412,10 @@ def test_a_ph_hint_only_for_a_value_that_becomes_a_ph_in_range(sent, code, sugge
     error = next(e for e in response["errors"] if e["field"] == "inputs.ph")
     assert error["code"] == code
     assert error.get("suggest") == suggest
+
+
+def test_a_normal_gas_has_only_the_always_present_findings_on_both_paths():
+    # pH 7.40, PaCO2 40, HCO3 24 (acid_base_normal_ranges): no disorder, so no compensation is read
+    for disorders, found in paths(BASE):
+        assert disorders == []
+        assert found == {"approaches_agree", "spo2_target"}
