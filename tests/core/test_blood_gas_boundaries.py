@@ -1347,7 +1347,7 @@ def test_the_sbe_reading_uses_plus_minus_3():
     assert "approaches_agree" in codes(r)
 
 
-def test_findings_are_sorted_urgent_notable_info_on_both_paths():
+def test_findings_of_the_decision_are_sorted_urgent_notable_info():
     rank = {"urgent": 0, "notable": 1, "info": 2}
     inputs = {
         "ph": 7.25,
@@ -1355,7 +1355,7 @@ def test_findings_are_sorted_urgent_notable_info_on_both_paths():
         "hco3": q(hco3_of(7.25, 70), "mmol/L"),
         "lactate": q(5, "mmol/L"),
     }
-    for d in both_paths(inputs)[:1]:
+    for d in both_paths(inputs)[:1]:  # the scalar Decision (blood_gas.findings reads scalars)
         found = blood_gas.findings(d)
         severities = [rank[d.severity.get(c, blood_gas.SEVERITY.get(c))] for c in found]
         assert severities == sorted(severities) and len(set(severities)) == 3
