@@ -887,7 +887,7 @@ def test_the_text_of_a_concurrent_metabolic_acidosis_names_its_reasons():
     text = finding_text(r, "concurrent_metabolic_acidosis")
     assert "lactate 5.0 mmol/L (4 or more)" in text
     assert "anion gap" not in text
-    assert "hco3_before_gap" not in r["outputs"]  # no gap above 12 to take back (wrenn1990)
+    assert "hco3_before_anion_gap" not in r["outputs"]  # no gap above 12 to take back (wrenn1990)
 
 
 def test_the_ph_rule_drift_text_names_40():
