@@ -14,6 +14,8 @@
 # An earlier run stopped part way: the mutants it never ran are left out of the copy (counted "not run").
 # MUTATION_RECHECK=<file>: a JSON list of job ids to run again as well (e.g. mutants killed by a larger
 # test selection, or by cosmic-ray's timeout while the run was paused).
+# MUTATION_UNRUN=1: run only the mutants the earlier run never reached, keeping its other results (a run
+# stopped part way, finished later against the committed tree; its module's code must be unchanged).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 m=${1:?module} earlier=${2:?earlier MUTATION_DIR}
@@ -29,10 +31,14 @@ git archive HEAD | tar -x -C "$out/tree-$m"
 cp "$earlier/$m.sqlite" "$out/$m.sqlite"
 sed "s|^test-command = .*|test-command = \"env PYTHONPATH=core TIDEWELL_NO_RESPONSE_CHECK=${NO_CHECK[$m]:-0} $py -m pytest -x -q -p no:cacheprovider --hypothesis-seed=0 $tests\"|" \
     "$earlier/$m.toml" >"$out/$m.toml"
-"$py" - "$out/$m.sqlite" "${MUTATION_RECHECK:-}" <<'EOF'
+"$py" - "$out/$m.sqlite" "${MUTATION_RECHECK:-}" "${MUTATION_UNRUN:-}" <<'EOF'
 import json, sqlite3, sys
 db = sqlite3.connect(sys.argv[1])
 never = "SELECT job_id FROM work_items WHERE job_id NOT IN (SELECT job_id FROM work_results)"
+if sys.argv[3]:
+    n = db.execute(f"SELECT count(*) FROM ({never})").fetchone()[0]
+    print(f"never run before, to run now: {n}; earlier results kept")
+    sys.exit()
 dropped = db.execute(f"DELETE FROM mutation_specs WHERE job_id IN ({never})").rowcount
 db.execute(f"DELETE FROM work_items WHERE job_id IN ({never})")
 n = db.execute("DELETE FROM work_results WHERE test_outcome = 'SURVIVED'").rowcount
