@@ -14,7 +14,7 @@ export function parseNumber(text) {
 }
 
 // mmHg in one kPa (1 mmHg = 133.322387415 Pa, the conventional millimetre of mercury)
-export const MMHG_PER_KPA = 7.50062;
+export const MMHG_PER_KPA = 1000 / 133.322387415;
 
 // A P/F ratio shown in the user's pressure unit, the other unit beside it: the contract fixes the
 // blood_gas `pf_ratio` in mmHg, the alveolar_gas one follows the request's unit; either way a kPa user
