@@ -11,7 +11,7 @@ from __future__ import annotations
 import json
 
 import pytest
-from test_blood_gas_boundaries import bg, finding_text, hco3_of, ph_of
+from test_blood_gas_boundaries import bg, codes, finding_text, fires_on_both_paths, hco3_of, ph_of
 
 from casebook import q
 from tidewell.bridge import handle
@@ -255,3 +255,236 @@ def test_a_pf_ratio_is_written_in_kpa_when_the_request_sent_as_json_asks_for_kpa
     texts = " ".join(f["text"] for f in response["findings"])
     assert f"P/F ratio {160 * 0.133322387415:.1f} kPa" in texts
     assert "160 mmHg" not in texts
+
+
+# -- the primary process at the ends of the pH range (acid_base_normal_ranges: pH 7.35-7.45 inclusive) -----
+# borderline_values is for a pH outside its range with PCO2 and HCO3 inside theirs; at pH 7.35 or 7.45 the
+# pH is inside, so it never fires there
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "hco3"),
+    [
+        # HCO3 26.2 above 26 with PaCO2 45 (not above 45): Henderson-Hasselbalch pH 7.378, within the 0.03
+        # of the consistency check (consistency_band)
+        (7.35, 45.0, 26.2),
+        # every value inside its range: Henderson-Hasselbalch pH 7.420, within 0.03
+        (7.45, 40.5, 26.0),
+    ],
+)
+def test_a_ph_at_either_end_of_its_range_is_never_a_borderline_reading(ph, pco2, hco3):
+    assert abs(ph_of(hco3, pco2) - ph) <= 0.03
+    r = bg({"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(hco3, "mmol/L")})
+    assert r["outputs"]["consistency"] == "consistent"
+    assert "borderline_values" not in codes(r)
+
+
+# -- Winters' band is inclusive (albert1967: expected PaCO2 = 1.5 x HCO3 + 8 +/- 2) -------------------------
+
+
+@pytest.mark.parametrize(
+    ("pco2", "code"),
+    [
+        (28.0, "compensation_as_expected"),  # 1.5 x 12 + 8 + 2: the upper end
+        (28.5, "concurrent_respiratory_acidosis"),
+        (24.0, "compensation_as_expected"),  # 1.5 x 12 + 8 - 2: the lower end
+        (23.5, "concurrent_respiratory_alkalosis"),
+    ],
+)
+def test_winters_band_includes_both_ends(pco2, code):
+    assert 1.5 * 12 + 8 - 2 <= 28.0 and 24.0 <= 1.5 * 12 + 8 + 2
+    inputs = {"ph": ph_of(12, pco2), "pco2": q(pco2, "mmHg"), "hco3": q(12, "mmol/L")}
+    r = bg(inputs)
+    assert order(r)[0] == "metabolic_acidosis"
+    assert code in codes(r)
+    assert fires_on_both_paths(inputs, code) == (True, True)
+
+
+def test_the_ph_rule_drift_belongs_to_a_respiratory_primary_only():
+    # HCO3 12, PaCO2 71: metabolic acidosis primary (|log10(24/12)| > |log10(71/40)|) with a concurrent
+    # respiratory acidosis (above Winters' 26 +/- 2, albert1967); the linear pH rules (berend2014) read a
+    # primary respiratory acidosis, so their drift above a rise of 30 is not named here, on either path
+    inputs = {"ph": ph_of(12, 71), "pco2": q(71, "mmHg"), "hco3": q(12, "mmol/L")}
+    assert order(bg(inputs)) == ["metabolic_acidosis", "respiratory_acidosis"]
+    assert fires_on_both_paths(inputs, "ph_rule_drift") == (False, False)
+    assert fires_on_both_paths(inputs, "chronicity_rules_disagree") == (False, False)
+
+
+# -- a concurrent metabolic acidosis beside a respiratory acidosis: more than the margin below the acute
+# expectation, the margin 2 mmol/L or a fifth of the acute-chronic spread if larger (fraction_acute_bands,
+# narins1980; the margin is the project's documented convention) --------------------------------------------
+
+
+@pytest.mark.parametrize(("hco3", "named"), [(27.5, False), (26.5, True)])
+def test_the_margin_below_the_acute_expectation_widens_with_the_spread(hco3, named):
+    # PaCO2 100: acute 24 + 1 x 6 = 30, chronic 24 + 3.5 x 6 = 45 (narins1980); margin max(2, 0.2 x 15) = 3:
+    # a HCO3 below 27 names a concurrent metabolic acidosis
+    acute, chronic = 24 + 6.0, 24 + 3.5 * 6
+    limit = acute - max(2.0, 0.2 * (chronic - acute))
+    assert limit == pytest.approx(27.0)
+    inputs = {"ph": ph_of(hco3, 100), "pco2": q(100, "mmHg"), "hco3": q(hco3, "mmol/L")}
+    assert fires_on_both_paths(inputs, "concurrent_metabolic_acidosis") == (named, named)
+
+
+# -- the fractions acute need a PaCO2 at least 1 mmHg from 40 (fraction_acute_bands: the divisor is the rise;
+# the public fraction functions accept 41 mmHg and more) ----------------------------------------------
+
+
+def test_a_rise_of_exactly_1_mmhg_shows_both_fractions_acute():
+    # pH 7.345, PaCO2 41, HCO3 23.5 (Henderson-Hasselbalch 7.371, within 0.03): a tentative respiratory
+    # acidosis (|log10(41/40)| > |log10(24/23.5)|). By HCO3 f = (24.35 - 23.5) / (24.35 - 24.1) = 3.4
+    # (narins1980); by pH f = [(7.40 - 7.345) - 0.003] / 0.005 = 10.4 (berend2014)
+    r = bg({"ph": 7.345, "pco2": q(41, "mmHg"), "hco3": q(23.5, "mmol/L")})
+    assert order(r) == ["respiratory_acidosis"]
+    assert r["outputs"]["fraction_acute_hco3"] == pytest.approx((24.35 - 23.5) / (24.35 - 24.1), abs=1e-9)
+    assert r["outputs"]["fraction_acute_ph"] == pytest.approx(((7.40 - 7.345) - 0.003) / 0.005, abs=1e-9)
+
+
+def test_a_rise_below_1_mmhg_shows_no_fraction_acute():
+    # pH 7.345, PaCO2 40.8, HCO3 23.55 (Henderson-Hasselbalch 7.374, within 0.03): a tentative respiratory
+    # acidosis (|log10(40.8/40)| > |log10(24/23.55)|), rise 0.8 mmHg
+    assert abs(ph_of(23.55, 40.8) - 7.345) <= 0.03
+    r = bg({"ph": 7.345, "pco2": q(40.8, "mmHg"), "hco3": q(23.55, "mmol/L")})
+    assert order(r) == ["respiratory_acidosis"]
+    assert "fraction_acute_hco3" not in r["outputs"]
+    assert "fraction_acute_ph" not in r["outputs"]
+
+
+def test_a_rise_of_1_mmhg_above_a_baseline_below_40_reads_fraction_acute_1():
+    # f = (PaCO2 - max(baseline, 40)) / (PaCO2 - 40) = (41 - 40) / 1 = 1 (fraction_acute_bands)
+    r = bg({"ph": 7.345, "pco2": q(41, "mmHg"), "hco3": q(23.5, "mmol/L"), "baseline_pco2": q(35, "mmHg")})
+    assert r["outputs"]["fraction_acute_baseline"] == pytest.approx(1.0, abs=1e-12)
+
+
+# -- a concurrent metabolic alkalosis beside a respiratory alkalosis: more than 2 above the acute
+# expectation (narins1980; margin common practice) ----------------------------------------------------------
+
+
+@pytest.mark.parametrize(("hco3", "named"), [(24.0, False), (24.1, True)])
+def test_a_metabolic_alkalosis_beside_a_respiratory_alkalosis_needs_more_than_2_above_the_acute(hco3, named):
+    # PaCO2 30: acute 24 - 2 x 1 = 22; the limit 22 + 2 = 24 itself is not above it
+    inputs = {"ph": ph_of(hco3, 30), "pco2": q(30, "mmHg"), "hco3": q(hco3, "mmol/L")}
+    assert order(bg(inputs))[0] == "respiratory_alkalosis"
+    assert fires_on_both_paths(inputs, "concurrent_metabolic_alkalosis") == (named, named)
+
+
+@pytest.mark.parametrize(("hco3", "named"), [(38.048, False), (38.148, True)])
+def test_a_metabolic_alkalosis_beside_a_respiratory_acidosis_needs_an_sbe_above_the_chronic_limit(
+    hco3, named
+):
+    # pH 7.36, PaCO2 64 (rise 24): HCO3 above the steepest chronic band 24 + 5 x 2.4 = 36 (martinu2003); the
+    # SBE HCO3 - 24.8 + 16.2 x (pH - 7.40) (nccls1994) must be above 0.4 x 24 + 3 = 12.6 (schlichtig1998):
+    # at HCO3 38.048 it is exactly 12.6
+    sbe = hco3 - 24.8 + 16.2 * (7.36 - 7.40)
+    assert (sbe > 0.4 * 24 + 3 + 1e-9) is named
+    inputs = {"ph": 7.36, "pco2": q(64, "mmHg"), "hco3": q(hco3, "mmol/L")}
+    assert abs(ph_of(hco3, 64) - 7.36) <= 0.03
+    assert order(bg(inputs))[0] == "respiratory_acidosis"
+    assert fires_on_both_paths(inputs, "concurrent_metabolic_alkalosis") == (named, named)
+
+
+def test_chronicity_rules_that_agree_are_not_named_on_either_path():
+    # PaCO2 60, HCO3 31 = the chronic 24 + 3.5 x 2 (narins1980): f by HCO3 0; pH 7.326 by
+    # Henderson-Hasselbalch, f by pH [(7.40 - 7.326) - 0.06] / 0.1 ~ 0.14 (berend2014): both chronic
+    inputs = {"ph": ph_of(31, 60), "pco2": q(60, "mmHg"), "hco3": q(31, "mmol/L")}
+    assert fires_on_both_paths(inputs, "chronicity_rules_disagree") == (False, False)
+
+
+# -- the chronicity beside a metabolic acidosis: the HCO3 before the gap only for a gap above 12 (wrenn1990)
+
+
+def test_an_anion_gap_of_exactly_12_leaves_the_chronicity_indeterminate():
+    # PaCO2 60, HCO3 20: below the acute 26 - 2 (narins1980), a concurrent metabolic acidosis; AG 140 - 108
+    # - 20 = 12, nothing to take back: no fraction acute, the chronicity is indeterminate
+    inputs = {"ph": ph_of(20, 60), "pco2": q(60, "mmHg"), "hco3": q(20, "mmol/L")}
+    r = bg({**inputs, "na": q(140, "mmol/L"), "cl": q(108, "mmol/L")})
+    assert "chronicity_indeterminate" in codes(r)
+    assert r["outputs"]["disorders"][0]["fraction_acute"] is None
+    assert "fraction_acute_before_gap" not in r["outputs"]
+
+
+# -- the chronicity of a concurrent respiratory acidosis from a known baseline (fraction_acute_bands) -------
+
+
+@pytest.mark.parametrize(("pco2", "from_baseline"), [(41.5, True), (41.0, False)])
+def test_a_concurrent_respiratory_acidosis_reads_its_baseline_above_a_rise_of_1(pco2, from_baseline):
+    # HCO3 20: Winters 38 +/- 2 (albert1967): PaCO2 41 and 41.5 are above it; with a usual PaCO2 of 35,
+    # f = (PaCO2 - 40) / (PaCO2 - 40) = 1 needs a rise of more than 1 mmHg to be read
+    inputs = {
+        "ph": ph_of(20, pco2),
+        "pco2": q(pco2, "mmHg"),
+        "hco3": q(20, "mmol/L"),
+        "baseline_pco2": q(35, "mmHg"),
+    }
+    r = bg(inputs)
+    assert order(r) == ["metabolic_acidosis", "respiratory_acidosis"]
+    assert ("respiratory_chronicity_assumed" in codes(r)) is not from_baseline
+    if from_baseline:
+        assert r["outputs"]["disorders"][1]["fraction_acute"] == pytest.approx(1.0, abs=1e-12)
+
+
+def test_a_concurrent_respiratory_acidosis_below_its_baseline_reads_fraction_acute_0():
+    # HCO3 12, PaCO2 50 above Winters' 26 +/- 2 (albert1967); usual PaCO2 60: f = (50 - 60) / (50 - 40) = -1,
+    # limited to 0-1 (fraction_acute_bands)
+    inputs = {
+        "ph": ph_of(12, 50),
+        "pco2": q(50, "mmHg"),
+        "hco3": q(12, "mmol/L"),
+        "baseline_pco2": q(60, "mmHg"),
+    }
+    r = bg(inputs)
+    assert order(r) == ["metabolic_acidosis", "respiratory_acidosis"]
+    assert r["outputs"]["disorders"][1]["fraction_acute"] == pytest.approx(0.0, abs=1e-12)
+
+
+def test_a_metabolic_alkalosis_the_gap_finds_is_named_after_the_concurrent_respiratory_acidosis():
+    # HCO3 18, PaCO2 46: metabolic acidosis primary (|log10(24/18)| > |log10(46/40)|), PaCO2 above Winters'
+    # 35 +/- 2 (albert1967); AG 140 - 92 - 18 = 30: delta ratio (30 - 12) / (24 - 18) = 3, above 2, a
+    # metabolic alkalosis beside the gap acidosis (wrenn1990, rastegar2007), found last
+    r = bg(
+        {
+            "ph": ph_of(18, 46),
+            "pco2": q(46, "mmHg"),
+            "hco3": q(18, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(92, "mmol/L"),
+        }
+    )
+    assert order(r) == ["metabolic_acidosis", "respiratory_acidosis", "metabolic_alkalosis"]
+
+
+# -- the base excess a report gives against the band the formulas span, +/- 2 (nccls1994, siggaard1971) -----
+
+
+def be_band(ph: float, hco3: float) -> tuple[float, float]:
+    clsi = hco3 - 24.8 + 16.2 * (ph - 7.40)  # nccls1994
+    siggaard = 0.9287 * (hco3 - 24.4 + 14.83 * (ph - 7.40))  # siggaard1971
+    van_slyke = (1 - 0.014 * 5) * ((hco3 - 24.8) + (1.43 * 5 + 7.7) * (ph - 7.40))  # Hb 5 g/dL, siggaard1971
+    return min(clsi, siggaard, van_slyke), max(clsi, siggaard, van_slyke)
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "hco3", "be", "differs"),
+    [
+        # pH 7.40, HCO3 15 (PaCO2 24.5 by Henderson-Hasselbalch): band -9.8 to -8.73
+        (7.40, 24.5, 15.0, -11.8, False),  # the lower end - 2 itself
+        (7.40, 24.5, 15.0, -12.3, True),
+        (7.40, 24.5, 15.0, -6.2, True),
+        # pH 7.32, HCO3 32.74 (PaCO2 64): the upper end + 2 is 8.644
+        (7.32, 64.0, 32.74, 8.644, False),
+        (7.32, 64.0, 32.74, 8.7, True),
+    ],
+)
+def test_a_reported_base_excess_within_2_of_the_computed_band_is_accepted(ph, pco2, hco3, be, differs):
+    low, high = be_band(ph, hco3)
+    assert (not low - 2.0 - 1e-9 <= be <= high + 2.0 + 1e-9) is differs
+    inputs = {"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(hco3, "mmol/L"), "base_excess": q(be, "mmol/L")}
+    assert abs(ph_of(hco3, pco2) - ph) <= 0.03
+    assert fires_on_both_paths(inputs, "base_excess_differs") == (differs, differs)
+
+
+def test_the_van_slyke_base_excess_at_hb_5():
+    # (1 - 0.014 x 5) x [(HCO3 - 24.8) + (1.43 x 5 + 7.7) x (pH - 7.40)] (siggaard1971)
+    r = bg({"ph": 7.32, "pco2": q(64, "mmHg"), "hco3": q(32.74, "mmol/L")})
+    expected = (1 - 0.014 * 5) * ((32.74 - 24.8) + (1.43 * 5 + 7.7) * (7.32 - 7.40))
+    assert r["outputs"]["sbe_variants"]["van_slyke_hb5"]["value"] == pytest.approx(expected, abs=1e-9)
