@@ -488,3 +488,22 @@ def test_the_van_slyke_base_excess_at_hb_5():
     r = bg({"ph": 7.32, "pco2": q(64, "mmHg"), "hco3": q(32.74, "mmol/L")})
     expected = (1 - 0.014 * 5) * ((32.74 - 24.8) + (1.43 * 5 + 7.7) * (7.32 - 7.40))
     assert r["outputs"]["sbe_variants"]["van_slyke_hb5"]["value"] == pytest.approx(expected, abs=1e-9)
+
+
+@pytest.mark.parametrize(
+    ("ph", "pco2", "t"),
+    [
+        (7.33571783407849, 40.0, 36.0),  # the corrected pH is 7.35 to the last bit
+        (7.435072031793344, 40.0, 36.0),  # the corrected pH is 7.45 to the last bit
+        (7.40, 36.0, 36.356081241209914),  # the corrected PCO2 is 35 mmHg to the last bit
+    ],
+)
+def test_the_ph_stat_view_counts_the_ends_of_the_reference_ranges_as_inside(ph, pco2, t):
+    # pH 7.35-7.45 and PCO2 35-45 mmHg inclusive (acid_base_normal_ranges); pH_T = pH + (T - 37) x (-0.0147
+    # + 0.0065 x (7.40 - pH)) (rosenthal1948), PCO2_T = PCO2 x 10^(0.019 x (T - 37)) (bradley1956)
+    ph_t = ph + (t - 37.0) * (-0.0147 + 0.0065 * (7.40 - ph))
+    pco2_t = pco2 * 10.0 ** (0.019 * (t - 37.0))
+    assert 7.35 <= ph_t <= 7.45 and 35.0 <= pco2_t <= 45.0
+    assert ph_t in (7.35, 7.45) or pco2_t == 35.0
+    r = bg({"ph": ph, "pco2": q(pco2, "mmHg"), "temperature": q(t, "degC")})
+    assert "which are near normal" in finding_text(r, "temperature_ph_stat_view")
