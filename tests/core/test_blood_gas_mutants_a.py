@@ -15,6 +15,7 @@ from test_blood_gas_boundaries import bg, codes, finding_text, fires_on_both_pat
 
 from casebook import q
 from tidewell.bridge import handle
+from tidewell.frontends import batch
 
 
 def order(response: dict) -> list[str]:
@@ -496,6 +497,7 @@ def test_the_van_slyke_base_excess_at_hb_5():
         (7.33571783407849, 40.0, 36.0),  # the corrected pH is 7.35 to the last bit
         (7.435072031793344, 40.0, 36.0),  # the corrected pH is 7.45 to the last bit
         (7.40, 36.0, 36.356081241209914),  # the corrected PCO2 is 35 mmHg to the last bit
+        (7.40, 41.0, 39.12782405555833),  # the corrected PCO2 is 45 mmHg to the last bit
     ],
 )
 def test_the_ph_stat_view_counts_the_ends_of_the_reference_ranges_as_inside(ph, pco2, t):
@@ -504,6 +506,47 @@ def test_the_ph_stat_view_counts_the_ends_of_the_reference_ranges_as_inside(ph, 
     ph_t = ph + (t - 37.0) * (-0.0147 + 0.0065 * (7.40 - ph))
     pco2_t = pco2 * 10.0 ** (0.019 * (t - 37.0))
     assert 7.35 <= ph_t <= 7.45 and 35.0 <= pco2_t <= 45.0
-    assert ph_t in (7.35, 7.45) or pco2_t == 35.0
+    assert ph_t in (7.35, 7.45) or pco2_t in (35.0, 45.0)
     r = bg({"ph": ph, "pco2": q(pco2, "mmHg"), "temperature": q(t, "degC")})
     assert "which are near normal" in finding_text(r, "temperature_ph_stat_view")
+
+
+# -- a known baseline against the HCO3 rules (fraction_acute_bands: acute at 0.8 or more, chronic at 0.2 or
+# less, acute-on-chronic between) ---------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("baseline", "disagree"),
+    [
+        # baseline 50: f = (60 - 50) / (60 - 40) = 0.5, acute-on-chronic
+        (50.0, True),
+        # baseline 35 (below 40): f = (60 - 40) / 20 = 1, acute
+        (35.0, False),
+    ],
+)
+def test_a_baseline_that_reads_otherwise_than_the_hco3_is_named_on_both_paths(baseline, disagree):
+    # PaCO2 60, HCO3 26.6: f by HCO3 (31 - 26.6) / (31 - 26) = 0.88, acute (narins1980); HCO3 26.6 is within
+    # 2 of the 28.5 expected on a baseline of 50 (24 + 3.5 x 1 + 1 x 1, berend2014): no metabolic disorder
+    f_h = (24 + 3.5 * 2 - 26.6) / (3.5 * 2 - 1 * 2)
+    assert f_h >= 0.8
+    inputs = {
+        "ph": ph_of(26.6, 60),
+        "pco2": q(60, "mmHg"),
+        "hco3": q(26.6, "mmol/L"),
+        "baseline_pco2": q(baseline, "mmHg"),
+    }
+    assert order(bg(inputs)) == ["respiratory_acidosis"]
+    assert fires_on_both_paths(inputs, "baseline_and_hco3_disagree") == (disagree, disagree)
+
+
+def test_the_batch_names_a_lone_primary_respiratory_acidosis():
+    # PaCO2 60, HCO3 31 = the chronic 24 + 3.5 x 2 (narins1980): a respiratory acidosis alone
+    table = f"ph,pco2[mmHg],hco3[mmol/L]\n{ph_of(31, 60)},60,31\n"
+    audit = batch.interpret_table(batch.read_table(table))
+    assert audit.value("disorders", 0) == "respiratory_acidosis"
+
+
+def test_display_decimals_of_the_base_excess_difference():
+    # common practice: a concentration in mmol/L to 1 decimal (docs/bridge.md, display)
+    r = bg({"ph": 7.40, "pco2": q(24.5, "mmHg"), "hco3": q(15, "mmol/L"), "base_excess": q(-11.8, "mmol/L")})
+    assert r["display"]["base_excess_difference"] == 1
