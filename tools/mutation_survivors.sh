@@ -14,6 +14,8 @@
 # An earlier run stopped part way: the mutants it never ran are left out of the copy (counted "not run").
 # MUTATION_RECHECK=<file>: a JSON list of job ids to run again as well (e.g. mutants killed by a larger
 # test selection, or by cosmic-ray's timeout while the run was paused).
+# MUTATION_FILES="a.py b.py": run again only the survivors in files of those names (the others stay
+# survivors), e.g. the files whose tests were added since.
 # MUTATION_UNRUN=1: run only the mutants the earlier run never reached, keeping its other results (a run
 # stopped part way, finished later against the committed tree; its module's code must be unchanged).
 set -euo pipefail
@@ -31,7 +33,7 @@ git archive HEAD | tar -x -C "$out/tree-$m"
 cp "$earlier/$m.sqlite" "$out/$m.sqlite"
 sed "s|^test-command = .*|test-command = \"env PYTHONPATH=core TIDEWELL_NO_RESPONSE_CHECK=${NO_CHECK[$m]:-0} $py -m pytest -x -q -p no:cacheprovider --hypothesis-seed=0 $tests\"|" \
     "$earlier/$m.toml" >"$out/$m.toml"
-"$py" - "$out/$m.sqlite" "${MUTATION_RECHECK:-}" "${MUTATION_UNRUN:-}" <<'EOF'
+"$py" - "$out/$m.sqlite" "${MUTATION_RECHECK:-}" "${MUTATION_UNRUN:-}" "${MUTATION_FILES:-}" <<'EOF'
 import json, sqlite3, sys
 db = sqlite3.connect(sys.argv[1])
 never = "SELECT job_id FROM work_items WHERE job_id NOT IN (SELECT job_id FROM work_results)"
@@ -41,7 +43,14 @@ if sys.argv[3]:
     sys.exit()
 dropped = db.execute(f"DELETE FROM mutation_specs WHERE job_id IN ({never})").rowcount
 db.execute(f"DELETE FROM work_items WHERE job_id IN ({never})")
-n = db.execute("DELETE FROM work_results WHERE test_outcome = 'SURVIVED'").rowcount
+survived = "SELECT job_id FROM work_results WHERE test_outcome = 'SURVIVED'"
+if sys.argv[4]:
+    files = sys.argv[4].split()
+    jobs = [j for j, path in db.execute(f"SELECT job_id, module_path FROM mutation_specs WHERE job_id IN ({survived})")
+            if path.rsplit("/", 1)[-1] in files]
+    n = sum(db.execute("DELETE FROM work_results WHERE job_id = ?", (j,)).rowcount for j in jobs)
+else:
+    n = db.execute(f"DELETE FROM work_results WHERE job_id IN ({survived})").rowcount
 again = json.load(open(sys.argv[2])) if sys.argv[2] else []
 k = sum(db.execute("DELETE FROM work_results WHERE job_id = ?", (j,)).rowcount for j in again)
 db.commit()
