@@ -110,6 +110,17 @@ def test_no_alveolar_oxygen_refused_from_an_alveolar_po2_below_zero(pco2, refuse
     assert (("inputs.fio2", "inconsistent") in [(e["field"], e["code"]) for e in errors]) is refused, errors
 
 
+def test_the_alveolar_check_takes_the_usual_quotient_when_the_one_sent_is_refused():
+    # alveolar_gas_1946 with R 0.8 (the documented default, docs/glossary/acidbase.md): 149.73 - 120 / 0.8 =
+    # -0.27 mmHg; an R of 1.5 is outside 0.6-1.2 and refused, and the check still reads the default
+    assert 0.21 * (760 - 47) - 120 / 0.8 < 0
+    errors = errors_of({"ph": 7.1, "pco2": q(120, "mmHg"), "po2": q(60, "mmHg"), "fio2": 0.21, "rq": 1.5})
+    assert [(e["field"], e["code"]) for e in errors] == [
+        ("inputs.rq", "out_of_range"),
+        ("inputs.fio2", "inconsistent"),
+    ]
+
+
 @pytest.mark.parametrize(("mmhg", "named"), [(150.0, False), (160.0, True)])
 def test_a_pco2_sent_in_kpa_is_a_possible_unit_slip_only_above_150_mmhg(mmhg, named):
     # common practice: a PCO2 above 150 mmHg (20 kPa) is far more likely a mmHg value sent as kPa; 150 mmHg
@@ -420,6 +431,10 @@ def test_copenhagen_chronicity_named_where_it_differs_from_the_hco3_rules(inputs
         # 30.5; Stewart: Na-Cl 140 - 109.9 - 35 = -4.9, lactate -4.9, albumin 0, unmeasured -1.5: no single
         # effect reaches -5, so Stewart names no acidosis
         (triple(ph_of(15, 30.5), 30.5, 15, na=140, cl=109.9, lactate=4.9, albumin=4.2), False),
+        # respiratory alkalosis PCO2 10, HCO3 20: within the acute expectation 24 - 0.2 x 30 = 18 + 2
+        # (albert1967), so no metabolic alkalosis by HCO3; SBE 20 - 24.8 + 16.2 x (7.914 - 7.40) = +3.5 is
+        # above the band max(0, 0.4 x -30) + 3 = 3: the SBE reads one
+        (triple(ph_of(20, 10), 10, 20), False),
         # normal values, Na-Cl effect 140 - 110 - 35 = -5 (acidifying), albumin 2.3 g/dL (+4.75): Stewart
         # names an acidosis that the HCO3 and the SBE do not
         (triple(7.40, 40, 24, na=140, cl=110, albumin=2.3), False),
