@@ -183,7 +183,9 @@ def test_a_concentration_outside_its_range_offers_the_unit_that_fits_limits_incl
     assert errors[0]["code"] == ("implausible" if suggest else "out_of_range")
 
 
-@pytest.mark.parametrize(("value", "suggest"), [(75, {"value": 7.5}), (85, None), (80.5, None)])
+@pytest.mark.parametrize(
+    ("value", "suggest"), [(65, {"value": 6.5}), (75, {"value": 7.5}), (85, None), (80.5, None)]
+)
 def test_a_ph_without_its_decimal_point_is_offered_only_within_6_5_to_8(value, suggest):
     # docs/glossary/acidbase.md: pH accepted 6.5-8.0, with a hint for a missing decimal point: 75 -> 7.5;
     # 85 -> 8.5 and 80.5 -> 8.05 are outside the range, so only the [H+] reading is offered
@@ -205,6 +207,7 @@ def test_a_ph_without_its_decimal_point_is_offered_only_within_6_5_to_8(value, s
         # pH 7.34 and 7.35 with PCO2 60: HCO3 from Henderson-Hasselbalch (henderson1908)
         (triple(7.34, 60, 0.0307 * 60 * 10 ** (7.34 - 6.1), lactate=5), True),
         (triple(7.35, 60, 0.0307 * 60 * 10 ** (7.35 - 6.1), lactate=5), False),
+        (triple(7.38, 60, 0.0307 * 60 * 10 ** (7.38 - 6.1), lactate=5), False),
         # a primary metabolic acidosis (HCO3 14, PCO2 at Winters' 1.5 x 14 + 8 = 29, albert1967) is not
         # concurrent to itself
         (triple(ph_of(14, 29), 29, 14, lactate=5), False),
@@ -232,6 +235,10 @@ def test_an_anion_gap_of_20_makes_a_metabolic_acidosis_the_primary_disorder_of_n
         "chronicity": None,
         "fraction_acute": None,
     }
+    # brandis: delta gap (20 - 12) - (24 - 24) = +8, above +6: a metabolic alkalosis as well
+    assert finding_text(bg(inputs), "metabolic_alkalosis_from_gap") == (
+        "The delta gap is +8.0 mmol/L (above +6): a concurrent metabolic alkalosis."
+    )
 
 
 @pytest.mark.parametrize(
@@ -384,6 +391,10 @@ def test_the_sbe_rule_for_the_paco2_of_a_metabolic_primary_includes_its_limits(p
     [
         # PCO2 46, HCO3 28: SBE 3.16 is within 3 of the chronic 2.4, not of 0: chronic, as the HCO3 rules read
         (triple(ph_of(28, 46), 46, 28), False, None),
+        # PCO2 46, HCO3 25.5: SBE 0.0 is within 3 of both 0 and 2.4: the SBE cannot tell, nothing is named
+        (triple(ph_of(25.5, 46), 46, 25.5), False, None),
+        # PCO2 60, HCO3 24.1: SBE -3.67, below the acute band: the SBE does not judge the chronicity
+        (triple(ph_of(24.1, 60), 60, 24.1), False, None),
         # PCO2 94, HCO3 32: SBE 3.07, neither 0 +/- 3 nor 21.6 +/- 3: acute-on-chronic; the HCO3 rules read
         # acute
         (triple(ph_of(32, 94), 94, 32), True, "acute-on-chronic"),
@@ -435,6 +446,13 @@ def test_copenhagen_chronicity_named_where_it_differs_from_the_hco3_rules(inputs
         # (albert1967), so no metabolic alkalosis by HCO3; SBE 20 - 24.8 + 16.2 x (7.914 - 7.40) = +3.5 is
         # above the band max(0, 0.4 x -30) + 3 = 3: the SBE reads one
         (triple(ph_of(20, 10), 10, 20), False),
+        # metabolic acidosis HCO3 20 at PCO2 38, within Winters' 1.5 x 20 + 8 = 38 +/- 2 (albert1967); SBE
+        # 20 - 24.8 + 16.2 x (7.334 - 7.40) = -5.9, and 40 - 5.9 = 34.1 is more than 2 from 38: the SBE rule
+        # calls the response inappropriate
+        (triple(ph_of(20, 38), 38, 20), False),
+        # normal values, Na-Cl effect 140 - 109 - 35 = -4, albumin 2.2 g/dL (0.25 x (42 - 22) = +5,
+        # alkalinising), unmeasured -0.8 - 1 = -1.8: Stewart names an alkalosis the HCO3 and the SBE do not
+        (triple(7.40, 40, 24, na=140, cl=109, albumin=2.2), False),
         # normal values, Na-Cl effect 140 - 110 - 35 = -5 (acidifying), albumin 2.3 g/dL (+4.75): Stewart
         # names an acidosis that the HCO3 and the SBE do not
         (triple(7.40, 40, 24, na=140, cl=110, albumin=2.3), False),
@@ -469,9 +487,23 @@ def test_a_respiratory_response_both_rules_find_inappropriate_is_no_difference()
             False,
             False,
         ),
+        # normal values with a Na-Cl effect of -5 and albumin 2.3 g/dL (+4.75): Stewart names an acidosis the
+        # HCO3 reading does not
+        (triple(7.40, 40, 24, na=140, cl=110, albumin=2.3), False, True),
     ],
 )
 def test_the_disagreement_is_explained_only_by_what_applies(inputs, cancel, stewart):
+    # common practice: the SBE shows only the net of opposing processes; Stewart's separate effects
+    # (story2016) can name a process the HCO3 reading does not
     text = finding_text(bg(inputs), "approaches_disagree")
     assert ("Opposing metabolic processes cancel in the SBE" in text) is cancel
     assert ("Stewart splits the net change into separate effects" in text) is stewart
+
+
+@pytest.mark.parametrize(("cl", "raised"), [(106, False), (100, False), (99, True)])
+def test_an_anion_gap_above_16_without_an_acidosis_is_named(cl, raised):
+    # kraut2007 (common practice: normal about 12, named above 12 + 4): normal pH, PCO2 and HCO3 (no acidosis)
+    # with an anion gap of 140 - 106 - 24 = 10, 140 - 100 - 24 = 16 and 140 - 99 - 24 = 17 (below the 20 at
+    # which an acidosis is named whatever the HCO3, gabow1980)
+    inputs = triple(7.40, 40, 24, na=140, cl=cl)
+    assert fires_on_both_paths(inputs, "anion_gap_raised") == (raised, raised)
