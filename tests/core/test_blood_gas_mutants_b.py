@@ -507,3 +507,27 @@ def test_an_anion_gap_above_16_without_an_acidosis_is_named(cl, raised):
     # which an acidosis is named whatever the HCO3, gabow1980)
     inputs = triple(7.40, 40, 24, na=140, cl=cl)
     assert fires_on_both_paths(inputs, "anion_gap_raised") == (raised, raised)
+
+
+@pytest.mark.parametrize(
+    ("cl", "kind", "before_shown"),
+    [(108, "normal_anion_gap", False), (107.5, "high_and_normal_anion_gap", True)],
+)
+def test_an_anion_gap_of_12_beside_a_respiratory_acidosis_is_a_normal_gap_acidosis(cl, kind, before_shown):
+    # kraut2007: a normal anion gap is about 12; PCO2 50 with HCO3 20 (below the acute 25 - 2, albert1967)
+    # is a concurrent metabolic acidosis; AG 140 - 108 - 20 = 12 is a normal gap one (no HCO3 before the gap
+    # to add back, brandis); with AG 12.5 the HCO3 before the gap, 20.5, is still below 23: both kinds
+    response = bg(triple(ph_of(20, 50), 50, 20, na=140, cl=cl))
+    assert response["outputs"]["metabolic_acidosis_type"] == kind
+    assert ("HCO3 before the unmeasured acid" in step_labels(response)) is before_shown
+
+
+@pytest.mark.parametrize(
+    ("cl", "kind"),
+    [(112, "normal_anion_gap"), (109, "high_and_normal_anion_gap"), (105, "high_anion_gap")],
+)
+def test_the_delta_ratio_band_names_the_acidosis_type_on_both_paths(cl, kind):
+    # brandis: delta ratio below 0.4 a normal gap acidosis, 0.4 to 0.8 mixed, 0.8 to 2 high gap; HCO3 14 at
+    # Winters' PCO2 1.5 x 14 + 8 = 29 (albert1967), AG 14, 17, 21: ratio 2/10, 5/10, 9/10
+    inputs = triple(ph_of(14, 29), 29, 14, na=140, cl=cl)
+    assert on_both_paths(inputs, "acidosis_type") == (kind, kind)
