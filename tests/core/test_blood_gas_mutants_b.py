@@ -531,3 +531,22 @@ def test_the_delta_ratio_band_names_the_acidosis_type_on_both_paths(cl, kind):
     # Winters' PCO2 1.5 x 14 + 8 = 29 (albert1967), AG 14, 17, 21: ratio 2/10, 5/10, 9/10
     inputs = triple(ph_of(14, 29), 29, 14, na=140, cl=cl)
     assert on_both_paths(inputs, "acidosis_type") == (kind, kind)
+
+
+def strong_ion_gap(ph: float, hco3: float, na: float, k: float, cl: float, albumin_g_dl: float) -> float:
+    """SIG = SIDa - SIDe with the typical Ca 1.2, Mg 0.9 and phosphate 1.0 mmol/L and no lactate
+    (stewart1983, figge1992, kellum1995; typical values: stewart_typical_values)."""
+    sid_apparent = na + k + 2.0 * 1.2 + 2.0 * 0.9 - cl - 0.0
+    sid_effective = hco3 + (albumin_g_dl * 10.0) * (0.123 * ph - 0.631) + 1.0 * (0.309 * ph - 0.469)
+    return sid_apparent - sid_effective
+
+
+@pytest.mark.parametrize(("hco3", "raised"), [(23.71440000000002, False), (23.6, True)])
+def test_a_strong_ion_gap_above_4_is_named(hco3, raised):
+    # kellum1995 (common practice: unmeasured anions suspected above 2-4 mEq/L; named above 4). The HCO3
+    # 23.7144... makes the SIG exactly 4.0 in IEEE arithmetic (sums and products only, the same everywhere);
+    # 23.6 makes it 4.11
+    sig = strong_ion_gap(7.40, hco3, 140.0, 4.0, 107.5, 4.0)
+    assert sig == (pytest.approx(4.1144) if raised else 4.0)
+    inputs = triple(7.40, hco3 / (0.0307 * 10 ** (7.40 - 6.1)), hco3, na=140, k=4, cl=107.5, albumin=4.0)
+    assert fires_on_both_paths(inputs, "strong_ion_gap_raised") == (raised, raised)
