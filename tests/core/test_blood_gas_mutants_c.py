@@ -284,7 +284,10 @@ def test_a_metabolic_primary_aims_at_winters_and_is_not_an_niv_case_on_both_path
     # albert1967: HCO3 12 gives Winters 26 +/- 2; PaCO2 50 is above it (a concurrent respiratory acidosis),
     # and pH < 7.35 with PaCO2 > 6.5 kPa is the NIV threshold of a primary respiratory acidosis only
     # (bts_ics2016)
-    scalar, together = both_paths(gas(ph_of(12.0, 50.0), 50.0))
+    inputs = gas(ph_of(12.0, 50.0), 50.0)
+    assert fires_on_both_paths(inputs, "ventilation_failing_to_compensate") == (True, True)
+    assert fires_on_both_paths(inputs, "niv_criteria_met") == (False, False)
+    scalar, together = both_paths(inputs)
     for decision in (scalar, together):
         assert first(decision.pco2_target_basis) == "metabolic_compensation"
         assert first(decision.pco2_target) == pytest.approx(26.0, abs=1e-9)
@@ -374,7 +377,8 @@ def test_a_retainer_is_read_only_with_a_raised_paco2():
 
 def test_a_fraction_acute_of_0_8_is_acute_not_a_retainer():
     # fraction_acute_bands: f = (31 - 27) / (31 - 26) = 0.8 at PaCO2 60 (narins1980 slopes 3.5 and 1) is acute
-    r = bg(gas(ph_of(27.0, 60.0), 60.0))
+    r = bg({"ph": ph_of(27.0, 60.0), "pco2": q(60, "mmHg"), "hco3": q(27, "mmol/L")})
+    assert value(r, "fraction_acute_hco3") == 0.8
     assert r["outputs"]["disorders"][0]["chronicity"] == "acute"
     assert value(r, "pco2_consciousness_threshold") == 75.0
     chronic = bg(gas(ph_of(31.0, 60.0), 60.0))
@@ -462,5 +466,53 @@ def test_a_single_disorder_at_a_normal_ph_flagged_unless_a_chronic_respiratory_a
     r = bg(inputs)
     assert r["outputs"]["disorders"][0]["chronicity"] == "acute_on_chronic"
     assert fires_on_both_paths(inputs, "normal_ph_single_disorder") == (True, True)
-    # an acidaemic single disorder is not one at a normal pH
-    assert "normal_ph_single_disorder" not in codes(bg(gas(7.25, 30.0)))
+    # an acidaemic single disorder is not one at a normal pH: HCO3 12 with PaCO2 26, Winters' centre
+    # 1.5 x 12 + 8 (albert1967), pH 6.1 + log10(12 / (0.0307 x 26)) = 7.28
+    single = bg({"ph": ph_of(12.0, 26.0), "pco2": q(26, "mmHg"), "hco3": q(12, "mmol/L")})
+    assert [d["code"] for d in single["outputs"]["disorders"]] == ["metabolic_acidosis"]
+    assert "normal_ph_single_disorder" not in codes(single)
+
+
+def test_an_aim_equal_to_winters_centre_is_not_named_as_raised_to_it():
+    # albert1967: Winters' centre 1.5 x 28 + 8 = 50 mmHg, the present PaCO2; an anion gap of
+    # 140 - (92 + 28) = 20 names a metabolic acidosis beside the respiratory acidosis (gabow1980). pH 7.36 is
+    # not acidaemic, so the aim holds the present PaCO2 (pco2_aim), which is not below the centre
+    r = bg(
+        {
+            "ph": ph_of(28.0, 50.0),
+            "pco2": q(50, "mmHg"),
+            "hco3": q(28, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(92, "mmol/L"),
+        }
+    )
+    assert "metabolic_acidosis" in [d["code"] for d in r["outputs"]["disorders"]]
+    assert r["outputs"]["pco2_target_basis"] == "present_pco2"
+    assert value(r, "pco2_target") == 50.0
+
+
+def _p735_equal_to_an_input():
+    """(PaCO2, pH, P(7.35)): P(7.35) = PaCO2 x 10^(pH - 7.35) (henderson1908) exactly a 9-decimal input."""
+    known = [(72.9, 7.3483), (82.3, 7.2611), (106.3, 7.2734), (119.3, 7.2396)]
+    grid = ((k / 10, float(f"7.{j:04d}")) for k in range(460, 1200) for j in range(2000, 3500))
+    for p, ph in [*known, *grid]:
+        p735 = p * 10.0 ** (ph - 7.35)
+        if float(f"{p735:.9f}") == p735:
+            return p, ph, p735
+    raise AssertionError("no PaCO2 and pH with P(7.35) exactly a 9-decimal number")
+
+
+def test_a_known_usual_paco2_equal_to_p735_is_named_as_the_ph_7_35_aim():
+    # pco2_aim: pH < 7.35: aim = min(P(7.35), usual PaCO2); at a tie the pH 7.35 reason is given
+    p, ph, p735 = _p735_equal_to_an_input()
+    r = bg(
+        {
+            "ph": ph,
+            "pco2": q(p, "mmHg"),
+            "hco3": q(hco3_of(ph, p), "mmol/L"),
+            "baseline_pco2": q(p735, "mmHg"),
+        }
+    )
+    assert value(r, "pco2_for_ph_7_35") == p735
+    assert r["outputs"]["pco2_target_basis"] == "ph_7_35"
+    assert value(r, "pco2_target") == p735
