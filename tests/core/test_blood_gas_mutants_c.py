@@ -516,3 +516,121 @@ def test_a_known_usual_paco2_equal_to_p735_is_named_as_the_ph_7_35_aim():
     assert value(r, "pco2_for_ph_7_35") == p735
     assert r["outputs"]["pco2_target_basis"] == "ph_7_35"
     assert value(r, "pco2_target") == p735
+
+
+# -- further boundaries (mutants first run late) ---------------------------------------------------------
+
+
+@pytest.mark.parametrize(("aa", "category"), [(14.0, "normal"), (14.5, "raised")])
+def test_a_a_gradient_at_the_upper_limit_for_age_is_normal(aa, category):
+    # aa_age_rule: upper limit 40 / 4 + 4 = 14 mmHg at 40 years; PAO2 0.5 x 713 - 40 / 0.8 = 306.5 exactly
+    pa = alveolar(0.5, 40.0)
+    r = bg({**gas(7.40, 40.0), "po2": q(pa - aa, "mmHg"), "fio2": 0.5, "age": 40})
+    assert value(r, "a_a_gradient") == aa
+    assert r["outputs"]["a_a_category"] == category
+
+
+@pytest.mark.parametrize(("po2", "band"), [(45.0, "severe"), (75.0, "moderate"), (125.0, "mild")])
+def test_the_masked_hypoxaemia_names_the_pf_band(po2, band):
+    # berlin2012: P/F <= 300 mild, <= 200 moderate, <= 100 severe (named by the P/F alone); FiO2 0.5 gives
+    # P/F 90, 150 and 250; at PaO2 45 the hypoxaemia is not masked (below 60 mmHg, bts2017_o2)
+    r = bg({**gas(7.40, 40.0), "po2": q(po2, "mmHg"), "fio2": 0.5})
+    if band == "severe":
+        assert "hypoxaemia_masked_by_oxygen" not in codes(r)
+        return
+    text = finding_text(r, "hypoxaemia_masked_by_oxygen")
+    limit = {"moderate": 200, "mild": 300}[band]
+    tail = f"at or below {limit} mmHg (impaired oxygenation" + (
+        ", moderate)." if band == "moderate" else ")."
+    )
+    assert text.endswith(tail)
+
+
+def test_a_low_inspired_oxygen_needs_a_normal_gradient_not_one_that_needs_the_age():
+    # PB 500, PaCO2 40: PAO2 = 0.21 x 453 - 50 = 45.13 (alveolar_gas_1946); PaO2 30 gives A-a 15.1, between
+    # the limits at 18 and 100 years (aa_age_rule): without an age it is not read as normal
+    r = bg({**gas(7.40, 40.0), "po2": q(30, "mmHg"), "pb": q(500, "mmHg")})
+    assert r["outputs"]["a_a_category"] == "needs_age"
+    assert "low_inspired_oxygen" not in codes(r)
+    aged = bg({**gas(7.40, 40.0), "po2": q(30, "mmHg"), "pb": q(500, "mmHg"), "age": 80})
+    assert "low_inspired_oxygen" in codes(aged)
+
+
+def test_the_barometric_pressure_step_names_its_source():
+    plain = bg({**gas(7.40, 40.0), "po2": q(80, "mmHg")})
+    assert step(plain, "pb")["label"] == "Barometric pressure (sea level)"
+    both = bg({**gas(7.40, 40.0), "po2": q(80, "mmHg"), "pb": q(700, "mmHg"), "altitude": q(1000, "m")})
+    assert step(both, "pb")["label"] == "Barometric pressure (measured)"
+    high = bg({**gas(7.40, 40.0), "po2": q(80, "mmHg"), "altitude": q(1000, "m")})
+    assert step(high, "pb")["label"].startswith("Barometric pressure at the altitude given")
+
+
+def test_the_paco2_target_caution_only_with_a_target():
+    with_target = bg(gas(7.30, 60.0))
+    assert any(c.startswith("The PaCO2 target is an aim") for c in with_target["cautions"])
+    without = bg(gas(7.40, 40.0))
+    assert not any(c.startswith("The PaCO2 target is an aim") for c in without["cautions"])
+
+
+def test_the_expected_hco3_line_says_measured_when_the_hco3_was_reported():
+    measured = bg({"ph": ph_of(31.0, 60.0), "pco2": q(60, "mmHg"), "hco3": q(31, "mmol/L")})
+    assert any(
+        s.startswith("Expected HCO3 for this PCO2") and "; measured 31.0" in s for s in measured["summary"]
+    )
+    computed = bg({"ph": ph_of(31.0, 60.0), "pco2": q(60, "mmHg")})
+    assert any(
+        s.startswith("Expected HCO3 for this PCO2") and "; computed 31.0" in s for s in computed["summary"]
+    )
+
+
+def test_an_acute_on_chronic_rise_estimates_the_usual_paco2_on_both_paths():
+    # narins1980: at PaCO2 60, HCO3 28.5 gives f = (31 - 28.5) / (31 - 26) = 0.5: acute-on-chronic
+    # (fraction_acute_bands); pH 7.29 is acidaemic, so the usual PaCO2 is estimated
+    inputs = {"ph": ph_of(28.5, 60.0), "pco2": q(60, "mmHg"), "hco3": q(28.5, "mmol/L")}
+    scalar, together = both_paths(inputs)
+    assert scalar.chronicity == "acute_on_chronic"
+    assert scalar.baseline_pco2_source == "estimated"
+    assert first(together.baseline_pco2_source) == "estimated"
+
+
+def test_a_paco2_of_45_is_not_raised_for_the_retainer_threshold():
+    # acid_base_normal_ranges: 45 mmHg is the upper limit, not above it; co2_narcosis: 75 mmHg then
+    r = bg({"ph": ph_of(27.0, 45.0), "pco2": q(45, "mmHg"), "hco3": q(27, "mmol/L")})
+    assert value(r, "pco2_consciousness_threshold") == 75.0
+    raised = bg({"ph": ph_of(27.0, 46.0), "pco2": q(46, "mmHg"), "hco3": q(27, "mmol/L")})
+    assert value(raised, "pco2_consciousness_threshold") == 90.0
+
+
+@pytest.mark.parametrize(("low", "at_risk"), [(96.0, False), (92.0, True)])
+def test_only_a_prescribed_range_below_94_marks_the_patient_at_risk(low, at_risk):
+    # bts2017_o2: 94-98 % is the usual target; a range starting above 94 is not the at-risk one
+    r = bg({**gas(7.40, 40.0), "spo2_target_prescribed": {"low": low, "high": 98.0}, "spo2": 99})
+    severity = next(f["severity"] for f in r["findings"] if f["code"] == "spo2_above_target")
+    assert severity == ("notable" if at_risk else "info")
+
+
+def test_the_niv_text_in_kpa_does_not_repeat_the_kpa_value():
+    # bts_ics2016: PaCO2 > 6.5 kPa; in a kPa report the PaCO2 is not converted a second time
+    request = {"calc": "blood_gas", "inputs": gas(7.30, 60.0), "options": {"pressure_unit": "kPa"}}
+    for response in (json.loads(handle(json.dumps(request))), bg(gas(7.30, 60.0), unit="kPa")):
+        assert response["ok"]
+        assert "kPa (above 6.5 kPa): the acidaemia" in finding_text(response, "niv_criteria_met")
+        assert "kPa, above 6.5 kPa" not in finding_text(response, "niv_criteria_met")
+    in_mmhg = bg(gas(7.30, 60.0))
+    assert "PaCO2 60 mmHg (8.0 kPa, above 6.5 kPa)" in finding_text(in_mmhg, "niv_criteria_met")
+
+
+def test_above_the_consciousness_threshold_for_a_known_usual_paco2():
+    # co2_narcosis (common practice): max(75, 50 + 35) = 85 mmHg; PaCO2 90 is above it
+    r = bg(gas(7.25, 90.0, baseline_pco2=q(50, "mmHg")))
+    assert "for this patient's usual PaCO2" in finding_text(r, "pco2_above_consciousness_threshold")
+
+
+def test_at_ph_7_35_the_aim_holds_the_present_paco2():
+    # pco2_aim: pH 7.35 is not acidaemic (acid_base_normal_ranges): no P(7.35), the PaCO2 need not be lowered
+    r = bg(gas(7.35, 60.0))
+    assert "pco2_for_ph_7_35" not in r["outputs"]
+    assert "the pH is not acidaemic, so the PaCO2 need not be lowered" in finding_text(r, "pco2_target")
+    below = bg(gas(7.34, 60.0))
+    assert "pco2_for_ph_7_35" in below["outputs"]
+    assert "ventilation must bring the PaCO2 down" in finding_text(below, "pco2_target")
