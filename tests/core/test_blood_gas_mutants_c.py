@@ -634,3 +634,67 @@ def test_at_ph_7_35_the_aim_holds_the_present_paco2():
     below = bg(gas(7.34, 60.0))
     assert "pco2_for_ph_7_35" in below["outputs"]
     assert "ventilation must bring the PaCO2 down" in finding_text(below, "pco2_target")
+
+
+# -- the words the report picks from its codes (each branch reached once) ---------------------------------
+
+
+def test_the_estimated_usual_paco2_is_shown_with_its_range():
+    # narins1980, martinu2003: estimated from the HCO3 with the chronic slopes 3.5 (5 to 3 for the range)
+    r = bg(gas(ph_of(31.0, 60.0), 60.0))
+    assert r["outputs"]["baseline_pco2_source"] == "estimated"
+    assert "baseline_pco2_estimated" in r["outputs"]
+    assert "baseline_pco2_range" in r["outputs"]
+
+
+def test_a_known_usual_paco2_below_the_present_one_is_the_aim_and_named():
+    # pco2_aim: pH >= 7.35: aim = the lower known usual PaCO2
+    r = bg(gas(ph_of(30.0, 50.0), 50.0, baseline_pco2=q(45, "mmHg")))
+    text = finding_text(r, "pco2_target")
+    assert "the patient's known usual PaCO2: the pH is 7.39, not acidaemic" in text
+    assert "The known usual PaCO2 is 45 mmHg." in text
+
+
+def test_a_metabolic_primary_shows_no_paco2_for_ph_7_35():
+    # albert1967: the aim of a metabolic acidosis is Winters' centre, not P(7.35)
+    r = bg(gas(ph_of(12.0, 50.0), 50.0))
+    assert r["outputs"]["pco2_target_basis"] == "metabolic_compensation"
+    assert "pco2_for_ph_7_35" not in r["outputs"]
+
+
+def test_the_reading_names_the_a_a_gradient_of_hypercapnia():
+    # aa_age_rule at 40 years: 14 mmHg; PAO2 74.73 on air at PaCO2 60 (alveolar_gas_1946)
+    pure = bg(gas(7.30, 60.0, po2=q(70, "mmHg"), age=40))
+    assert "; normal A-a gradient: pure hypoventilation" in pure["outputs"]["interpretation"]
+    lung = bg(gas(7.30, 60.0, po2=q(50, "mmHg"), age=40))
+    assert (
+        "; raised A-a gradient: lung disease as well as hypoventilation" in lung["outputs"]["interpretation"]
+    )
+
+
+def test_a_chronic_respiratory_alkalosis_at_a_normal_ph_is_compensated_as_expected():
+    # narins1980: at PaCO2 30 the chronic HCO3 is 24 - 5 x 1 = 19; pH 6.1 + log10(19 / 0.921) = 7.41
+    r = bg({"ph": ph_of(19.0, 30.0), "pco2": q(30, "mmHg"), "hco3": q(19, "mmol/L")})
+    assert r["summary"][0] == "Chronic respiratory alkalosis, compensated as expected."
+
+
+def test_a_high_anion_gap_acidosis_is_named_by_its_gap():
+    # anion gap 140 - (100 + 12) = 28 mmol/L (gabow1980): high anion gap; Winters 1.5 x 12 + 8 = 26
+    r = bg(
+        {
+            "ph": ph_of(12.0, 26.0),
+            "pco2": q(26, "mmHg"),
+            "hco3": q(12, "mmol/L"),
+            "na": q(140, "mmol/L"),
+            "cl": q(100, "mmol/L"),
+        }
+    )
+    assert r["summary"][0].startswith("High anion gap metabolic acidosis with appropriate respiratory")
+
+
+def test_urgent_findings_and_the_niv_caution_reach_the_summary():
+    # bts_ics2016 NIV threshold; ph_severity: pH below 7.20
+    r = bg(gas(7.15, 80.0))
+    assert any("NIV thresholds" in c for c in r["cautions"])
+    assert any(finding_text(r, "severe_acidaemia") in s for s in r["summary"])
+    assert any(finding_text(r, "niv_criteria_met") in s for s in r["summary"])
