@@ -77,15 +77,7 @@ def test_po2_above_the_alveolar_po2_named_beyond_10_mmhg(aa, named):
     # is named (the project's measurement tolerance, common practice)
     pa = alveolar(0.5, 40.0)
     assert pa == 306.5
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(pa - aa, "mmHg"),
-            "fio2": 0.5,
-        }
-    )
+    r = bg(gas(7.40, 40.0, po2=q(pa - aa, "mmHg"), fio2=0.5))
     assert value(r, "a_a_gradient") == aa
     assert ("po2_above_alveolar" in codes(r)) is named
 
@@ -95,15 +87,7 @@ def test_a_a_gradient_without_age_at_the_limits_of_18_and_100_years(aa, category
     # aa_age_rule: upper limit age / 4 + 4, 8.5 mmHg at 18 years and 29 mmHg at 100; without an age a gradient
     # at or below 8.5 is normal for any adult, one above 29 raised for any adult, between needs the age
     pa = alveolar(0.5, 40.0)
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(pa - aa, "mmHg"),
-            "fio2": 0.5,
-        }
-    )
+    r = bg(gas(7.40, 40.0, po2=q(pa - aa, "mmHg"), fio2=0.5))
     assert value(r, "a_a_gradient") == aa
     assert r["outputs"]["a_a_category"] == category
 
@@ -111,42 +95,18 @@ def test_a_a_gradient_without_age_at_the_limits_of_18_and_100_years(aa, category
 @pytest.mark.parametrize(("fio2", "named"), [(0.21, False), (0.3, False), (0.31, True)])
 def test_the_age_rule_caveat_on_oxygen_above_fio2_0_3(fio2, named):
     # aa_age_rule holds breathing air; above FiO2 0.3 the caveat is shown (common practice)
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(90, "mmHg"),
-            "fio2": fio2,
-        }
-    )
+    r = bg(gas(7.40, 40.0, po2=q(90, "mmHg"), fio2=fio2))
     assert ("a_a_on_oxygen" in codes(r)) is named
 
 
 def test_the_a_over_a_ratio_is_shown_to_2_decimals():
     # common practice: a ratio to 2 decimals (gilbert1974 quotes 0.75)
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(90, "mmHg"),
-            "fio2": 0.4,
-        }
-    )
+    r = bg(gas(7.40, 40.0, po2=q(90, "mmHg"), fio2=0.4))
     assert r["display"]["a_over_A"] == 2
 
 
 def test_a_measured_barometric_pressure_is_named_measured():
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(80, "mmHg"),
-            "pb": q(700, "mmHg"),
-        }
-    )
+    r = bg(gas(7.40, 40.0, po2=q(80, "mmHg"), pb=q(700, "mmHg")))
     assert step(r, "pb")["label"] == "Barometric pressure (measured)"
     assert step(r, "pb")["formula"] == "PB as given"
 
@@ -161,27 +121,11 @@ def test_type_2_failure_names_the_pao2_when_the_oxygenation_is_read():
 
 def test_type_1_failure_from_the_pf_ratio_says_so_not_a_low_pao2():
     # berlin2012: P/F 80 / 0.4 = 200 <= 300 mmHg on oxygen although the PaO2 is above 60 mmHg (8 kPa)
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(80, "mmHg"),
-            "fio2": 0.4,
-        }
-    )
+    r = bg(gas(7.40, 40.0, po2=q(80, "mmHg"), fio2=0.4))
     text = finding_text(r, "respiratory_failure_type_1")
     assert "P/F ratio is at or below" in text
     assert "is below" not in text
-    low = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "po2": q(50, "mmHg"),
-            "fio2": 0.4,
-        }
-    )
+    low = bg(gas(7.40, 40.0, po2=q(50, "mmHg"), fio2=0.4))
     assert "PaO2 50 mmHg is below 60 mmHg" in finding_text(low, "respiratory_failure_type_1")
 
 
