@@ -427,7 +427,29 @@ def test_a_stewart_reading_that_differs_is_explained():
             **STEWART,
         }
     )
-    assert "Stewart splits the net change" in finding_text(r, "approaches_disagree")
+    text = finding_text(r, "approaches_disagree")
+    # Stewart names no effect of its own: the net change is spread, nothing offsets anything
+    assert "Stewart spreads the same net change over several smaller effects." in text
+    assert "offset" not in text
+
+
+def test_a_stewart_reading_with_opposing_effects_says_they_offset():
+    # a normal HCO3 and SBE (no metabolic disorder by either) hiding two opposing Stewart effects (story2016):
+    # albumin 1.5 g/dL alkalinises by 0.25 x (42 - 15) = +6.75 mEq/L, so the unmeasured anions are
+    # SBE - (0 + 6.75 - 1) with an SBE near 0: about -6, both beyond the 5 mEq/L size of a process
+    r = bg(
+        {
+            "ph": 7.40,
+            "pco2": q(40, "mmHg"),
+            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
+            "cl": q(105, "mmol/L"),
+            **{**STEWART, "albumin": q(1.5, "g/dL")},
+        }
+    )
+    text = finding_text(r, "approaches_disagree")
+    assert "albumin +6.8" in text
+    assert "Stewart splits the net change into separate effects, some of which offset each other." in text
+    assert "spreads" not in text
 
 
 @pytest.mark.parametrize(("cl", "alkalinising"), [(98.0, True), (101.0, False)])

@@ -721,6 +721,8 @@ def _compare(w: _Work) -> None:
         if d.stewart_pair_given and (bool(d.stewart_acid), bool(d.stewart_alk)) != boston:
             parts.append(
                 "Stewart splits the net change into separate effects, some of which offset each other."
+                if d.stewart_acid or d.stewart_alk
+                else "Stewart spreads the same net change over several smaller effects."
             )
         parts.append(
             "Each approach measures the metabolic component its own way; none is taken as the reference here."
