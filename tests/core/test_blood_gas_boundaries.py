@@ -428,8 +428,8 @@ def test_a_stewart_reading_that_differs_is_explained():
         }
     )
     text = finding_text(r, "approaches_disagree")
-    # Stewart names no effect of its own: the net change is spread, nothing offsets anything
-    assert "Stewart spreads the same net change over several smaller effects." in text
+    # Stewart names no effect of its own: its reading says "none of them large", and nothing offsets anything
+    assert "none of them large" in text
     assert "offset" not in text
 
 
@@ -449,7 +449,6 @@ def test_a_stewart_reading_with_opposing_effects_says_they_offset():
     text = finding_text(r, "approaches_disagree")
     assert "albumin +6.8" in text
     assert "Stewart splits the net change into separate effects, some of which offset each other." in text
-    assert "spreads" not in text
 
 
 @pytest.mark.parametrize(("cl", "alkalinising"), [(98.0, True), (101.0, False)])

@@ -718,11 +718,15 @@ def _compare(w: _Work) -> None:
             parts.append(
                 "Opposing metabolic processes cancel in the SBE, which measures only their net effect."
             )
-        if d.stewart_pair_given and (bool(d.stewart_acid), bool(d.stewart_alk)) != boston:
+        # only where Stewart names an effect: with none named its reading has already said so
+        named_by_stewart = d.stewart_acid or d.stewart_alk
+        if (
+            d.stewart_pair_given
+            and named_by_stewart
+            and (bool(d.stewart_acid), bool(d.stewart_alk)) != boston
+        ):
             parts.append(
                 "Stewart splits the net change into separate effects, some of which offset each other."
-                if d.stewart_acid or d.stewart_alk
-                else "Stewart spreads the same net change over several smaller effects."
             )
         parts.append(
             "Each approach measures the metabolic component its own way; none is taken as the reference here."
