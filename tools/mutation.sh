@@ -26,7 +26,7 @@ declare -A TESTS=(
     [blood_gas]="tests/core/test_thresholds.py tests/core/test_retainer_rules.py tests/core/test_finding_codes.py
         tests/core/test_messages.py tests/core/test_pressure_wording.py tests/core/test_blood_gas_boundaries.py
         tests/core/test_blood_gas_mutants_a.py tests/core/test_blood_gas_mutants_b.py
-        tests/core/test_blood_gas_mutants_c.py
+        tests/core/test_blood_gas_mutants_c.py tests/core/test_decisive_digits.py
         tests/core/test_blood_gas.py
         $(printf -- '--deselect tests/core/test_blood_gas.py::%s ' test_classification_same_in_kpa_and_mmhg \
             test_any_numbers_never_raise_or_give_nan test_more_hco3_never_means_more_acute \

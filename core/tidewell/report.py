@@ -41,13 +41,30 @@ def in_words(text: str) -> str:
     return _DEGREES.sub(lambda m: f"{m.group(1) + ' ' if m.group(1) else ''}°{m.group(2)}", text)
 
 
-def pressure_text(mmhg: float, unit: str) -> str:
-    """A pressure (given in mmHg) as text in ``unit``, as clinicians write it.
+def decisive(value: float, limit: float, decimals: int, *, most: int = 3) -> str:
+    """``value`` to ``decimals`` places, or to more (up to ``most``) where that many would show it equal to
+    ``limit``: a sentence that says a value is above or below a limit never shows the two the same.
 
-    >>> pressure_text(45.0, "kPa"), pressure_text(45.0, "mmHg")
-    ('6.0 kPa', '45 mmHg')
+    >>> decisive(7.349, 7.35, 2), decisive(7.31, 7.35, 2), decisive(6.51, 6.5, 1), decisive(7.35, 7.35, 2)
+    ('7.349', '7.31', '6.51', '7.35')
     """
-    return f"{units.convert(mmhg, 'mmHg', unit):.{PRESSURE_DECIMALS[unit]}f} {unit}"
+    n = decimals
+    while n < most and f"{value:.{n}f}" == f"{limit:.{n}f}":
+        n += 1
+    return f"{value:.{n}f}" if f"{value:.{n}f}" != f"{limit:.{n}f}" else f"{value:.{decimals}f}"
+
+
+def pressure_text(mmhg: float, unit: str, *, against: float | None = None) -> str:
+    """A pressure (given in mmHg) as text in ``unit``, as clinicians write it; ``against`` (mmHg): a limit
+    the sentence compares it with, so that the two never read the same (``decisive``).
+
+    >>> pressure_text(45.0, "kPa"), pressure_text(45.0, "mmHg"), pressure_text(48.83, "kPa", against=48.754)
+    ('6.0 kPa', '45 mmHg', '6.51 kPa')
+    """
+    value = units.convert(mmhg, "mmHg", unit)
+    if against is None:
+        return f"{value:.{PRESSURE_DECIMALS[unit]}f} {unit}"
+    return f"{decisive(value, units.convert(against, 'mmHg', unit), PRESSURE_DECIMALS[unit])} {unit}"
 
 
 class Report:
@@ -68,9 +85,9 @@ class Report:
         """A pressure (given in mmHg) as a quantity in the request's pressure unit."""
         return {"value": units.convert(mmhg, "mmHg", self.pressure_unit), "unit": self.pressure_unit}
 
-    def pressure_text(self, mmhg: float) -> str:
+    def pressure_text(self, mmhg: float, *, against: float | None = None) -> str:
         """A pressure (given in mmHg) as text in the request's unit: ``7.6 kPa``, ``57 mmHg``."""
-        return pressure_text(mmhg, self.pressure_unit)
+        return pressure_text(mmhg, self.pressure_unit, against=against)
 
     def put(self, name: str, value, *, decimals: int | None = None) -> None:
         _check_finite(name, value)

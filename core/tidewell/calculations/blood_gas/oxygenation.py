@@ -294,7 +294,8 @@ def _respiratory_failure(w: _Work) -> None:
         r.finding(
             "respiratory_failure_type_2",
             "notable",
-            f"Type 2 (hypercapnic) respiratory failure: PaCO2 {w.p(s.pco2)} is above {w.p(PCO2_HIGH)} with a "
+            f"Type 2 (hypercapnic) respiratory failure: PaCO2 {w.p(s.pco2, PCO2_HIGH)} is above "
+            f"{w.p(PCO2_HIGH)} with a "
             "respiratory acidosis (named from the PaCO2, with or without hypoxaemia)." + po2,
         )
     if w.fires("respiratory_failure_type_1"):
@@ -303,7 +304,7 @@ def _respiratory_failure(w: _Work) -> None:
             "notable",
             "Type 1 (hypoxaemic) respiratory failure: "
             + (
-                f"PaO2 {w.p(s.po2)} is below {w.p(HYPOXAEMIA_MMHG)} on {fio2_words}."
+                f"PaO2 {w.p(s.po2, HYPOXAEMIA_MMHG)} is below {w.p(HYPOXAEMIA_MMHG)} on {fio2_words}."
                 if s.po2 < HYPOXAEMIA_MMHG
                 else f"on FiO2 {s.fio2:.2f} the P/F ratio is at or below {w.pf(PF_IMPAIRED)}."
             ),

@@ -120,14 +120,16 @@ def _cautions(w: _Work) -> None:
             "venous_sample",
             "notable",
             (
-                f"Venous PCO2 {w.p(s.pco2)} is above {w.p(PCO2_HIGH)}: arterial hypercapnia is possible "
+                f"Venous PCO2 {w.p(s.pco2, PCO2_HIGH)} is above {w.p(PCO2_HIGH)}: arterial hypercapnia is "
+                "possible "
                 "(venous "
                 f"PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial, with wide limits). Confirm with "
                 "an arterial or "
                 "arterialised earlobe gas before judging chronicity or setting a PaCO2 aim; meanwhile the "
                 "88-92 % SpO2 range applies."
                 if raised
-                else f"Venous PCO2 {w.p(s.pco2)} is not above {w.p(PCO2_HIGH)}: arterial hypercapnia is "
+                else f"Venous PCO2 {w.p(s.pco2, PCO2_HIGH)} is not above {w.p(PCO2_HIGH)}: arterial "
+                "hypercapnia is "
                 "unlikely "
                 f"(venous PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial)."
             ),

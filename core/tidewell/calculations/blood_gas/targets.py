@@ -7,6 +7,7 @@ from types import SimpleNamespace
 from ... import units
 from ...arrays import NAN, given, maximum, minimum, not_, where
 from ...formulas import acidbase as ab
+from ...report import decisive
 from .decision import NONE
 from .thresholds import (
     FLOOR_PH,
@@ -250,7 +251,12 @@ def _ventilation(w: _Work) -> None:
     # NIV thresholds (BTS/ICS 2016)
     w.niv = d.niv
     kpa = "" if w.r.pressure_unit == "kPa" else f" ({units.convert(p, 'mmHg', 'kPa'):.1f} kPa)"
-    kpa_above = f" ({units.convert(p, 'mmHg', 'kPa'):.1f} kPa, above 6.5 kPa)" if kpa else " (above 6.5 kPa)"
+    niv_kpa = units.convert(NIV_PCO2_MMHG, "mmHg", "kPa")
+    kpa_above = (
+        f" ({decisive(units.convert(p, 'mmHg', 'kPa'), niv_kpa, 1)} kPa, above {niv_kpa:.1f} kPa)"
+        if kpa
+        else f" (above {niv_kpa:.1f} kPa)"
+    )
     if w.fires("niv_criteria_need_arterial_sample"):
         r.finding(
             "niv_criteria_need_arterial_sample",
@@ -270,7 +276,8 @@ def _ventilation(w: _Work) -> None:
         r.finding(
             "niv_criteria_met",
             "urgent",
-            f"NIV threshold met: pH {s.ph:.2f} (below 7.35) with PaCO2 {w.p(p)}{kpa_above}: the acidaemia "
+            f"NIV threshold met: pH {w.ph(NIV_PH)} (below {NIV_PH:.2f}) with PaCO2 {w.p(p, NIV_PCO2_MMHG)}"
+            f"{kpa_above}: the acidaemia "
             "marks decompensated hypercapnic respiratory failure, whatever the HCO3. BTS/ICS 2016 recommends "
             "NIV when it persists after optimal medical treatment (in COPD, neuromuscular or chest-wall "
             "disease and obesity hypoventilation)." + invasive,
@@ -287,7 +294,8 @@ def _ventilation(w: _Work) -> None:
         r.finding(
             "compensation_incomplete",
             "notable",
-            f"The HCO3 fits chronic retention, but pH {s.ph:.2f} is below 7.35: compensation is incomplete "
+            f"The HCO3 fits chronic retention, but pH {w.ph(PH_LOW)} is below {PH_LOW:.2f}: compensation is "
+            "incomplete "
             "(an acute component, or failing compensation). It is not read as compensated.",
         )
     r.put("niv_criteria", w.niv)
@@ -499,18 +507,18 @@ def _spo2_target(w: _Work) -> None:
 
 
 def _severity(w: _Work) -> None:
-    s, r = w.s, w.r
+    r = w.r
     if w.fires("severe_acidaemia"):
         r.finding(
             "severe_acidaemia",
             "urgent",
-            f"pH {s.ph:.2f} is below {SEVERE_ACIDAEMIA_PH:.2f}: severe acidaemia.",
+            f"pH {w.ph(SEVERE_ACIDAEMIA_PH)} is below {SEVERE_ACIDAEMIA_PH:.2f}: severe acidaemia.",
         )
     elif w.fires("severe_alkalaemia"):
         r.finding(
             "severe_alkalaemia",
             "urgent",
-            f"pH {s.ph:.2f} is above {SEVERE_ALKALAEMIA_PH:.2f}: severe alkalaemia.",
+            f"pH {w.ph(SEVERE_ALKALAEMIA_PH)} is above {SEVERE_ALKALAEMIA_PH:.2f}: severe alkalaemia.",
         )
     if w.fires("normal_ph_single_disorder"):
         d = w.disorders[0]

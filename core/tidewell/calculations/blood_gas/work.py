@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from ... import units
-from ...report import Report
+from ...report import Report, decisive
 from .decision import Decision, _code, disorders
 from .reading import _Sample
 from .thresholds import MET_ACID, MET_ALK, PCO2_HIGH, SPO2_BASIS
@@ -36,9 +36,14 @@ class _Work:
         self.niv: str | None = None
 
     # -- helpers ---------------------------------------------------------------------------------------------
-    def p(self, mmhg: float) -> str:
-        """A pressure in the user's unit, as text."""
-        return self.r.pressure_text(mmhg)
+    def p(self, mmhg: float, against: float | None = None) -> str:
+        """A pressure in the user's unit, as text; with ``against`` (a limit the sentence compares it with,
+        mmHg) never shown equal to it (report.decisive)."""
+        return self.r.pressure_text(mmhg, against=against)
+
+    def ph(self, against: float) -> str:
+        """The sample's pH as text beside a pH limit a sentence compares it with (report.decisive)."""
+        return decisive(self.s.ph, against, 2)
 
     def basis_text(self, basis: str) -> str:
         """Why the SpO2 target is what it is, thresholds in the user's unit."""

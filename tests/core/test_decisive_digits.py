@@ -1,0 +1,88 @@
+"""A sentence that compares a value with a limit never shows the two the same.
+
+pH is shown to 2 decimals and pressures to 0 (mmHg) or 1 (kPa) as clinicians write them; where that rounding
+would make the value read equal to the limit it is compared with ("pH 7.35 (below 7.35)"), one more decimal
+is shown, up to three. The limits are the published ones, written here by hand: the NIV threshold pH < 7.35
+with PaCO2 > 6.5 kPa (bts_ics2016), 7.35 the lower end of the normal pH and 45 mmHg of the normal PaCO2
+(acid_base_normal_ranges), severe acidaemia below 7.20 and alkalaemia above 7.60 (common practice), PaO2
+below 8 kPa / 60 mmHg (bts2017_o2). Each text is tested on both sides: just past the limit (more decimals)
+and clearly past it (the usual decimals).
+"""
+
+from __future__ import annotations
+
+import pytest
+from test_blood_gas_boundaries import bg, finding_text, hco3_of
+
+from casebook import q
+
+
+def gas(ph: float, pco2: float, unit: str = "mmHg", **more) -> dict:
+    """A consistent arterial triple (Henderson-Hasselbalch, references.py henderson1908)."""
+    mmhg = pco2 * 1000 / 133.322387415 if unit == "kPa" else pco2
+    return {"ph": ph, "pco2": q(pco2, unit), "hco3": q(hco3_of(ph, mmhg), "mmol/L"), **more}
+
+
+@pytest.mark.parametrize(("ph", "shown"), [(7.349, "pH 7.349 (below 7.35)"), (7.30, "pH 7.30 (below 7.35)")])
+def test_the_niv_threshold_text_shows_the_ph_that_decides(ph, shown):
+    assert shown in finding_text(bg(gas(ph, 66.0)), "niv_criteria_met")
+
+
+@pytest.mark.parametrize(
+    ("kpa", "shown"), [(6.51, "PaCO2 6.51 kPa (above 6.5 kPa)"), (7.0, "PaCO2 7.0 kPa (above 6.5 kPa)")]
+)
+def test_the_niv_threshold_text_shows_the_kpa_that_decides(kpa, shown):
+    assert shown in finding_text(bg(gas(7.30, kpa, "kPa"), unit="kPa"), "niv_criteria_met")
+
+
+@pytest.mark.parametrize(
+    ("mmhg", "aside"), [(48.83, "(6.51 kPa, above 6.5 kPa)"), (52.0, "(6.9 kPa, above 6.5 kPa)")]
+)
+def test_the_kpa_beside_mmhg_in_the_niv_text_shows_the_digit_that_decides(mmhg, aside):
+    # 48.83 mmHg = 6.510 kPa, 52 mmHg = 6.933 kPa (1 kPa = 7.50062 mmHg)
+    assert aside in finding_text(bg(gas(7.30, mmhg)), "niv_criteria_met")
+
+
+@pytest.mark.parametrize(
+    ("ph", "shown"), [(7.349, "pH 7.349 is below 7.35"), (7.34, "pH 7.34 is below 7.35")]
+)
+def test_incomplete_compensation_text_shows_the_ph_that_decides(ph, shown):
+    # PaCO2 60 with the HCO3 of pH 7.34-7.349 (32-33 mmol/L): inside the chronic band (narins1980), acidaemic
+    r = bg(gas(ph, 60.0))
+    assert shown in finding_text(r, "compensation_incomplete")
+
+
+@pytest.mark.parametrize(
+    ("ph", "code", "shown"),
+    [
+        (7.199, "severe_acidaemia", "pH 7.199 is below 7.20"),
+        (7.10, "severe_acidaemia", "pH 7.10 is below 7.20"),
+        (7.601, "severe_alkalaemia", "pH 7.601 is above 7.60"),
+        (7.65, "severe_alkalaemia", "pH 7.65 is above 7.60"),
+    ],
+)
+def test_severe_ph_texts_show_the_ph_that_decides(ph, code, shown):
+    assert shown in finding_text(bg(gas(ph, 40.0)), code)
+
+
+@pytest.mark.parametrize(
+    ("pco2", "shown"), [(45.3, "PaCO2 45.3 mmHg is above 45 mmHg"), (50.0, "PaCO2 50 mmHg")]
+)
+def test_type_2_failure_text_shows_the_paco2_that_decides(pco2, shown):
+    assert shown in finding_text(bg(gas(7.30, pco2)), "respiratory_failure_type_2")
+
+
+@pytest.mark.parametrize(
+    ("po2", "shown"), [(59.6, "PaO2 59.6 mmHg is below 60 mmHg"), (50.0, "PaO2 50 mmHg")]
+)
+def test_type_1_failure_text_shows_the_pao2_that_decides(po2, shown):
+    r = bg({**gas(7.45, 34.0), "po2": q(po2, "mmHg"), "fio2": 0.21})
+    assert shown in finding_text(r, "respiratory_failure_type_1")
+
+
+@pytest.mark.parametrize(
+    ("pco2", "shown"), [(45.4, "Venous PCO2 45.4 mmHg is above 45 mmHg"), (52.0, "PCO2 52 mmHg")]
+)
+def test_venous_pco2_text_shows_the_value_that_decides(pco2, shown):
+    r = bg({**gas(7.36, pco2), "sample": "venous"})
+    assert shown in finding_text(r, "venous_sample")
