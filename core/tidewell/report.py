@@ -54,6 +54,19 @@ def decisive(value: float, limit: float, decimals: int, *, most: int = 3) -> str
     return f"{value:.{n}f}" if f"{value:.{n}f}" != f"{limit:.{n}f}" else f"{value:.{decimals}f}"
 
 
+def limit_beside(limit: float, shown: str, decimals: int) -> str:
+    """``limit`` as text beside a value ``shown`` by ``decisive``: to the value's decimals where the usual
+    ``decimals`` would round the limit to another number (75 mmHg is 9.999 kPa, not 10.0), else as usual.
+
+    >>> limit_beside(9.99918, "10.000", 1), limit_beside(75.0, "75.1", 0), limit_beside(7.35, "7.349", 2)
+    ('9.999', '75', '7.35')
+    """
+    n = len(shown.partition(".")[2])
+    if n > decimals and float(f"{limit:.{n}f}") != float(f"{limit:.{decimals}f}"):
+        return f"{limit:.{n}f}"
+    return f"{limit:.{decimals}f}"
+
+
 def pressure_text(mmhg: float, unit: str, *, against: float | None = None) -> str:
     """A pressure (given in mmHg) as text in ``unit``, as clinicians write it; ``against`` (mmHg): a limit
     the sentence compares it with, so that the two never read the same (``decisive``).

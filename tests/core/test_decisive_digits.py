@@ -86,3 +86,47 @@ def test_type_1_failure_text_shows_the_pao2_that_decides(po2, shown):
 def test_venous_pco2_text_shows_the_value_that_decides(pco2, shown):
     r = bg({**gas(7.36, pco2), "sample": "venous"})
     assert shown in finding_text(r, "venous_sample")
+
+
+@pytest.mark.parametrize(("kpa", "raised"), [(6.0, False), (6.01, True)])
+def test_the_venous_screen_and_the_spo2_target_read_one_limit(kpa, raised):
+    # a venous PCO2 above 6.0 kPa is a positive screen and brings the 88-92 % range (bts2017_o2); 6.0 kPa
+    # itself is not above: the finding and the target must say the same
+    r = bg({**gas(7.36, kpa, "kPa"), "sample": "venous"}, unit="kPa")
+    text = finding_text(r, "venous_sample")
+    assert text.startswith(
+        f"Venous PCO2 {kpa:.1f} kPa is not above" if not raised else "Venous PCO2 6.01 kPa is above"
+    )
+    assert ("the 88-92 % SpO2 range applies" in text) is raised
+    assert r["outputs"]["spo2_target"]["low"] == (88 if raised else 94)
+
+
+@pytest.mark.parametrize(("ph", "shown"), [(7.349, "the pH is 7.349,"), (7.30, "the pH is 7.30,")])
+def test_the_paco2_aim_text_shows_the_ph_that_decides(ph, shown):
+    # pco2_aim: below 7.35 the aim is P(7.35) = PaCO2 x 10^(pH - 7.35), below the present PaCO2
+    r = bg(gas(ph, 6.6, "kPa"), unit="kPa")
+    assert shown in finding_text(r, "pco2_target")
+
+
+def test_the_paco2_aim_text_never_shows_the_present_paco2_equal_to_the_aim():
+    # PaCO2 6.51 kPa at pH 7.349 with HCO3 27 (within 0.03 pH of Henderson-Hasselbalch):
+    # P(7.35) = 6.51 x 10^-0.001 = 6.495 kPa, shown 6.5; the present shown 6.51
+    assert 6.51 * 10 ** (7.349 - 7.35) == pytest.approx(6.495, abs=5e-4)
+    text = finding_text(bg({**gas(7.349, 6.51, "kPa"), "hco3": q(27, "mmol/L")}, unit="kPa"), "pco2_target")
+    assert "PaCO2 aim 6.5 kPa" in text
+    assert "below the present 6.51 kPa" in text
+
+
+@pytest.mark.parametrize(
+    ("pco2", "unit", "shown"),
+    [
+        (10.0, "kPa", "PaCO2 10.000 kPa is above the level (9.999 kPa)"),  # 75 mmHg = 9.9992 kPa
+        (11.0, "kPa", "PaCO2 11.0 kPa is above the level (10.0 kPa)"),
+        (75.1, "mmHg", "PaCO2 75.1 mmHg is above the level (75 mmHg)"),
+        (80.0, "mmHg", "PaCO2 80 mmHg is above the level (75 mmHg)"),
+    ],
+)
+def test_the_narcosis_text_never_shows_the_paco2_equal_to_its_level(pco2, unit, shown):
+    # consciousness commonly falls above 75 mmHg in the previously normal (common practice)
+    r = bg(gas(7.10, pco2, unit), unit=unit)
+    assert shown in finding_text(r, "pco2_above_consciousness_threshold")

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from ...arrays import given
 from ...formulas import acidbase as ab
-from .thresholds import MET_ACID, MET_ALK, NAMES, PCO2_HIGH, RESP_ACID, TARGET_BASIS
+from .thresholds import HYPERCAPNIA_MMHG, MET_ACID, MET_ALK, NAMES, RESP_ACID, TARGET_BASIS
 from .work import _Work
 
 # -- outputs, cautions, summary ------------------------------------------------------------------------------
@@ -115,12 +115,16 @@ def _cautions(w: _Work) -> None:
             "a venous PO2 says nothing about oxygenation. Confirm hypercapnia with an arterial or "
             "arterialised capillary sample."
         )
-        raised = s.pco2 > PCO2_HIGH
+        # above 6.0 kPa, as the SpO2 target reads it (bts2017_o2): one limit for both
+        raised = s.pco2 > HYPERCAPNIA_MMHG
+        # "above" never shows the value equal to the limit; "not above" may (45 mmHg is not above 45 mmHg)
+        value = w.p(s.pco2, HYPERCAPNIA_MMHG) if raised else w.p(s.pco2)
+        limit = w.p(HYPERCAPNIA_MMHG)
         r.finding(
             "venous_sample",
             "notable",
             (
-                f"Venous PCO2 {w.p(s.pco2, PCO2_HIGH)} is above {w.p(PCO2_HIGH)}: arterial hypercapnia is "
+                f"Venous PCO2 {value} is above {limit}: arterial hypercapnia is "
                 "possible "
                 "(venous "
                 f"PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial, with wide limits). Confirm with "
@@ -128,7 +132,7 @@ def _cautions(w: _Work) -> None:
                 "arterialised earlobe gas before judging chronicity or setting a PaCO2 aim; meanwhile the "
                 "88-92 % SpO2 range applies."
                 if raised
-                else f"Venous PCO2 {w.p(s.pco2, PCO2_HIGH)} is not above {w.p(PCO2_HIGH)}: arterial "
+                else f"Venous PCO2 {value} is not above {limit}: arterial "
                 "hypercapnia is "
                 "unlikely "
                 f"(venous PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial)."

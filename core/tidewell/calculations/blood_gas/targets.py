@@ -252,6 +252,7 @@ def _ventilation(w: _Work) -> None:
     w.niv = d.niv
     kpa = "" if w.r.pressure_unit == "kPa" else f" ({units.convert(p, 'mmHg', 'kPa'):.1f} kPa)"
     niv_kpa = units.convert(NIV_PCO2_MMHG, "mmHg", "kPa")
+    niv_against = None if kpa else NIV_PCO2_MMHG  # in mmHg the kPa beside it is compared with 6.5 kPa
     kpa_above = (
         f" ({decisive(units.convert(p, 'mmHg', 'kPa'), niv_kpa, 1)} kPa, above {niv_kpa:.1f} kPa)"
         if kpa
@@ -276,7 +277,7 @@ def _ventilation(w: _Work) -> None:
         r.finding(
             "niv_criteria_met",
             "urgent",
-            f"NIV threshold met: pH {w.ph(NIV_PH)} (below {NIV_PH:.2f}) with PaCO2 {w.p(p, NIV_PCO2_MMHG)}"
+            f"NIV threshold met: pH {w.ph(NIV_PH)} (below {NIV_PH:.2f}) with PaCO2 {w.p(p, niv_against)}"
             f"{kpa_above}: the acidaemia "
             "marks decompensated hypercapnic respiratory failure, whatever the HCO3. BTS/ICS 2016 recommends "
             "NIV when it persists after optimal medical treatment (in COPD, neuromuscular or chest-wall "
@@ -330,7 +331,8 @@ def _ventilation(w: _Work) -> None:
         r.finding(
             "pco2_above_consciousness_threshold",
             "urgent",
-            f"PaCO2 {w.p(p)} is above the level ({w.p(threshold)}) at which consciousness commonly falls "
+            f"PaCO2 {w.p(p, threshold)} is above the level ({w.p_beside(threshold, p)}) at which "
+            "consciousness commonly falls "
             f"{who} (CO2 narcosis; common practice).",
         )
 
@@ -392,7 +394,10 @@ def _pco2_target(w: _Work) -> None:
     r.put("baseline_pco2_source", source)
     r.put("pco2_target_basis", basis)
     if s.ph < PH_LOW:
-        why = f"below the present {w.p(p)}: the pH is {s.ph:.2f}, so ventilation must bring the PaCO2 down. "
+        why = (
+            f"below the present {w.p(p, target)}: the pH is {w.ph(PH_LOW)}, so ventilation must bring the "
+            "PaCO2 down. "
+        )
     elif basis == "usual_pco2_given":
         why = (
             f"the patient's known usual PaCO2: the pH is {s.ph:.2f}, not acidaemic, so there is no need to "

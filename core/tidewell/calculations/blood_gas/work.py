@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from ... import units
-from ...report import Report, decisive
+from ...report import PRESSURE_DECIMALS, Report, decisive, limit_beside
 from .decision import Decision, _code, disorders
 from .reading import _Sample
 from .thresholds import MET_ACID, MET_ALK, PCO2_HIGH, SPO2_BASIS
@@ -40,6 +40,14 @@ class _Work:
         """A pressure in the user's unit, as text; with ``against`` (a limit the sentence compares it with,
         mmHg) never shown equal to it (report.decisive)."""
         return self.r.pressure_text(mmhg, against=against)
+
+    def p_beside(self, limit: float, value: float) -> str:
+        """A pressure limit (mmHg) in the user's unit, shown beside ``self.p(value, limit)``
+        (report.limit_beside)."""
+        unit = self.r.pressure_unit
+        shown = self.p(value, limit).split()[0]
+        converted = units.convert(limit, "mmHg", unit)
+        return f"{limit_beside(converted, shown, PRESSURE_DECIMALS[unit])} {unit}"
 
     def ph(self, against: float) -> str:
         """The sample's pH as text beside a pH limit a sentence compares it with (report.decisive)."""
