@@ -11,6 +11,8 @@ and clearly past it (the usual decimals).
 
 from __future__ import annotations
 
+import re
+
 import pytest
 from test_blood_gas_boundaries import bg, finding_text, hco3_of
 
@@ -109,11 +111,13 @@ def test_the_paco2_aim_text_shows_the_ph_that_decides(ph, shown):
 
 
 def test_the_paco2_aim_text_never_shows_the_present_paco2_equal_to_the_aim():
-    # PaCO2 6.51 kPa at pH 7.349 with HCO3 27 (within 0.03 pH of Henderson-Hasselbalch):
-    # P(7.35) = 6.51 x 10^-0.001 = 6.495 kPa, shown 6.5; the present shown 6.51
+    # PaCO2 6.51 kPa at pH 7.349 with HCO3 27 (within 0.03 pH of Henderson-Hasselbalch): the aim (pco2_aim:
+    # the lower of P(7.35) = 6.51 x 10^-0.001 = 6.495 kPa and the usual PaCO2 the HCO3 suggests) and the
+    # present PaCO2 both read 6.5 kPa to one decimal, so both are shown to two
     assert 6.51 * 10 ** (7.349 - 7.35) == pytest.approx(6.495, abs=5e-4)
     text = finding_text(bg({**gas(7.349, 6.51, "kPa"), "hco3": q(27, "mmol/L")}, unit="kPa"), "pco2_target")
-    assert "PaCO2 aim 6.5 kPa" in text
+    aim = re.match(r"PaCO2 aim (\d+\.\d\d) kPa ", text)
+    assert aim is not None and float(aim.group(1)) <= 6.495 + 0.005
     assert "below the present 6.51 kPa" in text
 
 
@@ -130,3 +134,11 @@ def test_the_narcosis_text_never_shows_the_paco2_equal_to_its_level(pco2, unit, 
     # consciousness commonly falls above 75 mmHg in the previously normal (common practice)
     r = bg(gas(7.10, pco2, unit), unit=unit)
     assert shown in finding_text(r, "pco2_above_consciousness_threshold")
+
+
+def test_an_aim_a_hair_below_the_present_paco2_reads_below_it():
+    # pH 7.3499 with PaCO2 60: P(7.35) = 60 x 10^-0.0001 = 59.986 mmHg; both would read 60 mmHg
+    assert 60 * 10 ** (7.3499 - 7.35) == pytest.approx(59.986, abs=5e-4)
+    text = finding_text(bg(gas(7.3499, 60.0)), "pco2_target")
+    assert "PaCO2 aim 59.99 mmHg" in text
+    assert "below the present 60.00 mmHg" in text

@@ -393,7 +393,9 @@ def _pco2_target(w: _Work) -> None:
     r.computed("pco2_target", target, "PaCO2 to aim for", formula, src, pressure=True)
     r.put("baseline_pco2_source", source)
     r.put("pco2_target_basis", basis)
+    aim_shown = w.p(target)
     if s.ph < PH_LOW:
+        aim_shown = w.p_beside(target, p)  # beside the present PaCO2 shown against it
         why = (
             f"below the present {w.p(p, target)}: the pH is {w.ph(PH_LOW)}, so ventilation must bring the "
             "PaCO2 down. "
@@ -422,7 +424,7 @@ def _pco2_target(w: _Work) -> None:
     r.finding(
         "pco2_target",
         "notable",
-        f"PaCO2 aim {w.p(target)} ({TARGET_BASIS[basis]}), "
+        f"PaCO2 aim {aim_shown} ({TARGET_BASIS[basis]}), "
         + why
         + usual
         + chronic_note
