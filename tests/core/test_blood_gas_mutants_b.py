@@ -550,3 +550,38 @@ def test_a_strong_ion_gap_above_4_is_named(hco3, raised):
     assert sig == (pytest.approx(4.1144) if raised else 4.0)
     inputs = triple(7.40, hco3 / (0.0307 * 10 ** (7.40 - 6.1)), hco3, na=140, k=4, cl=107.5, albumin=4.0)
     assert fires_on_both_paths(inputs, "strong_ion_gap_raised") == (raised, raised)
+
+
+# -- found by the independent audit of the equivalence claims (2026-12-05) -----------------------------------
+
+
+@pytest.mark.parametrize(
+    ("cl", "delta_gap", "alkalosis"), [(98.5, 5.5, False), (98.0, 6.0, False), (97.5, 6.5, True)]
+)
+def test_a_delta_gap_above_6_names_a_metabolic_alkalosis_beside_a_tentative_metabolic_acidosis(
+    cl, delta_gap, alkalosis
+):
+    # brandis: delta gap = (AG - 12) - (24 - HCO3), above +6 a metabolic alkalosis as well. pH 7.347 with
+    # PaCO2 40.5 and a reported HCO3 23.5 (within 0.03 pH of Henderson-Hasselbalch, so the reported value is
+    # used): every value in range, a tentative metabolic acidosis; AG 140 - Cl - 23.5 = 18 to 19 (every step
+    # an exact sum of halves)
+    ag = 140 - cl - 23.5
+    assert (ag - 12) - (24 - 23.5) == delta_gap
+    r = bg(triple(7.347, 40.5, 23.5, na=140, cl=cl))
+    assert r["outputs"]["disorders"][0]["code"] == "metabolic_acidosis"
+    assert ("metabolic_alkalosis" in [d["code"] for d in r["outputs"]["disorders"]]) is alkalosis
+    assert ("metabolic_alkalosis_from_gap" in codes(r)) is alkalosis
+
+
+@pytest.mark.parametrize(("cl", "alkalosis"), [(101.05, True), (101.15, False)])
+def test_a_respiratory_acidosis_judges_the_hco3_before_the_gap_not_the_delta_ratio(cl, alkalosis):
+    # PaCO2 45.8 over a usual 38 (acute), HCO3 21, Na 140: AG = 140 - Cl - 21 = 17.95 (17.85); the HCO3
+    # before the gap 21 + (AG - 12) = 26.95 (26.85) (wrenn1990) against the steepest band beside a respiratory
+    # acidosis, 24 + 5 x 5.8 / 10 = 26.9 (narins1980): above it a metabolic alkalosis too, although the delta
+    # ratio 5.95 / 3 = 1.98 is below 2 (the delta ratio decides only beside a respiratory alkalosis)
+    before = 21 + (140 - cl - 21 - 12)
+    assert (before > 24 + 5 * (45.8 - 40) / 10) is alkalosis
+    r = bg(triple(7.274, 45.8, 21.0, na=140, cl=cl, baseline_pco2=q(38, "mmHg")))
+    named = [d["code"] for d in r["outputs"]["disorders"]]
+    assert named[0] == "respiratory_acidosis"
+    assert ("metabolic_alkalosis" in named) is alkalosis

@@ -642,3 +642,18 @@ def test_urgent_findings_and_the_niv_caution_reach_the_summary():
     assert any("NIV thresholds" in c for c in r["cautions"])
     assert any(finding_text(r, "severe_acidaemia") in s for s in r["summary"])
     assert any(finding_text(r, "niv_criteria_met") in s for s in r["summary"])
+
+
+def test_the_usual_paco2_estimate_inverts_the_slopes_from_the_present_paco2_above_41():
+    # found by the independent audit of the equivalence claims (2026-12-05). A tentative respiratory
+    # acidosis, pH 7.3475 with PaCO2 41.9 and a reported HCO3 24.34 (within 0.03 pH), reads acute-on-chronic;
+    # the usual PaCO2 inverts acute 1 and chronic 3.5 per 10 mmHg (narins1980; the range with 5 and 3):
+    # usual = 40 + (HCO3 - 24 - (P - 40) / 10) / ((slope - 1) / 10), P = the PaCO2 (at least 41)
+    def usual(slope: float) -> float:
+        return 40 + (24.34 - 24 - (41.9 - 40) / 10) / ((slope - 1) / 10)
+
+    r = bg({"ph": 7.3475, "pco2": q(41.9, "mmHg"), "hco3": q(24.34, "mmol/L")})
+    out = r["outputs"]
+    assert out["baseline_pco2_estimated"]["value"] == pytest.approx(usual(3.5), abs=1e-9)  # 40.6
+    assert out["baseline_pco2_range"]["low"]["value"] == pytest.approx(usual(5.0), abs=1e-9)  # 40.375
+    assert out["baseline_pco2_range"]["high"]["value"] == pytest.approx(usual(3.0), abs=1e-9)  # 40.75
