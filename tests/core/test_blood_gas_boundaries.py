@@ -416,39 +416,31 @@ def test_the_three_readings_agree_on_a_hyperchloraemic_acidosis():
     assert "approaches_agree" in codes(r)
 
 
-def test_a_stewart_reading_that_differs_is_explained():
-    # HCO3 reading: a metabolic acidosis; Stewart (story2016): no effect of 5 mEq/L or more
-    r = bg(
-        {
-            "ph": 7.33,
-            "pco2": q(37, "mmHg"),
-            "hco3": q(hco3_of(7.33, 37), "mmol/L"),
-            "cl": q(106, "mmol/L"),
-            **STEWART,
-        }
-    )
-    text = finding_text(r, "approaches_disagree")
-    # Stewart names no effect of its own: its reading says "none of them large", and nothing offsets anything
-    assert "none of them large" in text
-    assert "offset" not in text
-
-
-def test_a_stewart_reading_with_opposing_effects_says_they_offset():
-    # a normal HCO3 and SBE (no metabolic disorder by either) hiding two opposing Stewart effects (story2016):
-    # albumin 1.5 g/dL alkalinises by 0.25 x (42 - 15) = +6.75 mEq/L, so the unmeasured anions are
-    # SBE - (0 + 6.75 - 1) with an SBE near 0: about -6, both beyond the 5 mEq/L size of a process
-    r = bg(
-        {
-            "ph": 7.40,
-            "pco2": q(40, "mmHg"),
-            "hco3": q(hco3_of(7.40, 40), "mmol/L"),
-            "cl": q(105, "mmol/L"),
-            **{**STEWART, "albumin": q(1.5, "g/dL")},
-        }
-    )
-    text = finding_text(r, "approaches_disagree")
-    assert "albumin +6.8" in text
-    assert "Stewart splits the net change into separate effects, some of which offset each other." in text
+@pytest.mark.parametrize(
+    ("ph", "pco2", "cl", "albumin", "offset"),
+    [
+        # HCO3 reading: a metabolic acidosis; Stewart (story2016) names no effect of 5 mEq/L or more: its
+        # reading says "none of them large", and nothing offsets anything
+        (7.33, 37, 106, 4.2, False),
+        # a normal HCO3 and SBE hiding two opposing Stewart effects: albumin 1.5 g/dL alkalinises by
+        # 0.25 x (42 - 15) = +6.75 mEq/L, so the unmeasured anions are SBE - (0 + 6.75 - 1), about -6
+        (7.40, 40, 105, 1.5, True),
+    ],
+)
+def test_a_stewart_reading_that_differs_says_effects_offset_only_when_it_names_them(
+    ph, pco2, cl, albumin, offset
+):
+    inputs = {
+        "ph": ph,
+        "pco2": q(pco2, "mmHg"),
+        "hco3": q(hco3_of(ph, pco2), "mmol/L"),
+        "cl": q(cl, "mmol/L"),
+    }
+    text = finding_text(bg({**inputs, **STEWART, "albumin": q(albumin, "g/dL")}), "approaches_disagree")
+    assert ("none of them large" in text) is not offset
+    assert ("albumin +6.8" in text) is offset
+    sentence = "Stewart splits the net change into separate effects, some of which offset each other."
+    assert (sentence in text) is offset
 
 
 @pytest.mark.parametrize(("cl", "alkalinising"), [(98.0, True), (101.0, False)])
