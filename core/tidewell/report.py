@@ -41,35 +41,29 @@ def in_words(text: str) -> str:
     return _DEGREES.sub(lambda m: f"{m.group(1) + ' ' if m.group(1) else ''}°{m.group(2)}", text)
 
 
-def decisive(value: float, limit: float, decimals: int, *, most: int = 3) -> str:
-    """``value`` to ``decimals`` places, or to more (up to ``most``) where that many would show it equal to
-    ``limit``: a sentence that says a value is above or below a limit never shows the two the same.
+def compared(value: float, limit: float, decimals: int, *, most: int = 3) -> tuple[str, str]:
+    """``value`` and ``limit`` as text for a sentence that says one is above or below the other, so that the
+    two never read the same: the value to ``decimals`` places, or to more (up to ``most``) where that many
+    would show it equal to the limit; the limit to as many as the value where the usual ``decimals`` would
+    round it to another number (75 mmHg is 9.999 kPa, not 10.0), else to ``decimals``.
 
-    >>> decisive(7.349, 7.35, 2), decisive(7.31, 7.35, 2), decisive(6.51, 6.5, 1), decisive(7.35, 7.35, 2)
-    ('7.349', '7.31', '6.51', '7.35')
+    >>> compared(7.349, 7.35, 2), compared(6.51, 6.5, 1), compared(75.1, 75.0, 0), compared(10.0, 9.99918, 1)
+    (('7.349', '7.35'), ('6.51', '6.5'), ('75.1', '75'), ('10.000', '9.999'))
+    >>> compared(7.31, 7.35, 2), compared(7.35, 7.35, 2)
+    (('7.31', '7.35'), ('7.35', '7.35'))
     """
     n = decimals
     while n < most and f"{value:.{n}f}" == f"{limit:.{n}f}":
         n += 1
-    return f"{value:.{n}f}" if f"{value:.{n}f}" != f"{limit:.{n}f}" else f"{value:.{decimals}f}"
-
-
-def limit_beside(limit: float, shown: str, decimals: int) -> str:
-    """``limit`` as text beside a value ``shown`` by ``decisive``: to the value's decimals where the usual
-    ``decimals`` would round the limit to another number (75 mmHg is 9.999 kPa, not 10.0), else as usual.
-
-    >>> limit_beside(9.99918, "10.000", 1), limit_beside(75.0, "75.1", 0), limit_beside(7.35, "7.349", 2)
-    ('9.999', '75', '7.35')
-    """
-    n = len(shown.partition(".")[2])
-    if n > decimals and float(f"{limit:.{n}f}") != float(f"{limit:.{decimals}f}"):
-        return f"{limit:.{n}f}"
-    return f"{limit:.{decimals}f}"
+    if f"{value:.{n}f}" == f"{limit:.{n}f}":
+        n = decimals  # equal to every shown place: as usual
+    limit_n = n if float(f"{limit:.{n}f}") != float(f"{limit:.{decimals}f}") else decimals
+    return f"{value:.{n}f}", f"{limit:.{limit_n}f}"
 
 
 def pressure_text(mmhg: float, unit: str, *, against: float | None = None) -> str:
     """A pressure (given in mmHg) as text in ``unit``, as clinicians write it; ``against`` (mmHg): a limit
-    the sentence compares it with, so that the two never read the same (``decisive``).
+    the sentence compares it with, so that the two never read the same (``compared``).
 
     >>> pressure_text(45.0, "kPa"), pressure_text(45.0, "mmHg"), pressure_text(48.83, "kPa", against=48.754)
     ('6.0 kPa', '45 mmHg', '6.51 kPa')
@@ -77,7 +71,7 @@ def pressure_text(mmhg: float, unit: str, *, against: float | None = None) -> st
     value = units.convert(mmhg, "mmHg", unit)
     if against is None:
         return f"{value:.{PRESSURE_DECIMALS[unit]}f} {unit}"
-    return f"{decisive(value, units.convert(against, 'mmHg', unit), PRESSURE_DECIMALS[unit])} {unit}"
+    return f"{compared(value, units.convert(against, 'mmHg', unit), PRESSURE_DECIMALS[unit])[0]} {unit}"
 
 
 class Report:

@@ -547,9 +547,8 @@ def _respiratory_primary(w: _Work, code: str) -> None:
                 why.append(f"{corrected} anion gap {d.ag_used:.1f} mmol/L (above 16)".strip())
             text = (
                 f"With pH {w.ph(PH_LOW)} below {PH_LOW:.2f}, {' and '.join(why)}: a concurrent metabolic "
-                "acidosis "
-                "beside the respiratory acidosis. Its acid consumes HCO3, so a HCO3 that looks acute can "
-                "hide chronic retention."
+                "acidosis beside the respiratory acidosis. Its acid consumes HCO3, so a HCO3 that looks "
+                "acute can hide chronic retention."
             )
         else:
             text = (

@@ -295,8 +295,8 @@ def _respiratory_failure(w: _Work) -> None:
             "respiratory_failure_type_2",
             "notable",
             f"Type 2 (hypercapnic) respiratory failure: PaCO2 {w.p(s.pco2, PCO2_HIGH)} is above "
-            f"{w.p(PCO2_HIGH)} with a "
-            "respiratory acidosis (named from the PaCO2, with or without hypoxaemia)." + po2,
+            f"{w.p(PCO2_HIGH)} with a respiratory acidosis (named from the PaCO2, with or without "
+            "hypoxaemia)." + po2,
         )
     if w.fires("respiratory_failure_type_1"):
         r.finding(

@@ -124,18 +124,13 @@ def _cautions(w: _Work) -> None:
             "venous_sample",
             "notable",
             (
-                f"Venous PCO2 {value} is above {limit}: arterial hypercapnia is "
-                "possible "
-                "(venous "
-                f"PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial, with wide limits). Confirm with "
-                "an arterial or "
-                "arterialised earlobe gas before judging chronicity or setting a PaCO2 aim; meanwhile the "
+                f"Venous PCO2 {value} is above {limit}: arterial hypercapnia is possible (venous PCO2 runs "
+                f"about {w.p(4.0)} to {w.p(6.0)} above arterial, with wide limits). Confirm with an arterial "
+                "or arterialised earlobe gas before judging chronicity or setting a PaCO2 aim; meanwhile the "
                 "88-92 % SpO2 range applies."
                 if raised
-                else f"Venous PCO2 {value} is not above {limit}: arterial "
-                "hypercapnia is "
-                "unlikely "
-                f"(venous PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial)."
+                else f"Venous PCO2 {value} is not above {limit}: arterial hypercapnia is unlikely (venous "
+                f"PCO2 runs about {w.p(4.0)} to {w.p(6.0)} above arterial)."
             ),
         )
     elif s.site == "capillary":

@@ -4,10 +4,9 @@ from __future__ import annotations
 
 from types import SimpleNamespace
 
-from ... import units
 from ...arrays import NAN, given, maximum, minimum, not_, where
 from ...formulas import acidbase as ab
-from ...report import decisive
+from ...report import pressure_text
 from .decision import NONE
 from .thresholds import (
     FLOOR_PH,
@@ -250,13 +249,14 @@ def _ventilation(w: _Work) -> None:
         _below_baseline(w)
     # NIV thresholds (BTS/ICS 2016)
     w.niv = d.niv
-    kpa = "" if w.r.pressure_unit == "kPa" else f" ({units.convert(p, 'mmHg', 'kPa'):.1f} kPa)"
-    niv_kpa = units.convert(NIV_PCO2_MMHG, "mmHg", "kPa")
-    niv_against = None if kpa else NIV_PCO2_MMHG  # in mmHg the kPa beside it is compared with 6.5 kPa
-    kpa_above = (
-        f" ({decisive(units.convert(p, 'mmHg', 'kPa'), niv_kpa, 1)} kPa, above {niv_kpa:.1f} kPa)"
-        if kpa
-        else f" (above {niv_kpa:.1f} kPa)"
+    in_kpa = w.r.pressure_unit == "kPa"
+    kpa = "" if in_kpa else f" ({pressure_text(p, 'kPa')})"
+    # the NIV limit is 6.5 kPa: the PaCO2 in kPa is the one compared with it (the user's, or the one beside)
+    niv_limit = pressure_text(NIV_PCO2_MMHG, "kPa")
+    niv_pco2 = (
+        f"{w.p(p, NIV_PCO2_MMHG)} (above {niv_limit})"
+        if in_kpa
+        else f"{w.p(p)} ({pressure_text(p, 'kPa', against=NIV_PCO2_MMHG)}, above {niv_limit})"
     )
     if w.fires("niv_criteria_need_arterial_sample"):
         r.finding(
@@ -277,8 +277,7 @@ def _ventilation(w: _Work) -> None:
         r.finding(
             "niv_criteria_met",
             "urgent",
-            f"NIV threshold met: pH {w.ph(NIV_PH)} (below {NIV_PH:.2f}) with PaCO2 {w.p(p, niv_against)}"
-            f"{kpa_above}: the acidaemia "
+            f"NIV threshold met: pH {w.ph(NIV_PH)} (below {NIV_PH:.2f}) with PaCO2 {niv_pco2}: the acidaemia "
             "marks decompensated hypercapnic respiratory failure, whatever the HCO3. BTS/ICS 2016 recommends "
             "NIV when it persists after optimal medical treatment (in COPD, neuromuscular or chest-wall "
             "disease and obesity hypoventilation)." + invasive,
@@ -296,8 +295,7 @@ def _ventilation(w: _Work) -> None:
             "compensation_incomplete",
             "notable",
             f"The HCO3 fits chronic retention, but pH {w.ph(PH_LOW)} is below {PH_LOW:.2f}: compensation is "
-            "incomplete "
-            "(an acute component, or failing compensation). It is not read as compensated.",
+            "incomplete (an acute component, or failing compensation). It is not read as compensated.",
         )
     r.put("niv_criteria", w.niv)
     # consciousness
@@ -328,12 +326,12 @@ def _ventilation(w: _Work) -> None:
             if retainer
             else "in previously normal people"
         )
+        shown, level = w.p_and_limit(p, threshold)
         r.finding(
             "pco2_above_consciousness_threshold",
             "urgent",
-            f"PaCO2 {w.p(p, threshold)} is above the level ({w.p_beside(threshold, p)}) at which "
-            "consciousness commonly falls "
-            f"{who} (CO2 narcosis; common practice).",
+            f"PaCO2 {shown} is above the level ({level}) at which consciousness commonly falls {who} "
+            "(CO2 narcosis; common practice).",
         )
 
 
@@ -395,10 +393,10 @@ def _pco2_target(w: _Work) -> None:
     r.put("pco2_target_basis", basis)
     aim_shown = w.p(target)
     if s.ph < PH_LOW:
-        aim_shown = w.p_beside(target, p)  # beside the present PaCO2 shown against it
+        present, aim_shown = w.p_and_limit(p, target)
         why = (
-            f"below the present {w.p(p, target)}: the pH is {w.ph(PH_LOW)}, so ventilation must bring the "
-            "PaCO2 down. "
+            f"below the present {present}: the pH is {w.ph(PH_LOW)}, so ventilation must bring the PaCO2 "
+            "down. "
         )
     elif basis == "usual_pco2_given":
         why = (

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from ... import units
-from ...report import PRESSURE_DECIMALS, Report, decisive, limit_beside
+from ...report import PRESSURE_DECIMALS, Report, compared
 from .decision import Decision, _code, disorders
 from .reading import _Sample
 from .thresholds import MET_ACID, MET_ALK, PCO2_HIGH, SPO2_BASIS
@@ -38,20 +38,21 @@ class _Work:
     # -- helpers ---------------------------------------------------------------------------------------------
     def p(self, mmhg: float, against: float | None = None) -> str:
         """A pressure in the user's unit, as text; with ``against`` (a limit the sentence compares it with,
-        mmHg) never shown equal to it (report.decisive)."""
+        mmHg) never shown equal to it (report.compared)."""
         return self.r.pressure_text(mmhg, against=against)
 
-    def p_beside(self, limit: float, value: float) -> str:
-        """A pressure limit (mmHg) in the user's unit, shown beside ``self.p(value, limit)``
-        (report.limit_beside)."""
+    def p_and_limit(self, mmhg: float, limit: float) -> tuple[str, str]:
+        """A pressure and the limit (both mmHg) a sentence compares it with, as text in the user's unit,
+        never reading the same (report.compared)."""
         unit = self.r.pressure_unit
-        shown = self.p(value, limit).split()[0]
-        converted = units.convert(limit, "mmHg", unit)
-        return f"{limit_beside(converted, shown, PRESSURE_DECIMALS[unit])} {unit}"
+        texts = compared(
+            units.convert(mmhg, "mmHg", unit), units.convert(limit, "mmHg", unit), PRESSURE_DECIMALS[unit]
+        )
+        return f"{texts[0]} {unit}", f"{texts[1]} {unit}"
 
     def ph(self, against: float) -> str:
-        """The sample's pH as text beside a pH limit a sentence compares it with (report.decisive)."""
-        return decisive(self.s.ph, against, 2)
+        """The sample's pH as text beside a pH limit a sentence compares it with (report.compared)."""
+        return compared(self.s.ph, against, 2)[0]
 
     def basis_text(self, basis: str) -> str:
         """Why the SpO2 target is what it is, thresholds in the user's unit."""
