@@ -60,6 +60,13 @@ def hco3_of(ph: float, pco2: float) -> float:
     return 0.0307 * pco2 * 10 ** (ph - 6.1)
 
 
+def gas(ph: float, pco2: float, unit: str = "mmHg", **more) -> dict:
+    """A consistent arterial triple: the HCO3 from Henderson-Hasselbalch (references.py henderson1908), the
+    PCO2 in ``unit`` (1 kPa = 1000 / 133.322387415 mmHg); ``more``: other inputs as the request has them."""
+    mmhg = pco2 * 1000 / 133.322387415 if unit == "kPa" else pco2
+    return {"ph": ph, "pco2": q(pco2, unit), "hco3": q(hco3_of(ph, mmhg), "mmol/L"), **more}
+
+
 def both_paths(inputs: dict):
     """blood_gas.decide for one request's sample: (the scalar Decision, the Decision of numpy arrays of one
     sample, element 0 of each array)."""
@@ -100,16 +107,15 @@ def test_display_decimals_of_a_concurrent_respiratory_acidosis_with_a_known_base
 
 def test_display_decimals_of_the_gaps_and_the_oxygenation():
     r = bg(
-        {
-            "ph": 7.25,
-            "pco2": q(30, "mmHg"),
-            "hco3": q(hco3_of(7.25, 30), "mmol/L"),
-            "na": q(140, "mmol/L"),
-            "cl": q(100, "mmol/L"),
-            "lactate": q(5, "mmol/L"),
-            "po2": q(70, "mmHg"),
-            "fio2": 0.4,
-        }
+        gas(
+            7.25,
+            30,
+            na=q(140, "mmol/L"),
+            cl=q(100, "mmol/L"),
+            lactate=q(5, "mmol/L"),
+            po2=q(70, "mmHg"),
+            fio2=0.4,
+        )
     )
     display = r["display"]
     assert display["anion_gap"] == 1
@@ -121,16 +127,15 @@ def test_display_decimals_of_the_gaps_and_the_oxygenation():
 
 def test_display_decimals_of_the_stewart_partition_and_the_temperature_view():
     r = bg(
-        {
-            "ph": 7.25,
-            "pco2": q(30, "mmHg"),
-            "hco3": q(hco3_of(7.25, 30), "mmol/L"),
-            "na": q(140, "mmol/L"),
-            "cl": q(100, "mmol/L"),
-            "albumin": q(3.0, "g/dL"),
-            "lactate": q(5, "mmol/L"),
-            "temperature": q(33, "degC"),
-        }
+        gas(
+            7.25,
+            30,
+            na=q(140, "mmol/L"),
+            cl=q(100, "mmol/L"),
+            albumin=q(3.0, "g/dL"),
+            lactate=q(5, "mmol/L"),
+            temperature=q(33, "degC"),
+        )
     )
     display = r["display"]
     assert display["base_excess_partition"] == 1
@@ -304,9 +309,7 @@ def test_an_alveolar_po2_of_exactly_zero_is_shown():
 def test_oxygen_probably_given_names_an_alveolar_po2_of_zero_not_a_negative_one():
     # no FiO2 recorded, PaCO2 130: on air PAO2 = 0.21 x 713 - 130 / 0.8 = -12.8 mmHg (alveolar gas
     # equation); a partial pressure is not negative, so the text names 0
-    r = bg(
-        {"ph": 7.10, "pco2": q(130, "mmHg"), "hco3": q(hco3_of(7.10, 130), "mmol/L"), "po2": q(70, "mmHg")}
-    )
+    r = bg(gas(7.10, 130, po2=q(70, "mmHg")))
     assert "(0 mmHg)" in finding_text(r, "oxygen_probably_given")
 
 
@@ -356,14 +359,14 @@ def test_base_excess_differs_on_either_side():
 )
 def test_ph_and_pco2_status_on_both_paths(ph, pco2, ph_status, pco2_status):
     # pH 7.35-7.45, PCO2 35-45 mmHg (acid_base_normal_ranges)
-    scalar, together = both_paths({"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(hco3_of(ph, pco2), "mmol/L")})
+    scalar, together = both_paths(gas(ph, pco2))
     for d in (scalar, together):
         assert np.asarray(d.ph_status).reshape(-1)[0] == ph_status
         assert np.asarray(d.pco2_status).reshape(-1)[0] == pco2_status
 
 
 def test_a_venous_sample_is_not_a_capillary_one():
-    inputs = {"ph": 7.35, "pco2": q(50, "mmHg"), "hco3": q(hco3_of(7.35, 50), "mmol/L"), "po2": q(40, "mmHg")}
+    inputs = gas(7.35, 50, po2=q(40, "mmHg"))
     for _, found in paths({**inputs, "sample": "venous"}):
         assert "venous_sample" in found
         assert not found & {"capillary_po2", "capillary_sample"}
@@ -386,9 +389,7 @@ def test_mixed_high_and_normal_gap_acidosis_beside_a_respiratory_acidosis():
 
 def test_the_copenhagen_paco2_rule_belongs_to_a_metabolic_primary():
     # metabolic acidosis: PaCO2 = 40 + SBE; metabolic alkalosis: 40 + 0.6 x SBE, +/- 5 (schlichtig1998)
-    acid = finding_text(
-        bg({"ph": 7.25, "pco2": q(26, "mmHg"), "hco3": q(hco3_of(7.25, 26), "mmol/L")}), "approaches_agree"
-    )
+    acid = finding_text(bg(gas(7.25, 26)), "approaches_agree")
     assert "40 + SBE" in acid and "0.6 x SBE" not in acid
     alk = bg({"ph": 7.50, "pco2": q(47, "mmHg"), "hco3": q(36, "mmol/L")})
     sbe = alk["outputs"]["standard_base_excess"]["value"]
@@ -430,12 +431,7 @@ def test_the_three_readings_agree_on_a_hyperchloraemic_acidosis():
 def test_a_stewart_reading_that_differs_says_effects_offset_only_when_it_names_them(
     ph, pco2, cl, albumin, offset
 ):
-    inputs = {
-        "ph": ph,
-        "pco2": q(pco2, "mmHg"),
-        "hco3": q(hco3_of(ph, pco2), "mmol/L"),
-        "cl": q(cl, "mmol/L"),
-    }
+    inputs = gas(ph, pco2, cl=q(cl, "mmol/L"))
     text = finding_text(bg({**inputs, **STEWART, "albumin": q(albumin, "g/dL")}), "approaches_disagree")
     assert ("none of them large" in text) is not offset
     assert ("albumin +6.8" in text) is offset
@@ -550,27 +546,13 @@ def test_chronic_respiratory_alkalosis_at_a_normal_ph_is_not_a_single_disorder_a
 def test_the_summary_names_the_fraction_acute_of_the_primary_respiratory_disorder():
     # PaCO2 70 on a usual 55: fraction acute (70 - 55) / (70 - 40) = 0.5 (fraction_acute_bands), beside a
     # lactate of 5 that names a concurrent metabolic acidosis
-    r = bg(
-        {
-            "ph": 7.25,
-            "pco2": q(70, "mmHg"),
-            "hco3": q(hco3_of(7.25, 70), "mmol/L"),
-            "baseline_pco2": q(55, "mmHg"),
-            "lactate": q(5, "mmol/L"),
-        }
-    )
+    r = bg(gas(7.25, 70, baseline_pco2=q(55, "mmHg"), lactate=q(5, "mmol/L")))
     assert [d["code"] for d in r["outputs"]["disorders"]] == ["respiratory_acidosis", "metabolic_acidosis"]
     assert any("about 50 % of the change looks acute" in s for s in r["summary"])
 
 
 def test_the_summary_says_when_the_anion_gap_is_albumin_corrected():
-    base = {
-        "ph": 7.25,
-        "pco2": q(26, "mmHg"),
-        "hco3": q(hco3_of(7.25, 26), "mmol/L"),
-        "na": q(140, "mmol/L"),
-        "cl": q(100, "mmol/L"),
-    }
+    base = gas(7.25, 26, na=q(140, "mmol/L"), cl=q(100, "mmol/L"))
     plain = next(s for s in bg(base)["summary"] if s.startswith("Anion gap"))
     corrected = next(
         s for s in bg({**base, "albumin": q(3.0, "g/dL")})["summary"] if s.startswith("Anion gap")
@@ -580,7 +562,7 @@ def test_the_summary_says_when_the_anion_gap_is_albumin_corrected():
 
 
 def test_urgent_findings_are_in_the_summary_and_the_niv_caution_only_when_met():
-    r = bg({"ph": 7.10, "pco2": q(30, "mmHg"), "hco3": q(hco3_of(7.10, 30), "mmol/L")})
+    r = bg(gas(7.10, 30))
     severe = finding_text(r, "severe_acidaemia")
     assert any(severe in s for s in r["summary"])
     assert r["outputs"]["niv_criteria"] != "met"
@@ -611,13 +593,7 @@ def test_unusual_concentrations_above_their_limit_are_named(key, limit):
 def test_no_alveolar_oxygen_refused_for_an_arterial_sample_only():
     # at FiO2 0.21, PaCO2 130: PAO2 = 0.21 x (760 - 47) - 130 / 0.8 < 0 (alveolar gas equation): an arterial
     # PO2 is then impossible on that FiO2; a venous PCO2 is not alveolar, so a venous sample is not refused
-    inputs = {
-        "ph": 7.10,
-        "pco2": q(130, "mmHg"),
-        "hco3": q(hco3_of(7.10, 130), "mmol/L"),
-        "po2": q(40, "mmHg"),
-        "fio2": 0.21,
-    }
+    inputs = gas(7.10, 130, po2=q(40, "mmHg"), fio2=0.21)
     assert 0.21 * (760 - 47) - 130 / 0.8 < 0
     assert ("inputs.fio2", "inconsistent") in refused(inputs)
     bg({**inputs, "sample": "venous"})
@@ -683,25 +659,16 @@ def test_a_prescribed_range_below_94_percent_marks_the_patient_at_risk(low, at_r
 
 def test_the_paco2_for_ph_7_35_is_shown_when_acidaemic():
     # P(7.35) = PaCO2 x 10^(pH - 7.35) (henderson1908, pco2_aim)
-    acid = bg(
-        {"ph": 7.30, "pco2": q(60, "mmHg"), "hco3": q(hco3_of(7.30, 60), "mmol/L"), "hypercapnia_risk": True}
-    )
+    acid = bg(gas(7.30, 60, hypercapnia_risk=True))
     assert acid["outputs"]["pco2_for_ph_7_35"]["value"] == pytest.approx(60 * 10 ** (7.30 - 7.35), rel=1e-6)
     assert "ventilation must bring the PaCO2 down" in finding_text(acid, "pco2_target")
-    normal = bg(
-        {"ph": 7.38, "pco2": q(60, "mmHg"), "hco3": q(hco3_of(7.38, 60), "mmol/L"), "hypercapnia_risk": True}
-    )
+    normal = bg(gas(7.38, 60, hypercapnia_risk=True))
     assert "pco2_for_ph_7_35" not in normal["outputs"]
     assert "ventilation must bring the PaCO2 down" not in finding_text(normal, "pco2_target")
 
 
 def test_the_aim_text_names_a_known_usual_paco2_only_when_given():
-    inputs = {
-        "ph": 7.38,
-        "pco2": q(60, "mmHg"),
-        "hco3": q(hco3_of(7.38, 60), "mmol/L"),
-        "hypercapnia_risk": True,
-    }
+    inputs = gas(7.38, 60, hypercapnia_risk=True)
     known = bg({**inputs, "baseline_pco2": q(58, "mmHg")})
     assert "the patient's known usual PaCO2: the pH is 7.38" in finding_text(known, "pco2_target")
     assert "the patient's known usual PaCO2: the pH" not in finding_text(bg(inputs), "pco2_target")
@@ -714,14 +681,7 @@ def test_the_aim_text_names_a_known_usual_paco2_only_when_given():
 def test_the_ph_stat_view_reads_the_corrected_values_against_the_reference_ranges(ph, pco2, t):
     # pH 7.35-7.45 and PCO2 35-45 mmHg (acid_base_normal_ranges): both inside "near normal", one "partly
     # outside", neither "outside"
-    r = bg(
-        {
-            "ph": ph,
-            "pco2": q(pco2, "mmHg"),
-            "hco3": q(hco3_of(ph, pco2), "mmol/L"),
-            "temperature": q(t, "degC"),
-        }
-    )
+    r = bg(gas(ph, pco2, temperature=q(t, "degC")))
     ph_t = r["outputs"]["ph_at_temperature"]
     pco2_t = r["outputs"]["pco2_at_temperature"]["value"]
     inside = (7.35 <= ph_t <= 7.45, 35.0 <= pco2_t <= 45.0)
@@ -803,14 +763,7 @@ def test_a_metabolic_acidosis_with_a_normal_gap_leaves_the_chronicity_indetermin
     # PaCO2 70, pH 7.25, lactate 5 (4 or more beside acidaemic hypercapnia: a concurrent metabolic acidosis)
     # and an anion gap below 12 (oh1977): no gap to take back, so the chronicity is not judged
     h = hco3_of(7.25, 70)
-    inputs = {
-        "ph": 7.25,
-        "pco2": q(70, "mmHg"),
-        "hco3": q(h, "mmol/L"),
-        "lactate": q(5, "mmol/L"),
-        "na": q(140, "mmol/L"),
-        "cl": q(100, "mmol/L"),
-    }
+    inputs = gas(7.25, 70, lactate=q(5, "mmol/L"), na=q(140, "mmol/L"), cl=q(100, "mmol/L"))
     assert 140 - 100 - h < 12
     r = bg(inputs)
     assert "chronicity_indeterminate" in codes(r)
@@ -890,15 +843,7 @@ def test_a_triple_disorder_names_the_concurrent_respiratory_one_before_the_gap_a
 
 def test_the_text_of_a_concurrent_metabolic_acidosis_names_its_reasons():
     # pH 7.25, PaCO2 70: lactate 5 (4 or more) with an anion gap below 16 (common practice)
-    h = hco3_of(7.25, 70)
-    inputs = {
-        "ph": 7.25,
-        "pco2": q(70, "mmHg"),
-        "hco3": q(h, "mmol/L"),
-        "lactate": q(5, "mmol/L"),
-        "na": q(140, "mmol/L"),
-        "cl": q(100, "mmol/L"),
-    }
+    inputs = gas(7.25, 70, lactate=q(5, "mmol/L"), na=q(140, "mmol/L"), cl=q(100, "mmol/L"))
     r = bg(inputs)
     text = finding_text(r, "concurrent_metabolic_acidosis")
     assert "lactate 5.0 mmol/L (4 or more)" in text
@@ -954,15 +899,7 @@ def test_display_decimals_of_the_base_excess_and_h():
     assert display["sbe_variants"] == 1
     assert display["expected_sbe"] == 1
     assert display["anion_gap_corrected"] == 1
-    r = bg(
-        {
-            "ph": 7.25,
-            "pco2": q(26, "mmHg"),
-            "hco3": q(hco3_of(7.25, 26), "mmol/L"),
-            "na": q(140, "mmol/L"),
-            "cl": q(100, "mmol/L"),
-        }
-    )
+    r = bg(gas(7.25, 26, na=q(140, "mmol/L"), cl=q(100, "mmol/L")))
     assert r["display"]["na_cl_effect"] == 1  # mEq/L to 1 decimal
 
 
@@ -1034,7 +971,7 @@ def test_the_stewart_terms_without_lactate_count_it_as_0():
 def test_low_inspired_oxygen_only_with_a_normal_a_a_gradient():
     # PaCO2 35, age 30 (A-a limit 30/4 + 4 = 11.5, common practice)
     pao2_a = 0.21 * (760 - 47) - 35 / 0.8  # alveolar gas equation
-    base = {"ph": 7.42, "pco2": q(35, "mmHg"), "hco3": q(hco3_of(7.42, 35), "mmol/L"), "age": 30}
+    base = gas(7.42, 35, age=30)
     raised = bg({**base, "po2": q(50, "mmHg")})  # A-a 56: lung disease
     assert pao2_a - 50 > 11.5
     assert "low_inspired_oxygen" not in codes(raised)
@@ -1055,7 +992,7 @@ def test_a_a_needs_age_only_in_the_grey_zone_on_both_paths():
 
 def test_type_1_failure_text_names_the_pao2_below_60_or_the_pf_ratio():
     # PaO2 below 8 kPa (60 mmHg), or on oxygen a P/F at or below 300 (berlin2012; bts2017)
-    base = {"ph": 7.42, "pco2": q(35, "mmHg"), "hco3": q(hco3_of(7.42, 35), "mmol/L")}
+    base = gas(7.42, 35)
     low = bg({**base, "po2": q(50, "mmHg"), "fio2": 0.21})
     assert "is below 60 mmHg" in finding_text(low, "respiratory_failure_type_1")
     at = bg({**base, "po2": q(60, "mmHg"), "fio2": 0.3})
@@ -1093,7 +1030,7 @@ def test_a_pco2_below_15_mmhg_is_a_unit_slip_unless_the_triple_fits():
     # PCO2 10 mmHg: with HCO3 24 at pH 7.40 the triple does not fit (Henderson-Hasselbalch), so probably kPa;
     # with the HCO3 the triple implies, the unit is right
     assert "possible_unit_mix_up" in codes(bg({"ph": 7.40, "pco2": q(10, "mmHg"), "hco3": q(24, "mmol/L")}))
-    fits = {"ph": 7.40, "pco2": q(10, "mmHg"), "hco3": q(hco3_of(7.40, 10), "mmol/L")}
+    fits = gas(7.40, 10)
     assert "possible_unit_mix_up" not in codes(bg(fits))
 
 
@@ -1145,7 +1082,7 @@ def test_display_decimals_of_the_computed_hco3():
 
 def test_json_text_requests_read_as_dict_requests():
     # the shell sends JSON text: its words (units, sample site) are new string objects, never the module's own
-    po2 = {"ph": 7.35, "pco2": q(50, "mmHg"), "hco3": q(hco3_of(7.35, 50), "mmol/L"), "po2": q(20, "mmHg")}
+    po2 = gas(7.35, 50, po2=q(20, "mmHg"))
     requests = [
         {**po2, "sample": "venous"},
         {**po2, "sample": "capillary"},
@@ -1246,14 +1183,7 @@ def test_the_concurrent_acidosis_text_names_an_albumin_corrected_gap_above_16_on
 def test_an_alveolar_po2_just_below_zero_is_not_shown():
     # on air PAO2 = 0.21 x 713 - 119.8 / 0.8 = -0.02 mmHg (alveolar gas equation): left out
     assert 0.21 * 713 - 119.8 / 0.8 < 0
-    r = bg(
-        {
-            "ph": 7.10,
-            "pco2": q(119.8, "mmHg"),
-            "hco3": q(hco3_of(7.10, 119.8), "mmol/L"),
-            "po2": q(50, "mmHg"),
-        }
-    )
+    r = bg(gas(7.10, 119.8, po2=q(50, "mmHg")))
     assert "pao2_alveolar" not in r["outputs"]
 
 
@@ -1276,7 +1206,7 @@ def test_the_a_over_a_ratio_is_shown_for_a_positive_alveolar_po2():
 
 def test_the_pf_band_is_named_unless_mild():
     # P/F at or below 100 severe, 200 moderate, 300 mild (berlin2012); PaO2 90 on FiO2 1.0: 90, severe
-    base = {"ph": 7.42, "pco2": q(35, "mmHg"), "hco3": q(hco3_of(7.42, 35), "mmol/L")}
+    base = gas(7.42, 35)
     severe = finding_text(bg({**base, "po2": q(90, "mmHg"), "fio2": 1.0}), "hypoxaemia_masked_by_oxygen")
     assert ", severe" in severe
     mild = finding_text(bg({**base, "po2": q(100, "mmHg"), "fio2": 0.4}), "hypoxaemia_masked_by_oxygen")
@@ -1349,18 +1279,13 @@ def test_a_metabolic_alkalosis_paco2_outside_the_sbe_rule_disagrees_on_both_path
 def test_the_sbe_reading_uses_plus_minus_3():
     # pH 7.37, PaCO2 40, HCO3 22.4 (no disorder): SBE -2.9 (nccls1994), within +/- 3 (schlichtig1998)
     ph = 7.37
-    r = bg({"ph": ph, "pco2": q(40, "mmHg"), "hco3": q(hco3_of(ph, 40), "mmol/L")})
+    r = bg(gas(ph, 40))
     assert "approaches_agree" in codes(r)
 
 
 def test_findings_of_the_decision_are_sorted_urgent_notable_info():
     rank = {"urgent": 0, "notable": 1, "info": 2}
-    inputs = {
-        "ph": 7.25,
-        "pco2": q(70, "mmHg"),
-        "hco3": q(hco3_of(7.25, 70), "mmol/L"),
-        "lactate": q(5, "mmol/L"),
-    }
+    inputs = gas(7.25, 70, lactate=q(5, "mmol/L"))
     for d in both_paths(inputs)[:1]:  # the scalar Decision (blood_gas.findings reads scalars)
         found = blood_gas.findings(d)
         severities = [rank[d.severity.get(c, blood_gas.SEVERITY.get(c))] for c in found]

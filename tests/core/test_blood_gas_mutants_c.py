@@ -17,7 +17,16 @@ import json
 
 import numpy as np
 import pytest
-from test_blood_gas_boundaries import bg, both_paths, codes, finding_text, fires_on_both_paths, hco3_of, ph_of
+from test_blood_gas_boundaries import (
+    bg,
+    both_paths,
+    codes,
+    finding_text,
+    fires_on_both_paths,
+    gas,
+    hco3_of,
+    ph_of,
+)
 
 from casebook import q
 from tidewell.bridge import handle
@@ -38,11 +47,6 @@ def alveolar(fio2: float, pco2: float, pb: float = 760.0, rq: float = 0.8) -> fl
     """Simplified alveolar gas equation, PAO2 = FiO2 x (PB - 47) - PaCO2 / R (references.py
     alveolar_gas_1946)."""
     return fio2 * (pb - 47.0) - pco2 / rq
-
-
-def gas(ph: float, pco2: float, **more) -> dict:
-    """A consistent arterial triple: the HCO3 from Henderson-Hasselbalch (references.py henderson1908)."""
-    return {"ph": ph, "pco2": q(pco2, "mmHg"), "hco3": q(hco3_of(ph, pco2), "mmol/L"), **more}
 
 
 def first(x):

@@ -14,15 +14,9 @@ from __future__ import annotations
 import re
 
 import pytest
-from test_blood_gas_boundaries import bg, finding_text, hco3_of
+from test_blood_gas_boundaries import bg, finding_text, gas
 
 from casebook import q
-
-
-def gas(ph: float, pco2: float, unit: str = "mmHg", **more) -> dict:
-    """A consistent arterial triple (Henderson-Hasselbalch, references.py henderson1908)."""
-    mmhg = pco2 * 1000 / 133.322387415 if unit == "kPa" else pco2
-    return {"ph": ph, "pco2": q(pco2, unit), "hco3": q(hco3_of(ph, mmhg), "mmol/L"), **more}
 
 
 @pytest.mark.parametrize(("ph", "shown"), [(7.349, "pH 7.349 (below 7.35)"), (7.30, "pH 7.30 (below 7.35)")])
